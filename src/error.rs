@@ -1,0 +1,72 @@
+//! The one error type of the library, with structured details for every failure.
+
+use thiserror::Error;
+
+/// Everything that can go wrong in cryochain, from bad input to a solver that did
+/// not converge. The CLI turns each variant into a message and an exit code.
+#[derive(Debug, Error, Clone, PartialEq)]
+pub enum Error {
+    /// A fluid name that is not in the built-in set.
+    #[error("unknown fluid '{name}'; known fluids: {known}")]
+    UnknownFluid {
+        /// The name as given.
+        name: String,
+        /// Comma-separated canonical names of the known fluids.
+        known: String,
+    },
+
+    /// A value with a unit that could not be read, or had the wrong kind of unit.
+    #[error("{0}")]
+    Quantity(#[from] crate::quantity::QuantityError),
+
+    /// A state outside the validity range of a fluid's equation of state.
+    #[error("{what} is outside the range of the {fluid} equation of state: {detail}")]
+    OutOfRange {
+        /// Canonical fluid name.
+        fluid: String,
+        /// What was out of range, with its value (for example `T = 2.5 K`).
+        what: String,
+        /// The allowed range, in words and numbers.
+        detail: String,
+    },
+
+    /// A pair of inputs that no state of the fluid satisfies, or that does not fix a state.
+    #[error("impossible state for {fluid}: {detail}")]
+    ImpossibleState {
+        /// Canonical fluid name.
+        fluid: String,
+        /// Why the pair cannot be met.
+        detail: String,
+    },
+
+    /// An iterative solve that hit its iteration cap or could not reduce its residual.
+    #[error(
+        "{solver} did not converge after {iterations} iterations (last residual {residual:.3e}){context}"
+    )]
+    NoConvergence {
+        /// Which solver.
+        solver: &'static str,
+        /// Iterations made.
+        iterations: usize,
+        /// The residual at the last iterate, in the solver's own scaled measure.
+        residual: f64,
+        /// Where it happened (fluid and inputs), starting with a separator.
+        context: String,
+    },
+
+    /// A fluid data file that does not describe a usable equation of state.
+    #[error("fluid data '{file}': {message}")]
+    FluidData {
+        /// The data file.
+        file: String,
+        /// What is wrong with it.
+        message: String,
+    },
+
+    /// Input that is malformed in some other way (command-line specs, CSV rows).
+    #[error("{0}")]
+    Input(String),
+}
+
+/// Shorthand for results in this crate.
+pub type Result<T> = std::result::Result<T, Error>;

@@ -1,0 +1,151 @@
+//! Density from temperature and pressure on a chosen branch (liquid, vapour or
+//! supercritical), by a safeguarded Newton iteration.
+
+use super::fluid::Fluid;
+use super::helmholtz::TauFactors;
+use crate::error::{Error, Result};
+
+/// Which root of p(T, ρ) = p is wanted.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Branch {
+    /// The dense root, above the saturated-liquid density.
+    Liquid,
+    /// The dilute root, below the saturated-vapour density.
+    Vapour,
+    /// Above the critical temperature, where the root is unique.
+    Supercritical,
+}
+
+/// Iteration cap of the density solver.
+pub const DENSITY_ITERATION_CAP: usize = 100;
+
+impl Fluid {
+    /// The density (kg/m³) at which p(T, ρ) = `pressure`, searched between `low` and
+    /// `high` from `guess`. p must increase with ρ over the bracket for the root to be
+    /// unique; steps that leave the bracket, or meet a falling slope, are replaced by
+    /// bisection (or by doubling while the upper end is open).
+    #[allow(clippy::too_many_arguments)]
+    pub fn solve_density(
+        &self,
+        factors: &TauFactors,
+        temperature: f64,
+        pressure: f64,
+        guess: f64,
+        low: f64,
+        high: f64,
+    ) -> Result<f64> {
+        let (mut low, mut high) = (low, high);
+        let mut x = guess;
+        if !(x > low && x < high) {
+            x = if high.is_finite() {
+                0.5 * (low + high)
+            } else {
+                2.0 * low.max(1e-12)
+            };
+        }
+        let scale = pressure.max(1e-300);
+        let mut last_residual = f64::INFINITY;
+        for iteration in 0..DENSITY_ITERATION_CAP {
+            let (p, slope) = self.pressure_and_slope(factors, temperature, x);
+            let f = p - pressure;
+            last_residual = f.abs() / scale;
+            // Pressure is computed as ρRT(1 + δ∂αʳ/∂δ): rounding limits its accuracy to
+            // a few ulps of ρRT, which for a liquid can be far above p itself.
+            let noise = 1e-14 * x * self.gas_constant * temperature;
+            if f.abs() <= 1e-13 * pressure + noise {
+                return Ok(x);
+            }
+            if f < 0.0 {
+                low = low.max(x);
+            } else {
+                high = high.min(x);
+            }
+            // A Newton step may change the density by at most half; far beyond the
+            // physical densities some equations turn to negative pressures.
+            let mut next = (x - f / slope).clamp(0.5 * x, 1.5 * x);
+            if !(slope > 0.0) || !(next > low && next < high) {
+                next = if high.is_finite() {
+                    0.5 * (low + high)
+                } else {
+                    1.5 * x
+                };
+            }
+            if next > self.density_ceiling {
+                break;
+            }
+            if (next - x).abs() <= 1e-15 * x {
+                let (p, _) = self.pressure_and_slope(factors, temperature, next);
+                if (p - pressure).abs() <= 1e-9 * pressure + 1e3 * noise {
+                    return Ok(next);
+                }
+                let _ = iteration;
+                break;
+            }
+            x = next;
+        }
+        Err(Error::NoConvergence {
+            solver: "density from temperature and pressure",
+            iterations: DENSITY_ITERATION_CAP,
+            residual: last_residual,
+            context: format!(
+                " for {} at T = {temperature} K, p = {pressure} Pa",
+                self.name
+            ),
+        })
+    }
+
+    /// The ideal-gas density p/(RT), kg/m³.
+    pub fn ideal_gas_density(&self, temperature: f64, pressure: f64) -> f64 {
+        pressure / (self.gas_constant * temperature)
+    }
+
+    /// The saturated-liquid density from the ancillary equation, kg/m³.
+    pub fn ancillary_liquid_density(&self, temperature: f64) -> f64 {
+        self.ancillaries.liquid_density.value(temperature) * self.molar_mass
+    }
+
+    /// The saturated-vapour density from the ancillary equation, kg/m³.
+    pub fn ancillary_vapour_density(&self, temperature: f64) -> f64 {
+        self.ancillaries.vapour_density.value(temperature) * self.molar_mass
+    }
+
+    /// Density at (T, p) on a branch, seeded from `guess` or from the ancillaries.
+    /// `saturated` gives the exact saturated densities (liquid, vapour) at T when the
+    /// caller has them; they bound the liquid and vapour branches.
+    pub fn density_on_branch(
+        &self,
+        factors: &TauFactors,
+        temperature: f64,
+        pressure: f64,
+        branch: Branch,
+        guess: Option<f64>,
+        saturated: Option<(f64, f64)>,
+    ) -> Result<f64> {
+        match branch {
+            Branch::Vapour => {
+                let upper = match saturated {
+                    Some((_, vapour)) => vapour,
+                    None => self.ancillary_vapour_density(temperature) * 1.02,
+                };
+                let seed = guess.unwrap_or_else(|| {
+                    self.ideal_gas_density(temperature, pressure).min(0.9 * upper)
+                });
+                self.solve_density(factors, temperature, pressure, seed, 0.0, upper)
+            }
+            Branch::Liquid => {
+                let (lower, seed) = match saturated {
+                    Some((liquid, _)) => (liquid, guess.unwrap_or(liquid)),
+                    None => {
+                        let anc = self.ancillary_liquid_density(temperature);
+                        (0.8 * anc.max(self.critical.density), guess.unwrap_or(anc))
+                    }
+                };
+                self.solve_density(factors, temperature, pressure, seed, lower, f64::INFINITY)
+            }
+            Branch::Supercritical => {
+                let seed = guess.unwrap_or_else(|| self.ideal_gas_density(temperature, pressure));
+                self.solve_density(factors, temperature, pressure, seed, 0.0, f64::INFINITY)
+            }
+        }
+    }
+}

@@ -1,0 +1,498 @@
+//! Flashes: the state that meets a pair of inputs — (T, p), (T, ρ), (p, h), (p, s),
+//! (T, quality) and (p, quality) — with the phase decided first and each loop capped.
+//!
+//! For a pseudo-pure fluid (air) a two-phase state at pressure p lies between the
+//! bubble state (T′, p) and the dew state (T″, p); its temperature, enthalpy,
+//! entropy, internal energy and specific volume are linear in the quality between
+//! the two. The same rule serves every input pair, so all flashes agree.
+
+use super::density::Branch;
+use super::fluid::{Fluid, Properties};
+use super::saturation::Saturation;
+use super::state::{SaturatedPair, State};
+use crate::error::{Error, Result};
+
+/// Iteration cap of the temperature search at fixed pressure.
+pub const TEMPERATURE_ITERATION_CAP: usize = 100;
+
+/// Which property is held at fixed pressure.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Held {
+    /// Specific enthalpy.
+    Enthalpy,
+    /// Specific entropy.
+    Entropy,
+}
+
+impl Held {
+    fn of(self, p: &Properties) -> f64 {
+        match self {
+            Held::Enthalpy => p.enthalpy,
+            Held::Entropy => p.entropy,
+        }
+    }
+
+    /// d(value)/dT at fixed pressure: cp, or cp/T.
+    fn slope(self, p: &Properties) -> f64 {
+        match self {
+            Held::Enthalpy => p.cp,
+            Held::Entropy => p.cp / p.temperature,
+        }
+    }
+
+    fn name(self) -> &'static str {
+        match self {
+            Held::Enthalpy => "h",
+            Held::Entropy => "s",
+        }
+    }
+
+    fn unit_value(self, value: f64) -> String {
+        match self {
+            Held::Enthalpy => format!("{:.6} kJ/kg", value / 1e3),
+            Held::Entropy => format!("{:.6} kJ/(kg·K)", value / 1e3),
+        }
+    }
+}
+
+/// The region searched at fixed pressure.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Region {
+    Liquid,
+    Vapour,
+    AboveCritical,
+}
+
+fn finite(fluid: &Fluid, props: &Properties) -> Result<()> {
+    let all = [
+        props.temperature,
+        props.density,
+        props.pressure,
+        props.enthalpy,
+        props.entropy,
+        props.internal_energy,
+        props.cp,
+        props.cv,
+        props.speed_of_sound,
+        props.joule_thomson,
+    ];
+    if all.iter().all(|v| v.is_finite()) {
+        Ok(())
+    } else {
+        Err(Error::ImpossibleState {
+            fluid: fluid.name.clone(),
+            detail: format!(
+                "the equation gave a non-finite property at T = {} K, ρ = {} kg/m³",
+                props.temperature, props.density
+            ),
+        })
+    }
+}
+
+impl Fluid {
+    fn pair(&self, saturation: &Saturation) -> SaturatedPair {
+        SaturatedPair {
+            liquid: self.properties(saturation.liquid.temperature, saturation.liquid.density),
+            vapour: self.properties(saturation.vapour.temperature, saturation.vapour.density),
+        }
+    }
+
+    fn single_state(&'static self, props: Properties, liquid_side: bool) -> Result<State> {
+        finite(self, &props)?;
+        Ok(State::single(self, props, liquid_side))
+    }
+
+    /// Relative margin around the ancillary vapour pressure inside which the exact
+    /// saturation is solved before choosing the phase.
+    fn ancillary_margin(&self) -> f64 {
+        let stated = self.ancillaries.bubble_pressure.stated_max_error_percent / 100.0;
+        (4.0 * stated).max(5e-4)
+    }
+
+    /// The state at temperature T (K) and pressure p (Pa).
+    pub fn state_tp(&'static self, temperature: f64, pressure: f64) -> Result<State> {
+        self.check_range(temperature, pressure)?;
+        let factors = self.tau_factors(temperature);
+        if temperature >= self.saturation_temperature_max() {
+            let rho = self.density_on_branch(
+                &factors,
+                temperature,
+                pressure,
+                Branch::Supercritical,
+                None,
+                None,
+            )?;
+            return self.single_state(self.properties_with(&factors, temperature, rho), false);
+        }
+        if self.pseudo_pure {
+            let bubble = self.ancillaries.bubble_pressure.value(temperature);
+            let dew = self.ancillaries.dew_pressure.value(temperature);
+            if pressure >= bubble || pressure <= dew {
+                let branch = if pressure >= bubble {
+                    Branch::Liquid
+                } else {
+                    Branch::Vapour
+                };
+                let rho =
+                    self.density_on_branch(&factors, temperature, pressure, branch, None, None)?;
+                return self.single_state(
+                    self.properties_with(&factors, temperature, rho),
+                    branch == Branch::Liquid,
+                );
+            }
+            // Between the dew and bubble pressures: two-phase, quality from the
+            // temperature's place between the bubble and dew temperatures at p.
+            let saturation = self.saturation_at_pressure(pressure)?;
+            let (tb, td) = (saturation.liquid.temperature, saturation.vapour.temperature);
+            let quality = ((temperature - tb) / (td - tb)).clamp(0.0, 1.0);
+            return Ok(State::two_phase(self, self.pair(&saturation), quality));
+        }
+        let estimate = self.ancillaries.bubble_pressure.value(temperature);
+        let margin = self.ancillary_margin();
+        let (branch, saturated) = if pressure > estimate * (1.0 + margin) {
+            (Branch::Liquid, None)
+        } else if pressure < estimate * (1.0 - margin) {
+            (Branch::Vapour, None)
+        } else {
+            let saturation = self.saturation_at_temperature(temperature)?;
+            let psat = saturation.vapour.pressure;
+            if (pressure - psat).abs() <= 1e-12 * psat {
+                return Err(Error::ImpossibleState {
+                    fluid: self.name.clone(),
+                    detail: format!(
+                        "T = {temperature} K and p = {pressure} Pa lie on the saturation line, where they do not fix the state; give the quality instead"
+                    ),
+                });
+            }
+            let branch = if pressure > psat {
+                Branch::Liquid
+            } else {
+                Branch::Vapour
+            };
+            (
+                branch,
+                Some((saturation.liquid.density, saturation.vapour.density)),
+            )
+        };
+        let rho =
+            self.density_on_branch(&factors, temperature, pressure, branch, None, saturated)?;
+        self.single_state(
+            self.properties_with(&factors, temperature, rho),
+            branch == Branch::Liquid,
+        )
+    }
+
+    /// The state at temperature T (K) and density ρ (kg/m³).
+    pub fn state_t_rho(&'static self, temperature: f64, density: f64) -> Result<State> {
+        if !(density > 0.0 && density.is_finite()) {
+            return Err(Error::ImpossibleState {
+                fluid: self.name.clone(),
+                detail: format!("density {density} kg/m³ must be positive"),
+            });
+        }
+        if temperature < self.saturation_temperature_max()
+            && temperature >= self.triple_temperature
+        {
+            let saturation = self.saturation_at_temperature(temperature)?;
+            let (rl, rv) = (saturation.liquid.density, saturation.vapour.density);
+            if density > rv && density < rl {
+                if self.pseudo_pure {
+                    return self.pseudo_pure_two_phase_t_rho(temperature, density);
+                }
+                let volume = 1.0 / density;
+                let quality = (volume - 1.0 / rl) / (1.0 / rv - 1.0 / rl);
+                return Ok(State::two_phase(self, self.pair(&saturation), quality));
+            }
+            let props = self.properties(temperature, density);
+            self.check_range(temperature, props.pressure)?;
+            return self.single_state(props, density >= rl);
+        }
+        let props = self.properties(temperature, density);
+        self.check_range(temperature, props.pressure)?;
+        self.single_state(props, false)
+    }
+
+    /// Air between its bubble and dew densities at T: the quality whose two-phase
+    /// state (see [`Fluid::state_t_quality`]) has density ρ, by bisection.
+    fn pseudo_pure_two_phase_t_rho(&'static self, temperature: f64, density: f64) -> Result<State> {
+        let (mut low, mut high) = (0.0, 1.0);
+        let mut last = f64::INFINITY;
+        for _ in 0..80 {
+            let mid = 0.5 * (low + high);
+            let state = self.state_t_quality(temperature, mid)?;
+            last = (state.density - density) / density;
+            if last.abs() < 1e-13 || high - low < 1e-15 {
+                return Ok(state);
+            }
+            if state.density > density {
+                low = mid;
+            } else {
+                high = mid;
+            }
+        }
+        Err(Error::NoConvergence {
+            solver: "two-phase quality from temperature and density",
+            iterations: 80,
+            residual: last,
+            context: format!(" for {} at T = {temperature} K, ρ = {density} kg/m³", self.name),
+        })
+    }
+
+    fn check_quality(&self, quality: f64) -> Result<()> {
+        if (0.0..=1.0).contains(&quality) {
+            Ok(())
+        } else {
+            Err(Error::ImpossibleState {
+                fluid: self.name.clone(),
+                detail: format!("quality {quality} must lie between 0 and 1"),
+            })
+        }
+    }
+
+    /// The two-phase state at temperature T (K) and quality x.
+    pub fn state_t_quality(&'static self, temperature: f64, quality: f64) -> Result<State> {
+        self.check_quality(quality)?;
+        if !self.pseudo_pure {
+            let saturation = self.saturation_at_temperature(temperature)?;
+            return Ok(State::two_phase(self, self.pair(&saturation), quality));
+        }
+        // Air: the pressure at which T′(p) + x(T″(p) − T′(p)) = T, on the ancillaries.
+        let bubble = &self.ancillaries.bubble_pressure;
+        let dew = &self.ancillaries.dew_pressure;
+        self.saturation_at_temperature(temperature)?; // range check
+        let (t_low, t_high) = (self.triple_temperature, self.saturation_temperature_max());
+        let target = |p: f64| {
+            let tb = bubble.temperature_at(p, t_low, t_high);
+            let td = dew.temperature_at(p, t_low, t_high);
+            tb + quality * (td - tb) - temperature
+        };
+        // The root lies between the dew and bubble pressures at T.
+        let (mut a, mut b) = (dew.value(temperature), bubble.value(temperature));
+        let mut fa = target(a);
+        for _ in 0..200 {
+            let mid = (a * b).sqrt();
+            let fm = target(mid);
+            if (fm < 0.0) == (fa < 0.0) {
+                a = mid;
+                fa = fm;
+            } else {
+                b = mid;
+            }
+            if (b - a).abs() < 1e-15 * b {
+                break;
+            }
+        }
+        let saturation = self.saturation_at_pressure((a * b).sqrt())?;
+        Ok(State::two_phase(self, self.pair(&saturation), quality))
+    }
+
+    /// The two-phase state at pressure p (Pa) and quality x.
+    pub fn state_p_quality(&'static self, pressure: f64, quality: f64) -> Result<State> {
+        self.check_quality(quality)?;
+        let saturation = self.saturation_at_pressure(pressure)?;
+        Ok(State::two_phase(self, self.pair(&saturation), quality))
+    }
+
+    /// The state at pressure p (Pa) and specific enthalpy h (J/kg).
+    pub fn state_ph(&'static self, pressure: f64, enthalpy: f64) -> Result<State> {
+        self.state_at_pressure(pressure, enthalpy, Held::Enthalpy)
+    }
+
+    /// The state at pressure p (Pa) and specific entropy s (J/(kg·K)).
+    pub fn state_ps(&'static self, pressure: f64, entropy: f64) -> Result<State> {
+        self.state_at_pressure(pressure, entropy, Held::Entropy)
+    }
+
+    fn state_at_pressure(&'static self, pressure: f64, target: f64, held: Held) -> Result<State> {
+        if !(pressure > 0.0 && pressure <= self.pressure_max * (1.0 + 1e-9)) || !target.is_finite()
+        {
+            return Err(Error::OutOfRange {
+                fluid: self.name.clone(),
+                what: format!("p = {pressure} Pa with {} = {target}", held.name()),
+                detail: format!(
+                    "pressure must be above 0 and up to {} MPa, and {} finite",
+                    self.pressure_max / 1e6,
+                    held.name()
+                ),
+            });
+        }
+        let (sat_low, sat_high) = self.saturation_pressure_range();
+        if pressure >= sat_low && pressure < sat_high {
+            let saturation = self.saturation_at_pressure(pressure)?;
+            let pair = self.pair(&saturation);
+            let (at_liquid, at_vapour) = (held.of(&pair.liquid), held.of(&pair.vapour));
+            if target >= at_liquid && target <= at_vapour {
+                let quality = (target - at_liquid) / (at_vapour - at_liquid);
+                return Ok(State::two_phase(self, pair, quality));
+            }
+            if target < at_liquid {
+                return self.search_temperature(pressure, target, held, Region::Liquid, pair.liquid);
+            }
+            return self.search_temperature(pressure, target, held, Region::Vapour, pair.vapour);
+        }
+        let region = if pressure < sat_low {
+            Region::Vapour
+        } else {
+            Region::AboveCritical
+        };
+        let start_t = self.ideal_gas_estimate(pressure, target, held);
+        let start = self.state_tp(start_t, pressure)?;
+        let props = start.single_phase.ok_or_else(|| Error::ImpossibleState {
+            fluid: self.name.clone(),
+            detail: "starting state is two-phase".into(),
+        })?;
+        self.search_temperature(pressure, target, held, region, props)
+    }
+
+    /// A starting temperature from the ideal-gas relations, clamped to the range.
+    fn ideal_gas_estimate(&self, pressure: f64, target: f64, held: Held) -> f64 {
+        let (low, high) = (self.temperature_min, self.temperature_max);
+        let mut t = (self.critical.temperature * 2.0).clamp(low, high);
+        for _ in 0..30 {
+            let tau = self.tau(t);
+            let i = self.ideal.evaluate(tau);
+            let r = self.gas_constant;
+            let cp = r * (1.0 - tau * tau * i.alpha_tau_tau);
+            let (value, slope) = match held {
+                Held::Enthalpy => (r * t * (1.0 + tau * i.alpha_tau), cp),
+                Held::Entropy => {
+                    let delta = self.delta(self.ideal_gas_density(t, pressure));
+                    (r * (tau * i.alpha_tau - i.alpha - delta.ln()), cp / t)
+                }
+            };
+            let next = (t - (value - target) / slope).clamp(low, high);
+            if (next - t).abs() < 1e-9 * t {
+                return next;
+            }
+            t = next;
+        }
+        t
+    }
+
+    fn branch_for(&self, region: Region, temperature: f64) -> Branch {
+        let above = temperature >= self.saturation_temperature_max();
+        match region {
+            Region::Liquid => Branch::Liquid,
+            Region::Vapour if above => Branch::Supercritical,
+            Region::Vapour => Branch::Vapour,
+            Region::AboveCritical if above => Branch::Supercritical,
+            Region::AboveCritical => Branch::Liquid,
+        }
+    }
+
+    /// Single-phase properties at (T, p) on the region's branch, seeded from a nearby
+    /// state.
+    fn properties_near(
+        &self,
+        region: Region,
+        temperature: f64,
+        pressure: f64,
+        near: &Properties,
+    ) -> Result<Properties> {
+        let factors = self.tau_factors(temperature);
+        let branch = self.branch_for(region, temperature);
+        let drho_dt = -near.dp_dt / near.dp_drho;
+        let guess = near.density + drho_dt * (temperature - near.temperature);
+        let guess = if guess > 0.0 { guess } else { near.density };
+        let rho =
+            self.density_on_branch(&factors, temperature, pressure, branch, Some(guess), None)?;
+        Ok(self.properties_with(&factors, temperature, rho))
+    }
+
+    /// Newton search in T at fixed p for the held property, kept inside a bracket.
+    fn search_temperature(
+        &'static self,
+        pressure: f64,
+        target: f64,
+        held: Held,
+        region: Region,
+        start: Properties,
+    ) -> Result<State> {
+        let limit_low = match region {
+            Region::Vapour => self.temperature_min,
+            _ => self
+                .melting_temperature(pressure)
+                .unwrap_or(self.temperature_min)
+                .max(self.temperature_min),
+        };
+        let limit_high = self.temperature_max;
+        // Bracket ends: (temperature, known to bound the root).
+        let mut low = (limit_low, false);
+        let mut high = (limit_high, false);
+        let g_start = held.of(&start) - target;
+        match region {
+            Region::Liquid => high = (start.temperature, true),
+            Region::Vapour if start.temperature > limit_low && g_start < 0.0 => {
+                low = (start.temperature, true)
+            }
+            _ => {}
+        }
+        let out_of_range = |end: &str, t: f64| Error::OutOfRange {
+            fluid: self.name.clone(),
+            what: format!(
+                "{} = {} at p = {:.6} MPa",
+                held.name(),
+                held.unit_value(target),
+                pressure / 1e6
+            ),
+            detail: format!(
+                "it would need a temperature {end} {t:.4} K, the equation's limit at this pressure"
+            ),
+        };
+        let mut current = start;
+        let mut residual = g_start;
+        for _ in 0..TEMPERATURE_ITERATION_CAP {
+            let g = held.of(&current) - target;
+            residual = g;
+            let t = current.temperature;
+            if g < 0.0 {
+                if t > low.0 || !low.1 {
+                    low = (t, true);
+                }
+            } else if t < high.0 || !high.1 {
+                high = (t, true);
+            }
+            let slope = held.slope(&current);
+            let mut next = t - g / slope;
+            if !(slope > 0.0) || !next.is_finite() || next <= low.0 || next >= high.0 {
+                // Outside the bracket: probe an unchecked limit, or bisect.
+                if next >= high.0 && !high.1 {
+                    let props = self.properties_near(region, high.0, pressure, &current)?;
+                    if held.of(&props) < target {
+                        return Err(out_of_range("above", high.0));
+                    }
+                    high.1 = true;
+                    current = props;
+                    continue;
+                }
+                if next <= low.0 && !low.1 {
+                    let props = self.properties_near(region, low.0, pressure, &current)?;
+                    if held.of(&props) > target {
+                        return Err(out_of_range("below", low.0));
+                    }
+                    low.1 = true;
+                    current = props;
+                    continue;
+                }
+                next = 0.5 * (low.0 + high.0);
+            }
+            let converged = (next - t).abs() <= 1e-12 * t;
+            current = self.properties_near(region, next, pressure, &current)?;
+            if converged || (held.of(&current) - target).abs() <= 1e-13 * target.abs().max(self.gas_constant * next) {
+                let liquid_side = matches!(region, Region::Liquid)
+                    || (region == Region::AboveCritical && next < self.critical.temperature);
+                return self.single_state(current, liquid_side);
+            }
+        }
+        Err(Error::NoConvergence {
+            solver: "temperature from pressure and enthalpy or entropy",
+            iterations: TEMPERATURE_ITERATION_CAP,
+            residual,
+            context: format!(
+                " for {} at p = {pressure} Pa, {} = {target}",
+                self.name,
+                held.name()
+            ),
+        })
+    }
+}

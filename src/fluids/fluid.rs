@@ -1,0 +1,390 @@
+//! One fluid: its equation of state, constants and validity range, and the
+//! single-phase properties at a temperature and density.
+
+use super::ancillary::MeltingLine;
+use super::file::{AncillaryEquation, FluidFile, ReferenceStateName};
+use super::helmholtz::{IdealPart, ResidualDerivatives, ResidualPart, TauFactors};
+use crate::error::{Error, Result};
+
+/// A point given by temperature, pressure and density.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Point {
+    /// Temperature, K.
+    pub temperature: f64,
+    /// Pressure, Pa.
+    pub pressure: f64,
+    /// Density, kg/m³.
+    pub density: f64,
+}
+
+/// Ancillary equations of a fluid, converted to mass units where needed.
+#[derive(Debug, Clone)]
+pub struct Ancillaries {
+    /// Bubble-point pressure, Pa.
+    pub bubble_pressure: AncillaryEquation,
+    /// Dew-point pressure, Pa.
+    pub dew_pressure: AncillaryEquation,
+    /// Saturated-liquid density (mol/m³ as published).
+    pub liquid_density: AncillaryEquation,
+    /// Saturated-vapour density (mol/m³ as published).
+    pub vapour_density: AncillaryEquation,
+    /// The melting line.
+    pub melting: MeltingLine,
+}
+
+/// A pure or pseudo-pure fluid with its reference equation of state.
+#[derive(Debug, Clone)]
+pub struct Fluid {
+    /// Canonical name (`nitrogen`, `hydrogen`, …).
+    pub name: String,
+    /// Other accepted names.
+    pub aliases: Vec<String>,
+    /// Chemical formula or composition.
+    pub formula: String,
+    /// Full citation of the equation of state.
+    pub source: String,
+    /// Short literature key.
+    pub source_key: String,
+    /// A mixture treated as one fluid, with separate bubble and dew lines.
+    pub pseudo_pure: bool,
+    /// Molar mass, kg/mol.
+    pub molar_mass: f64,
+    /// The equation's own molar gas constant, J/(mol·K).
+    pub molar_gas_constant: f64,
+    /// Specific gas constant R/M, J/(kg·K).
+    pub gas_constant: f64,
+    /// Reducing temperature Tr, K.
+    pub reducing_temperature: f64,
+    /// Reducing density ρr, kg/m³.
+    pub reducing_density: f64,
+    /// Critical point.
+    pub critical: Point,
+    /// Triple-point temperature, K.
+    pub triple_temperature: f64,
+    /// Triple-point pressures of the liquid and the vapour, Pa (equal for a pure fluid).
+    pub triple_pressures: (f64, f64),
+    /// Lowest valid temperature, K.
+    pub temperature_min: f64,
+    /// Highest valid temperature, K.
+    pub temperature_max: f64,
+    /// Highest valid pressure, Pa.
+    pub pressure_max: f64,
+    /// The reference-state convention in force.
+    pub reference_state: ReferenceStateName,
+    /// A density no fluid state reaches (five times the saturated-liquid density at
+    /// the triple point, kg/m³); density searches stop there.
+    pub density_ceiling: f64,
+    /// Ancillary equations and melting line.
+    pub ancillaries: Ancillaries,
+    pub(crate) ideal: IdealPart,
+    pub(crate) residual: ResidualPart,
+}
+
+/// Every single-phase property at one (T, ρ).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Properties {
+    /// Temperature, K.
+    pub temperature: f64,
+    /// Density, kg/m³.
+    pub density: f64,
+    /// Pressure, Pa.
+    pub pressure: f64,
+    /// Specific internal energy, J/kg.
+    pub internal_energy: f64,
+    /// Specific enthalpy, J/kg.
+    pub enthalpy: f64,
+    /// Specific entropy, J/(kg·K).
+    pub entropy: f64,
+    /// Specific Gibbs energy, J/kg.
+    pub gibbs: f64,
+    /// Isochoric heat capacity, J/(kg·K).
+    pub cv: f64,
+    /// Isobaric heat capacity, J/(kg·K).
+    pub cp: f64,
+    /// Speed of sound, m/s.
+    pub speed_of_sound: f64,
+    /// Joule-Thomson coefficient (∂T/∂p)ₕ, K/Pa.
+    pub joule_thomson: f64,
+    /// Compressibility factor Z = p/(ρRT).
+    pub compressibility: f64,
+    /// (∂p/∂ρ)_T, Pa·m³/kg.
+    pub dp_drho: f64,
+    /// (∂p/∂T)_ρ, Pa/K.
+    pub dp_dt: f64,
+}
+
+impl Fluid {
+    /// Builds a fluid from its parsed data file (`file` names it in errors).
+    pub fn from_file(data: FluidFile, file: &str) -> Result<Fluid> {
+        let bad = |message: String| Error::FluidData {
+            file: file.to_string(),
+            message,
+        };
+        let ideal = IdealPart::from_terms(&data.ideal_gas).map_err(&bad)?;
+        let residual = ResidualPart::from_terms(&data.residual).map_err(&bad)?;
+        if residual.is_empty() {
+            return Err(bad("no residual terms".into()));
+        }
+        let m = data.molar_mass_kg_mol;
+        if !(m > 0.0 && data.gas_constant_j_mol_k > 0.0) {
+            return Err(bad("molar mass and gas constant must be positive".into()));
+        }
+        let fluid = Fluid {
+            name: data.name,
+            aliases: data.aliases,
+            formula: data.formula,
+            source: data.source,
+            source_key: data.source_key,
+            pseudo_pure: data.pseudo_pure,
+            molar_mass: m,
+            molar_gas_constant: data.gas_constant_j_mol_k,
+            gas_constant: data.gas_constant_j_mol_k / m,
+            reducing_temperature: data.reducing.temperature_k,
+            reducing_density: data.reducing.density_mol_m3 * m,
+            critical: Point {
+                temperature: data.critical.temperature_k,
+                pressure: data.critical.pressure_pa,
+                density: data.critical.density_mol_m3 * m,
+            },
+            triple_temperature: data.triple.temperature_k,
+            triple_pressures: (data.triple.liquid_pressure_pa, data.triple.vapour_pressure_pa),
+            temperature_min: data.limits.temperature_min_k,
+            temperature_max: data.limits.temperature_max_k,
+            pressure_max: data.limits.pressure_max_pa,
+            reference_state: data.reference_state,
+            density_ceiling: 5.0
+                * data.ancillaries.liquid_density.value(data.triple.temperature_k)
+                * m,
+            ancillaries: Ancillaries {
+                bubble_pressure: data.ancillaries.bubble_pressure,
+                dew_pressure: data.ancillaries.dew_pressure,
+                liquid_density: data.ancillaries.liquid_density,
+                vapour_density: data.ancillaries.vapour_density,
+                melting: MeltingLine::from_file(&data.melting_line),
+            },
+            ideal,
+            residual,
+        };
+        let mut fluid = fluid;
+        if fluid.reference_state == ReferenceStateName::NormalBoilingPoint {
+            fluid.set_normal_boiling_point_reference().map_err(|e| {
+                bad(format!("cannot set the normal-boiling-point reference: {e}"))
+            })?;
+        }
+        Ok(fluid)
+    }
+
+    /// Shifts the ideal-gas constants so that the saturated liquid at 101.325 kPa has
+    /// h = 0 and s = 0. A constant a₁ and a τ coefficient a₂ in α⁰ change h by R·Tr·Δa₂
+    /// and s by −R·Δa₁, and nothing else.
+    fn set_normal_boiling_point_reference(&mut self) -> Result<()> {
+        let saturation = self.saturation_at_pressure(101_325.0)?;
+        let liquid = self.properties(saturation.liquid.temperature, saturation.liquid.density);
+        self.ideal.lead_tau -= liquid.enthalpy / (self.gas_constant * self.reducing_temperature);
+        self.ideal.lead_constant += liquid.entropy / self.gas_constant;
+        Ok(())
+    }
+
+    /// τ = Tr/T.
+    pub fn tau(&self, temperature: f64) -> f64 {
+        self.reducing_temperature / temperature
+    }
+
+    /// δ = ρ/ρr.
+    pub fn delta(&self, density: f64) -> f64 {
+        density / self.reducing_density
+    }
+
+    /// The residual τ factors at a temperature, for repeated density evaluations.
+    pub fn tau_factors(&self, temperature: f64) -> TauFactors {
+        self.residual.at_tau(self.tau(temperature))
+    }
+
+    /// The residual derivatives at (T, ρ) from precomputed τ factors.
+    pub fn residual_at(&self, factors: &TauFactors, density: f64) -> ResidualDerivatives {
+        self.residual.evaluate(factors, self.delta(density))
+    }
+
+    /// Pressure and (∂p/∂ρ)_T at (T, ρ), from precomputed τ factors.
+    pub fn pressure_and_slope(
+        &self,
+        factors: &TauFactors,
+        temperature: f64,
+        density: f64,
+    ) -> (f64, f64) {
+        let delta = self.delta(density);
+        let r = self.residual.evaluate(factors, delta);
+        let rt = self.gas_constant * temperature;
+        let p = density * rt * (1.0 + delta * r.alpha_delta);
+        let slope =
+            rt * (1.0 + 2.0 * delta * r.alpha_delta + delta * delta * r.alpha_delta_delta);
+        (p, slope)
+    }
+
+    /// Pressure at (T, ρ).
+    pub fn pressure(&self, temperature: f64, density: f64) -> f64 {
+        self.pressure_and_slope(&self.tau_factors(temperature), temperature, density)
+            .0
+    }
+
+    /// Every single-phase property at (T, ρ), from precomputed τ factors.
+    pub fn properties_with(
+        &self,
+        factors: &TauFactors,
+        temperature: f64,
+        density: f64,
+    ) -> Properties {
+        let tau = factors.tau();
+        let delta = self.delta(density);
+        let r = self.residual.evaluate(factors, delta);
+        let i = self.ideal.evaluate(tau);
+        let rt = self.gas_constant * temperature;
+        let big_r = self.gas_constant;
+        let d_ar = delta * r.alpha_delta;
+        let dd_ar = delta * delta * r.alpha_delta_delta;
+        let dt_ar = delta * tau * r.alpha_delta_tau;
+        let tau_sum = tau * (i.alpha_tau + r.alpha_tau);
+        let tt_sum = tau * tau * (i.alpha_tau_tau + r.alpha_tau_tau);
+        let pressure = density * rt * (1.0 + d_ar);
+        let internal_energy = rt * tau_sum;
+        let enthalpy = rt * (1.0 + tau_sum + d_ar);
+        let helmholtz_reduced = i.alpha + delta.ln() + r.alpha;
+        let entropy = big_r * (tau_sum - helmholtz_reduced);
+        let gibbs = rt * (1.0 + d_ar + helmholtz_reduced);
+        let cv = -big_r * tt_sum;
+        let numerator = 1.0 + d_ar - dt_ar;
+        let compress = 1.0 + 2.0 * d_ar + dd_ar;
+        let cp = cv + big_r * numerator * numerator / compress;
+        let w2 = rt * (compress - numerator * numerator / tt_sum);
+        let joule_thomson = -(d_ar + dd_ar + dt_ar)
+            / ((numerator * numerator - tt_sum * compress) * big_r * density);
+        Properties {
+            temperature,
+            density,
+            pressure,
+            internal_energy,
+            enthalpy,
+            entropy,
+            gibbs,
+            cv,
+            cp,
+            speed_of_sound: w2.max(0.0).sqrt(),
+            joule_thomson,
+            compressibility: 1.0 + d_ar,
+            dp_drho: rt * compress,
+            dp_dt: density * big_r * numerator,
+        }
+    }
+
+    /// Every single-phase property at (T, ρ).
+    pub fn properties(&self, temperature: f64, density: f64) -> Properties {
+        self.properties_with(&self.tau_factors(temperature), temperature, density)
+    }
+
+    /// The ideal-gas enthalpy at T, J/kg.
+    pub fn ideal_gas_enthalpy(&self, temperature: f64) -> f64 {
+        let tau = self.tau(temperature);
+        let i = self.ideal.evaluate(tau);
+        self.gas_constant * temperature * (1.0 + tau * i.alpha_tau)
+    }
+
+    /// The ideal-gas isobaric heat capacity at T, J/(kg·K).
+    pub fn ideal_gas_cp(&self, temperature: f64) -> f64 {
+        let tau = self.tau(temperature);
+        let i = self.ideal.evaluate(tau);
+        self.gas_constant * (1.0 - tau * tau * i.alpha_tau_tau)
+    }
+
+    /// The second virial coefficient B (m³/kg) and its temperature derivatives
+    /// dB/dT and d²B/dT², from the zero-density limit of the residual part.
+    pub fn second_virial(&self, temperature: f64) -> [f64; 3] {
+        let tau = self.tau(temperature);
+        let [b, b_tau, b_tau_tau] = self.residual.virial_b(tau);
+        let rho_r = self.reducing_density;
+        // τ = Tr/T: dτ/dT = −τ/T, d²τ/dT² = 2τ/T².
+        let dtau = -tau / temperature;
+        let d2tau = 2.0 * tau / (temperature * temperature);
+        [
+            b / rho_r,
+            b_tau * dtau / rho_r,
+            (b_tau_tau * dtau * dtau + b_tau * d2tau) / rho_r,
+        ]
+    }
+
+    /// The critical temperature, K.
+    pub fn critical_temperature(&self) -> f64 {
+        self.critical.temperature
+    }
+
+    /// Checks that (T, p) lies inside the equation's validity range: between the
+    /// lowest and highest temperature, below the highest pressure, and not in the
+    /// solid (above the melting pressure).
+    pub fn check_range(&self, temperature: f64, pressure: f64) -> Result<()> {
+        let out = |what: String, detail: String| Error::OutOfRange {
+            fluid: self.name.clone(),
+            what,
+            detail,
+        };
+        if !temperature.is_finite() || !pressure.is_finite() {
+            return Err(out(
+                format!("T = {temperature} K, p = {pressure} Pa"),
+                "values must be finite numbers".into(),
+            ));
+        }
+        let tolerance = 1e-9;
+        if temperature < self.temperature_min * (1.0 - tolerance)
+            || temperature > self.temperature_max * (1.0 + tolerance)
+        {
+            return Err(out(
+                format!("T = {temperature:.6} K"),
+                format!(
+                    "valid from {} K to {} K",
+                    self.temperature_min, self.temperature_max
+                ),
+            ));
+        }
+        if pressure <= 0.0 || pressure > self.pressure_max * (1.0 + tolerance) {
+            return Err(out(
+                format!("p = {:.6} MPa", pressure / 1e6),
+                format!("valid above 0 and up to {} MPa", self.pressure_max / 1e6),
+            ));
+        }
+        if let Some(melting) = self.ancillaries.melting.pressure(temperature) {
+            if pressure > melting * (1.0 + 1e-6) {
+                return Err(out(
+                    format!("p = {:.6} MPa at T = {temperature:.4} K", pressure / 1e6),
+                    format!(
+                        "this is in the solid: the melting pressure at that temperature is {:.6} MPa",
+                        melting / 1e6
+                    ),
+                ));
+            }
+        }
+        Ok(())
+    }
+
+    /// The melting temperature at pressure p (K), where the melting line covers p.
+    pub fn melting_temperature(&self, pressure: f64) -> Option<f64> {
+        let line = &self.ancillaries.melting;
+        let low = self.triple_temperature;
+        let high = line.temperature_max();
+        let f = |t: f64| line.pressure(t).map(|pm| pm - pressure);
+        let (fl, fh) = (f(low)?, f(high)?);
+        if fl > 0.0 || fh < 0.0 {
+            return None;
+        }
+        let (mut a, mut b) = (low, high);
+        for _ in 0..200 {
+            let c = 0.5 * (a + b);
+            match f(c) {
+                Some(v) if v < 0.0 => a = c,
+                Some(_) => b = c,
+                None => return None,
+            }
+            if b - a < 1e-12 * b {
+                break;
+            }
+        }
+        Some(0.5 * (a + b))
+    }
+}

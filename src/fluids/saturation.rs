@@ -1,0 +1,263 @@
+//! Vapour–liquid saturation: from temperature by equal pressure and Gibbs energy
+//! (Newton in the two densities, after Akasaka 2008), and from pressure by Newton on
+//! temperature with the Clausius–Clapeyron slope. A pseudo-pure fluid (air) has no
+//! single saturation line; its bubble and dew lines come from the published
+//! ancillary equations, with densities from the equation of state.
+
+use super::density::Branch;
+use super::fluid::{Fluid, Point};
+use crate::error::{Error, Result};
+
+/// The two saturated states in equilibrium (for a pseudo-pure fluid, the bubble and
+/// dew states at the same temperature or pressure).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Saturation {
+    /// Saturated liquid (bubble point).
+    pub liquid: Point,
+    /// Saturated vapour (dew point).
+    pub vapour: Point,
+}
+
+/// Iteration cap of the saturation solvers.
+pub const SATURATION_ITERATION_CAP: usize = 60;
+
+impl Fluid {
+    /// The highest temperature at which saturation is solved, K: just below the
+    /// critical temperature, where the two phases become one.
+    pub fn saturation_temperature_max(&self) -> f64 {
+        self.critical.temperature * (1.0 - 2e-6)
+    }
+
+    fn check_saturation_temperature(&self, temperature: f64) -> Result<()> {
+        let low = self.triple_temperature * (1.0 - 1e-9);
+        let high = self.saturation_temperature_max();
+        if !(temperature >= low && temperature <= high) {
+            return Err(Error::OutOfRange {
+                fluid: self.name.clone(),
+                what: format!("saturation at T = {temperature} K"),
+                detail: format!(
+                    "saturation exists from the triple point {} K up to the critical temperature {} K",
+                    self.triple_temperature, self.critical.temperature
+                ),
+            });
+        }
+        Ok(())
+    }
+
+    /// Saturation at temperature T (K).
+    pub fn saturation_at_temperature(&self, temperature: f64) -> Result<Saturation> {
+        self.check_saturation_temperature(temperature)?;
+        if self.pseudo_pure {
+            return self.pseudo_pure_saturation_at_temperature(temperature);
+        }
+        let seeds = (
+            self.ancillary_liquid_density(temperature),
+            self.ancillary_vapour_density(temperature),
+        );
+        self.pure_saturation_at_temperature(temperature, seeds)
+    }
+
+    /// Newton iteration on (δ′, δ″) for equal pressure and equal Gibbs energy at T,
+    /// in the dimensionless form J = δ(1 + δαʳ_δ), K = δαʳ_δ + αʳ + ln δ.
+    fn pure_saturation_at_temperature(
+        &self,
+        temperature: f64,
+        seeds: (f64, f64),
+    ) -> Result<Saturation> {
+        let factors = self.tau_factors(temperature);
+        let rho_r = self.reducing_density;
+        let mut liquid = seeds.0 / rho_r;
+        let mut vapour = seeds.1 / rho_r;
+        let mut residual = f64::INFINITY;
+        for iteration in 0..SATURATION_ITERATION_CAP {
+            let rl = self.residual.evaluate(&factors, liquid);
+            let rv = self.residual.evaluate(&factors, vapour);
+            let jl = liquid * (1.0 + liquid * rl.alpha_delta);
+            let jv = vapour * (1.0 + vapour * rv.alpha_delta);
+            let kl = liquid * rl.alpha_delta + rl.alpha + liquid.ln();
+            let kv = vapour * rv.alpha_delta + rv.alpha + vapour.ln();
+            let jl_d = 1.0 + 2.0 * liquid * rl.alpha_delta + liquid * liquid * rl.alpha_delta_delta;
+            let jv_d = 1.0 + 2.0 * vapour * rv.alpha_delta + vapour * vapour * rv.alpha_delta_delta;
+            let kl_d = 2.0 * rl.alpha_delta + liquid * rl.alpha_delta_delta + 1.0 / liquid;
+            let kv_d = 2.0 * rv.alpha_delta + vapour * rv.alpha_delta_delta + 1.0 / vapour;
+            residual = (jv - jl).abs() / jv.abs() + (kv - kl).abs();
+            let det = jv_d * kl_d - jl_d * kv_d;
+            let step_l = ((kv - kl) * jv_d - (jv - jl) * kv_d) / det;
+            let step_v = ((kv - kl) * jl_d - (jv - jl) * kl_d) / det;
+            // Damp steps that would cross the phases or leave positive densities.
+            let mut damping = 1.0;
+            while damping > 1e-4
+                && !(vapour + damping * step_v > 0.0
+                    && liquid + damping * step_l > vapour + damping * step_v)
+            {
+                damping *= 0.5;
+            }
+            let next_l = liquid + damping * step_l;
+            let next_v = vapour + damping * step_v;
+            if !(next_l.is_finite() && next_v.is_finite()) {
+                break;
+            }
+            let small = (next_l - liquid).abs() <= 1e-13 * liquid
+                && (next_v - vapour).abs() <= 1e-13 * vapour;
+            liquid = next_l;
+            vapour = next_v;
+            if (liquid - vapour).abs() < 1e-7 * liquid {
+                // Collapsed onto the trivial solution δ′ = δ″.
+                break;
+            }
+            if small || (residual < 1e-15 && iteration > 0) {
+                let p = self.pressure_and_slope(&factors, temperature, vapour * rho_r).0;
+                let pl = self.pressure_and_slope(&factors, temperature, liquid * rho_r).0;
+                let rt_scale = 1e-12 * liquid * rho_r * self.gas_constant * temperature;
+                if (pl - p).abs() <= 1e-9 * p + rt_scale {
+                    let point = |density: f64, pressure: f64| Point {
+                        temperature,
+                        pressure,
+                        density,
+                    };
+                    return Ok(Saturation {
+                        liquid: point(liquid * rho_r, p),
+                        vapour: point(vapour * rho_r, p),
+                    });
+                }
+            }
+        }
+        Err(Error::NoConvergence {
+            solver: "saturation from temperature",
+            iterations: SATURATION_ITERATION_CAP,
+            residual,
+            context: format!(" for {} at T = {temperature} K", self.name),
+        })
+    }
+
+    fn pseudo_pure_saturation_at_temperature(&self, temperature: f64) -> Result<Saturation> {
+        let factors = self.tau_factors(temperature);
+        let bubble = self.ancillaries.bubble_pressure.value(temperature);
+        let dew = self.ancillaries.dew_pressure.value(temperature);
+        let liquid =
+            self.density_on_branch(&factors, temperature, bubble, Branch::Liquid, None, None)?;
+        let vapour =
+            self.density_on_branch(&factors, temperature, dew, Branch::Vapour, None, None)?;
+        Ok(Saturation {
+            liquid: Point {
+                temperature,
+                pressure: bubble,
+                density: liquid,
+            },
+            vapour: Point {
+                temperature,
+                pressure: dew,
+                density: vapour,
+            },
+        })
+    }
+
+    /// The range of pressures over which saturation exists, Pa.
+    pub fn saturation_pressure_range(&self) -> (f64, f64) {
+        let high = self.saturation_temperature_max();
+        if self.pseudo_pure {
+            (
+                self.ancillaries.dew_pressure.value(self.triple_temperature),
+                self.ancillaries.bubble_pressure.value(high),
+            )
+        } else {
+            (self.triple_pressures.1.min(self.triple_pressures.0), self.critical.pressure)
+        }
+    }
+
+    /// Saturation at pressure p (Pa).
+    pub fn saturation_at_pressure(&self, pressure: f64) -> Result<Saturation> {
+        let (low, high) = self.saturation_pressure_range();
+        if !(pressure >= low * (1.0 - 1e-6) && pressure < high) {
+            return Err(Error::OutOfRange {
+                fluid: self.name.clone(),
+                what: format!("saturation at p = {} kPa", pressure / 1e3),
+                detail: format!(
+                    "saturation exists from the triple-point pressure {:.4} kPa up to the critical pressure {:.4} kPa",
+                    low / 1e3,
+                    high / 1e3
+                ),
+            });
+        }
+        let t_low = self.triple_temperature;
+        let t_high = self.saturation_temperature_max();
+        if self.pseudo_pure {
+            let bubble_t = self
+                .ancillaries
+                .bubble_pressure
+                .temperature_at(pressure, t_low, t_high);
+            let dew_t = self
+                .ancillaries
+                .dew_pressure
+                .temperature_at(pressure, t_low, t_high);
+            let liquid = self.density_on_branch(
+                &self.tau_factors(bubble_t),
+                bubble_t,
+                pressure,
+                Branch::Liquid,
+                None,
+                None,
+            )?;
+            let vapour = self.density_on_branch(
+                &self.tau_factors(dew_t),
+                dew_t,
+                pressure,
+                Branch::Vapour,
+                None,
+                None,
+            )?;
+            return Ok(Saturation {
+                liquid: Point {
+                    temperature: bubble_t,
+                    pressure,
+                    density: liquid,
+                },
+                vapour: Point {
+                    temperature: dew_t,
+                    pressure,
+                    density: vapour,
+                },
+            });
+        }
+        let mut temperature = self
+            .ancillaries
+            .bubble_pressure
+            .temperature_at(pressure, t_low, t_high);
+        let mut seeds = (
+            self.ancillary_liquid_density(temperature),
+            self.ancillary_vapour_density(temperature),
+        );
+        let mut residual = f64::INFINITY;
+        for _ in 0..SATURATION_ITERATION_CAP {
+            let saturation = self.pure_saturation_at_temperature(temperature, seeds)?;
+            let p = saturation.liquid.pressure;
+            residual = (p / pressure).ln();
+            let factors = self.tau_factors(temperature);
+            let l = self.properties_with(&factors, temperature, saturation.liquid.density);
+            let v = self.properties_with(&factors, temperature, saturation.vapour.density);
+            // Clausius–Clapeyron: dp/dT = Δs/Δv, so d ln p/dT = Δs/(p Δv).
+            let slope = (v.entropy - l.entropy)
+                / (p * (1.0 / saturation.vapour.density - 1.0 / saturation.liquid.density));
+            let step = -residual / slope;
+            if residual.abs() < 1e-14 || step.abs() < 1e-13 * temperature {
+                if residual.abs() < 1e-10 {
+                    return Ok(saturation);
+                }
+                break;
+            }
+            let next = (temperature + step).clamp(t_low * (1.0 - 1e-9), t_high);
+            // Seed the next densities along the saturation line.
+            seeds = (saturation.liquid.density, saturation.vapour.density);
+            if next == temperature {
+                break;
+            }
+            temperature = next;
+        }
+        Err(Error::NoConvergence {
+            solver: "saturation from pressure",
+            iterations: SATURATION_ITERATION_CAP,
+            residual,
+            context: format!(" for {} at p = {pressure} Pa", self.name),
+        })
+    }
+}

@@ -1,0 +1,41 @@
+//! Helpers shared by the integration tests.
+#![allow(dead_code)]
+
+use std::path::PathBuf;
+
+/// Path of a file under tests/reference/.
+pub fn reference_path(name: &str) -> PathBuf {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+        .join("tests")
+        .join("reference")
+        .join(name)
+}
+
+/// Reads a reference CSV: skips `#` comment lines, returns the header and the rows.
+pub fn read_csv(name: &str) -> (Vec<String>, Vec<Vec<String>>) {
+    let text = std::fs::read_to_string(reference_path(name)).expect("reference file");
+    let mut lines = text.lines().filter(|l| !l.starts_with('#') && !l.trim().is_empty());
+    let header = lines
+        .next()
+        .expect("header")
+        .split(',')
+        .map(str::to_string)
+        .collect();
+    let rows = lines
+        .map(|l| l.split(',').map(str::to_string).collect())
+        .collect();
+    (header, rows)
+}
+
+/// The column index of `name` in `header`.
+pub fn column(header: &[String], name: &str) -> usize {
+    header
+        .iter()
+        .position(|h| h == name)
+        .unwrap_or_else(|| panic!("column {name}"))
+}
+
+/// Relative difference |a − b| / |b|.
+pub fn relative(a: f64, b: f64) -> f64 {
+    (a - b).abs() / b.abs()
+}
