@@ -1,9 +1,9 @@
 fn main() {
-    let f = cryochain::fluids::fluid("orthohydrogen").unwrap();
-    let sat = f.saturation_at_temperature(20.0).unwrap();
-    let l = f.properties(20.0, sat.liquid.density);
-    let v = f.properties(20.0, sat.vapour.density);
-    println!("p {} rl {} rv {} cvl {} cvv {} cpl {} cpv {} wl {} wv {}", sat.vapour.pressure/1e3, l.density, v.density, l.cv/1e3, v.cv/1e3, l.cp/1e3, v.cp/1e3, l.speed_of_sound, v.speed_of_sound);
-    let m = cryochain::fluids::fluid("methane").unwrap();
-    println!("{:?}", m.state_tp(115.0, 0.1e6).map(|s| s.density));
+    let f = cryochain::fluids::fluid("methane").unwrap();
+    let p = 4922055.142416269;
+    for t in [185.0, 189.0, 190.0, 190.5, 190.545, 190.56, 190.6, 191.0, 193.0, 195.0, 200.0] {
+        let s = f.state_tp(t, p).unwrap();
+        println!("{t} rho {:.4} h {:.1} cp {:.1} {:?}", s.density, s.enthalpy, s.cp().unwrap(), s.phase);
+    }
+    println!("{:?}", f.state_ph(p, 506521.69195632363).map(|s| s.temperature));
 }

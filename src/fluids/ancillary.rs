@@ -112,6 +112,14 @@ impl MeltingLine {
         Some(p)
     }
 
+    /// The lowest temperature the line covers.
+    pub fn temperature_min(&self) -> f64 {
+        self.parts
+            .iter()
+            .map(|p| p.temperature_min_k)
+            .fold(f64::INFINITY, f64::min)
+    }
+
     /// The highest temperature the line covers.
     pub fn temperature_max(&self) -> f64 {
         self.parts

@@ -143,7 +143,12 @@ impl Fluid {
                 self.solve_density(factors, temperature, pressure, seed, lower, f64::INFINITY)
             }
             Branch::Supercritical => {
-                let seed = guess.unwrap_or_else(|| self.ideal_gas_density(temperature, pressure));
+                // The ideal-gas density overshoots wildly at high pressure; no fluid
+                // state is denser than a fifth of the ceiling by much.
+                let seed = guess.unwrap_or_else(|| {
+                    self.ideal_gas_density(temperature, pressure)
+                        .min(0.2 * self.density_ceiling)
+                });
                 self.solve_density(factors, temperature, pressure, seed, 0.0, f64::INFINITY)
             }
         }

@@ -47,6 +47,15 @@ impl Held {
         }
     }
 
+    /// The size below which a difference in the held property is rounding: R·T for
+    /// enthalpy, R for entropy, times 1e-12.
+    fn rounding(self, fluid: &Fluid, temperature: f64) -> f64 {
+        match self {
+            Held::Enthalpy => 1e-12 * fluid.gas_constant * temperature,
+            Held::Entropy => 1e-12 * fluid.gas_constant,
+        }
+    }
+
     fn unit_value(self, value: f64) -> String {
         match self {
             Held::Enthalpy => format!("{:.6} kJ/kg", value / 1e3),
@@ -127,8 +136,9 @@ impl Fluid {
         if self.pseudo_pure {
             let bubble = self.ancillaries.bubble_pressure.value(temperature);
             let dew = self.ancillaries.dew_pressure.value(temperature);
-            if pressure >= bubble || pressure <= dew {
-                let branch = if pressure >= bubble {
+            let top = self.saturation_pressure_range().1;
+            if pressure >= bubble || pressure <= dew || pressure >= top {
+                let branch = if pressure >= bubble || pressure >= top {
                     Branch::Liquid
                 } else {
                     Branch::Vapour
@@ -283,7 +293,18 @@ impl Fluid {
             }
         }
         let saturation = self.saturation_at_pressure((a * b).sqrt())?;
-        Ok(State::two_phase(self, self.pair(&saturation), quality))
+        let state = State::two_phase(self, self.pair(&saturation), quality);
+        if (state.temperature - temperature).abs() > 1e-9 * temperature {
+            return Err(Error::OutOfRange {
+                fluid: self.name.clone(),
+                what: format!("T = {temperature} K with quality {quality}"),
+                detail: format!(
+                    "no two-phase state of this pseudo-pure fluid has them both: its bubble point would lie below the triple point {} K",
+                    self.triple_temperature
+                ),
+            });
+        }
+        Ok(state)
     }
 
     /// The two-phase state at pressure p (Pa) and quality x.
@@ -321,8 +342,10 @@ impl Fluid {
             let saturation = self.saturation_at_pressure(pressure)?;
             let pair = self.pair(&saturation);
             let (at_liquid, at_vapour) = (held.of(&pair.liquid), held.of(&pair.vapour));
-            if target >= at_liquid && target <= at_vapour {
-                let quality = (target - at_liquid) / (at_vapour - at_liquid);
+            // A target within rounding of a saturated state is that saturated state.
+            let slack = 1e-11 * (at_vapour - at_liquid);
+            if target >= at_liquid - slack && target <= at_vapour + slack {
+                let quality = ((target - at_liquid) / (at_vapour - at_liquid)).clamp(0.0, 1.0);
                 return Ok(State::two_phase(self, pair, quality));
             }
             if target < at_liquid {
@@ -335,7 +358,13 @@ impl Fluid {
         } else {
             Region::AboveCritical
         };
-        let start_t = self.ideal_gas_estimate(pressure, target, held);
+        let coldest = self
+            .melting_temperature(pressure)
+            .unwrap_or(self.temperature_min)
+            .max(self.temperature_min);
+        let start_t = self
+            .ideal_gas_estimate(pressure, target, held)
+            .clamp(coldest * (1.0 + 1e-6), self.temperature_max);
         let start = self.state_tp(start_t, pressure)?;
         let props = start.single_phase.ok_or_else(|| Error::ImpossibleState {
             fluid: self.name.clone(),
@@ -441,9 +470,15 @@ impl Fluid {
         };
         let mut current = start;
         let mut residual = g_start;
+        let mut previous = f64::INFINITY;
         for _ in 0..TEMPERATURE_ITERATION_CAP {
             let g = held.of(&current) - target;
             residual = g;
+            // Newton bounces across an S-shaped stretch (near the critical point cp
+            // peaks): when a step fails to halve the residual inside a closed
+            // bracket, bisect instead.
+            let slow = g.abs() > 0.5 * previous;
+            previous = g.abs();
             let t = current.temperature;
             if g < 0.0 {
                 if t > low.0 || !low.1 {
@@ -454,10 +489,19 @@ impl Fluid {
             }
             let slope = held.slope(&current);
             let mut next = t - g / slope;
-            if !(slope > 0.0) || !next.is_finite() || next <= low.0 || next >= high.0 {
+            if slow && low.1 && high.1 {
+                next = 0.5 * (low.0 + high.0);
+            } else if !(slope > 0.0) || !next.is_finite() || next <= low.0 || next >= high.0 {
                 // Outside the bracket: probe an unchecked limit, or bisect.
+                let liquid_side = |t: f64| {
+                    matches!(region, Region::Liquid)
+                        || (region == Region::AboveCritical && t < self.critical.temperature)
+                };
                 if next >= high.0 && !high.1 {
                     let props = self.properties_near(region, high.0, pressure, &current)?;
+                    if (held.of(&props) - target).abs() <= held.rounding(self, high.0) {
+                        return self.single_state(props, liquid_side(high.0));
+                    }
                     if held.of(&props) < target {
                         return Err(out_of_range("above", high.0));
                     }
@@ -467,6 +511,9 @@ impl Fluid {
                 }
                 if next <= low.0 && !low.1 {
                     let props = self.properties_near(region, low.0, pressure, &current)?;
+                    if (held.of(&props) - target).abs() <= held.rounding(self, low.0) {
+                        return self.single_state(props, liquid_side(low.0));
+                    }
                     if held.of(&props) > target {
                         return Err(out_of_range("below", low.0));
                     }
@@ -478,7 +525,7 @@ impl Fluid {
             }
             let converged = (next - t).abs() <= 1e-12 * t;
             current = self.properties_near(region, next, pressure, &current)?;
-            if converged || (held.of(&current) - target).abs() <= 1e-13 * target.abs().max(self.gas_constant * next) {
+            if converged || (held.of(&current) - target).abs() <= 0.1 * held.rounding(self, next) {
                 let liquid_side = matches!(region, Region::Liquid)
                     || (region == Region::AboveCritical && next < self.critical.temperature);
                 return self.single_state(current, liquid_side);

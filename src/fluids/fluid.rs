@@ -74,6 +74,8 @@ pub struct Fluid {
     /// A density no fluid state reaches (five times the saturated-liquid density at
     /// the triple point, kg/m³); density searches stop there.
     pub density_ceiling: f64,
+    /// The range of pressures over which saturation is solved, Pa.
+    pub(crate) saturation_pressures: (f64, f64),
     /// Ancillary equations and melting line.
     pub ancillaries: Ancillaries,
     pub(crate) ideal: IdealPart,
@@ -155,6 +157,7 @@ impl Fluid {
             density_ceiling: 5.0
                 * data.ancillaries.liquid_density.value(data.triple.temperature_k)
                 * m,
+            saturation_pressures: (0.0, 0.0),
             ancillaries: Ancillaries {
                 bubble_pressure: data.ancillaries.bubble_pressure,
                 dew_pressure: data.ancillaries.dew_pressure,
@@ -166,6 +169,9 @@ impl Fluid {
             residual,
         };
         let mut fluid = fluid;
+        fluid.saturation_pressures = fluid.compute_saturation_pressure_range().map_err(|e| {
+            bad(format!("cannot solve the saturation range: {e}"))
+        })?;
         if fluid.reference_state == ReferenceStateName::NormalBoilingPoint {
             fluid.set_normal_boiling_point_reference().map_err(|e| {
                 bad(format!("cannot set the normal-boiling-point reference: {e}"))
@@ -349,7 +355,7 @@ impl Fluid {
                 format!("valid above 0 and up to {} MPa", self.pressure_max / 1e6),
             ));
         }
-        if let Some(melting) = self.ancillaries.melting.pressure(temperature) {
+        if let Some(melting) = self.melting_pressure(temperature) {
             if pressure > melting * (1.0 + 1e-6) {
                 return Err(out(
                     format!("p = {:.6} MPa at T = {temperature:.4} K", pressure / 1e6),
@@ -363,15 +369,28 @@ impl Fluid {
         Ok(())
     }
 
-    /// The melting temperature at pressure p (K), where the melting line covers p.
+    /// The melting pressure at T (Pa), where the melting line covers T. The line
+    /// starts at the triple point; where its data start a hair above it, its first
+    /// value holds down to the triple point.
+    pub fn melting_pressure(&self, temperature: f64) -> Option<f64> {
+        let line = &self.ancillaries.melting;
+        line.pressure(temperature.max(line.temperature_min()))
+    }
+
+    /// The melting temperature at pressure p (K): the coldest fluid temperature at
+    /// that pressure. `None` below the triple-point pressure's melting value; the top
+    /// of the line's data where p lies above the line's highest pressure.
     pub fn melting_temperature(&self, pressure: f64) -> Option<f64> {
         let line = &self.ancillaries.melting;
-        let low = self.triple_temperature;
+        let low = self.triple_temperature.max(line.temperature_min());
         let high = line.temperature_max();
         let f = |t: f64| line.pressure(t).map(|pm| pm - pressure);
         let (fl, fh) = (f(low)?, f(high)?);
-        if fl > 0.0 || fh < 0.0 {
+        if fl > 0.0 {
             return None;
+        }
+        if fh < 0.0 {
+            return Some(high);
         }
         let (mut a, mut b) = (low, high);
         for _ in 0..200 {

@@ -22,10 +22,11 @@ pub struct Saturation {
 pub const SATURATION_ITERATION_CAP: usize = 60;
 
 impl Fluid {
-    /// The highest temperature at which saturation is solved, K: just below the
-    /// critical temperature, where the two phases become one.
+    /// The highest temperature at which saturation is solved, K: 0.9999 Tc. Closer
+    /// to the critical point the two phases differ too little for a robust solve;
+    /// states there are treated as single-phase.
     pub fn saturation_temperature_max(&self) -> f64 {
-        self.critical.temperature * (1.0 - 2e-6)
+        self.critical.temperature * (1.0 - 1e-4)
     }
 
     fn check_saturation_temperature(&self, temperature: f64) -> Result<()> {
@@ -69,6 +70,7 @@ impl Fluid {
         let mut liquid = seeds.0 / rho_r;
         let mut vapour = seeds.1 / rho_r;
         let mut residual = f64::INFINITY;
+        let mut first_residual = f64::INFINITY;
         for iteration in 0..SATURATION_ITERATION_CAP {
             let rl = self.residual.evaluate(&factors, liquid);
             let rv = self.residual.evaluate(&factors, vapour);
@@ -81,6 +83,12 @@ impl Fluid {
             let kl_d = 2.0 * rl.alpha_delta + liquid * rl.alpha_delta_delta + 1.0 / liquid;
             let kv_d = 2.0 * rv.alpha_delta + vapour * rv.alpha_delta_delta + 1.0 / vapour;
             residual = (jv - jl).abs() / jv.abs() + (kv - kl).abs();
+            if iteration == 0 {
+                first_residual = residual;
+            } else if residual > 1.0 && residual > 1e3 * first_residual {
+                // Thrown far off: the seeds were outside Newton's reach.
+                break;
+            }
             let det = jv_d * kl_d - jl_d * kv_d;
             let step_l = ((kv - kl) * jv_d - (jv - jl) * kv_d) / det;
             let step_v = ((kv - kl) * jl_d - (jv - jl) * kl_d) / det;
@@ -97,15 +105,17 @@ impl Fluid {
             if !(next_l.is_finite() && next_v.is_finite()) {
                 break;
             }
-            let small = (next_l - liquid).abs() <= 1e-13 * liquid
-                && (next_v - vapour).abs() <= 1e-13 * vapour;
+            // Near the critical point rounding keeps the steps from shrinking below
+            // about 1e-12; the residual is then the better test.
+            let small = (next_l - liquid).abs() <= 1e-12 * liquid
+                && (next_v - vapour).abs() <= 1e-12 * vapour;
             liquid = next_l;
             vapour = next_v;
             if (liquid - vapour).abs() < 1e-7 * liquid {
                 // Collapsed onto the trivial solution δ′ = δ″.
                 break;
             }
-            if small || (residual < 1e-15 && iteration > 0) {
+            if small || (residual < 1e-13 && iteration > 0) {
                 let p = self.pressure_and_slope(&factors, temperature, vapour * rho_r).0;
                 let pl = self.pressure_and_slope(&factors, temperature, liquid * rho_r).0;
                 let rt_scale = 1e-12 * liquid * rho_r * self.gas_constant * temperature;
@@ -152,16 +162,26 @@ impl Fluid {
         })
     }
 
-    /// The range of pressures over which saturation exists, Pa.
+    /// The range of pressures over which saturation is solved, Pa: from the triple
+    /// point to the saturation pressure at [`Fluid::saturation_temperature_max`] (for
+    /// a pseudo-pure fluid, where both bubble and dew temperatures exist: up to the
+    /// dew pressure there).
     pub fn saturation_pressure_range(&self) -> (f64, f64) {
+        self.saturation_pressures
+    }
+
+    /// Computes [`Fluid::saturation_pressure_range`] once, when the fluid is built.
+    pub(crate) fn compute_saturation_pressure_range(&self) -> Result<(f64, f64)> {
         let high = self.saturation_temperature_max();
         if self.pseudo_pure {
-            (
+            Ok((
                 self.ancillaries.dew_pressure.value(self.triple_temperature),
-                self.ancillaries.bubble_pressure.value(high),
-            )
+                self.ancillaries.dew_pressure.value(high),
+            ))
         } else {
-            (self.triple_pressures.1.min(self.triple_pressures.0), self.critical.pressure)
+            let top = self.saturation_at_temperature(high)?.vapour.pressure;
+            let bottom = self.saturation_at_temperature(self.triple_temperature)?;
+            Ok((bottom.vapour.pressure, top))
         }
     }
 
@@ -223,13 +243,21 @@ impl Fluid {
             .ancillaries
             .bubble_pressure
             .temperature_at(pressure, t_low, t_high);
-        let mut seeds = (
-            self.ancillary_liquid_density(temperature),
-            self.ancillary_vapour_density(temperature),
-        );
+        let ancillary = |t: f64| {
+            (
+                self.ancillary_liquid_density(t),
+                self.ancillary_vapour_density(t),
+            )
+        };
+        let mut seeds = ancillary(temperature);
         let mut residual = f64::INFINITY;
         for _ in 0..SATURATION_ITERATION_CAP {
-            let saturation = self.pure_saturation_at_temperature(temperature, seeds)?;
+            // Seeded from the last solution, scaled along the ancillary curves; should
+            // that fail (close to the critical point), from the ancillaries alone.
+            let saturation = match self.pure_saturation_at_temperature(temperature, seeds) {
+                Ok(s) => s,
+                Err(_) => self.pure_saturation_at_temperature(temperature, ancillary(temperature))?,
+            };
             let p = saturation.liquid.pressure;
             residual = (p / pressure).ln();
             let factors = self.tau_factors(temperature);
@@ -246,8 +274,13 @@ impl Fluid {
                 break;
             }
             let next = (temperature + step).clamp(t_low * (1.0 - 1e-9), t_high);
-            // Seed the next densities along the saturation line.
-            seeds = (saturation.liquid.density, saturation.vapour.density);
+            // Seed the next densities along the saturation line: the ancillary values
+            // at the new temperature, corrected by their error at this one.
+            let (now, then) = (ancillary(temperature), ancillary(next));
+            seeds = (
+                saturation.liquid.density * then.0 / now.0,
+                saturation.vapour.density * then.1 / now.1,
+            );
             if next == temperature {
                 break;
             }

@@ -1,0 +1,127 @@
+//! Round trips over the whole validity range of every fluid: a state from (T, p) or
+//! (T, quality) gives h and s; the (p, h) and (p, s) flashes must recover T within
+//! 1e-7 K and the quality within 1e-8. States are drawn by proptest.
+
+use cryochain::fluids::{self, Fluid};
+use proptest::prelude::*;
+
+fn fluid_at(index: usize) -> &'static Fluid {
+    let names = fluids::names();
+    fluids::fluid(names[index % names.len()]).unwrap()
+}
+
+/// Maps u ∈ [0, 1] onto a pressure, log-uniform from 100 Pa to the highest pressure
+/// valid at T (the equation's limit, or just under the melting pressure).
+fn pressure_for(fluid: &Fluid, temperature: f64, u: f64) -> f64 {
+    let mut top = fluid.pressure_max;
+    if let Some(melting) = fluid.melting_pressure(temperature) {
+        top = top.min(0.999 * melting);
+    }
+    let low: f64 = 100.0;
+    (low.ln() + u * (top.ln() - low.ln())).exp()
+}
+
+fn check_recovers(fluid: &'static Fluid, temperature: f64, pressure: f64) -> Result<(), TestCaseError> {
+    let state = match fluid.state_tp(temperature, pressure) {
+        Ok(s) => s,
+        // Exactly on the saturation line: (T, p) does not fix a state.
+        Err(cryochain::Error::ImpossibleState { .. }) => return Ok(()),
+        Err(e) => return Err(TestCaseError::fail(format!("{} T={temperature} p={pressure}: {e}", fluid.name))),
+    };
+    let from_h = fluid
+        .state_ph(state.pressure, state.enthalpy)
+        .map_err(|e| TestCaseError::fail(format!("{} (p,h) from T={temperature} p={pressure}: {e}", fluid.name)))?;
+    let from_s = fluid
+        .state_ps(state.pressure, state.entropy)
+        .map_err(|e| TestCaseError::fail(format!("{} (p,s) from T={temperature} p={pressure}: {e}", fluid.name)))?;
+    prop_assert!(
+        (from_h.temperature - temperature).abs() < 1e-7,
+        "{} (p,h) T={} vs {temperature} at p={pressure}",
+        fluid.name,
+        from_h.temperature
+    );
+    prop_assert!(
+        (from_s.temperature - temperature).abs() < 1e-7,
+        "{} (p,s) T={} vs {temperature} at p={pressure}",
+        fluid.name,
+        from_s.temperature
+    );
+    // Air, whose bubble and dew lines are apart, has two-phase (T, p) states.
+    prop_assert_eq!(from_h.is_two_phase(), state.is_two_phase());
+    prop_assert_eq!(from_s.is_two_phase(), state.is_two_phase());
+    if let Some(quality) = state.quality {
+        prop_assert!((from_h.quality.unwrap() - quality).abs() < 1e-8);
+        prop_assert!((from_s.quality.unwrap() - quality).abs() < 1e-8);
+    }
+    Ok(())
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig { cases: 4000, ..ProptestConfig::default() })]
+
+    #[test]
+    fn single_phase_round_trips(index in 0usize..10, ut in 0.0f64..=1.0, up in 0.0f64..=1.0) {
+        let fluid = fluid_at(index);
+        let temperature = fluid.temperature_min + ut * (fluid.temperature_max - fluid.temperature_min);
+        let pressure = pressure_for(fluid, temperature, up);
+        check_recovers(fluid, temperature, pressure)?;
+    }
+
+    /// The cold end, where cryogenic cycles live, sampled more densely: T from the
+    /// triple point to three times the critical temperature.
+    #[test]
+    fn cold_single_phase_round_trips(index in 0usize..10, ut in 0.0f64..=1.0, up in 0.0f64..=1.0) {
+        let fluid = fluid_at(index);
+        let high = (3.0 * fluid.critical.temperature).min(fluid.temperature_max);
+        let temperature = fluid.temperature_min + ut * (high - fluid.temperature_min);
+        let pressure = pressure_for(fluid, temperature, up);
+        check_recovers(fluid, temperature, pressure)?;
+    }
+
+    #[test]
+    fn two_phase_round_trips(index in 0usize..10, ut in 0.0f64..=1.0, quality in 0.0f64..=1.0) {
+        let fluid = fluid_at(index);
+        // Up to 0.999 Tc (air, whose bubble and dew lines end apart, to 0.99 Tc).
+        let high = if fluid.pseudo_pure { 0.99 } else { 0.999 } * fluid.critical.temperature;
+        // Air's bubble and dew lines are apart: near its triple point only the dew
+        // side exists, so its two-phase range starts at the dew temperature of the
+        // triple-point bubble pressure.
+        let low = if fluid.pseudo_pure {
+            fluid.saturation_at_pressure(fluid.triple_pressures.0).unwrap().vapour.temperature
+        } else {
+            fluid.triple_temperature
+        };
+        let temperature = low + ut * (high - low);
+        let state = fluid.state_t_quality(temperature, quality)
+            .map_err(|e| TestCaseError::fail(format!("{} T={temperature} x={quality}: {e}", fluid.name)))?;
+        for (label, back) in [
+            ("(p,h)", fluid.state_ph(state.pressure, state.enthalpy)),
+            ("(p,s)", fluid.state_ps(state.pressure, state.entropy)),
+        ] {
+            let back = back.map_err(|e| TestCaseError::fail(format!("{} {label} from T={temperature} x={quality}: {e}", fluid.name)))?;
+            prop_assert!((back.temperature - temperature).abs() < 1e-7,
+                "{} {label} T={} vs {temperature} (x={quality})", fluid.name, back.temperature);
+            let x = back.quality.unwrap_or(if back.enthalpy < state.enthalpy { 0.0 } else { 1.0 });
+            prop_assert!((x - quality).abs() < 1e-8,
+                "{} {label} x={x} vs {quality} at T={temperature}", fluid.name);
+        }
+    }
+}
+
+/// (T, ρ) flashes agree with (T, p) ones, including in two phase.
+#[test]
+fn temperature_density_flash_agrees() {
+    for name in fluids::names() {
+        let fluid = fluids::fluid(name).unwrap();
+        let tc = fluid.critical.temperature;
+        for (t, p) in [(0.7 * tc, fluid.critical.pressure * 2.0), (1.5 * tc, 1e5), (0.8 * tc, 1e3)] {
+            let a = fluid.state_tp(t, p).unwrap();
+            let b = fluid.state_t_rho(t, a.density).unwrap();
+            assert!((b.pressure - p).abs() < 1e-8 * p, "{name} {t} {p}");
+            assert_eq!(a.phase, b.phase, "{name} {t} {p}");
+        }
+        let wet = fluid.state_t_quality(0.8 * tc, 0.3).unwrap();
+        let back = fluid.state_t_rho(0.8 * tc, wet.density).unwrap();
+        assert!((back.quality.unwrap() - 0.3).abs() < 1e-9, "{name}: {:?}", back.quality);
+    }
+}
