@@ -423,8 +423,13 @@ impl Fluid {
         let drho_dt = -near.dp_dt / near.dp_drho;
         let guess = near.density + drho_dt * (temperature - near.temperature);
         let guess = if guess > 0.0 { guess } else { near.density };
-        let rho =
-            self.density_on_branch(&factors, temperature, pressure, branch, Some(guess), None)?;
+        // A guess extrapolated far along a steep saturated-liquid curve can fall outside
+        // Newton's reach; the ancillary seeds are the fallback.
+        let rho = match self.density_on_branch(&factors, temperature, pressure, branch, Some(guess), None)
+        {
+            Ok(rho) => rho,
+            Err(_) => self.density_on_branch(&factors, temperature, pressure, branch, None, None)?,
+        };
         Ok(self.properties_with(&factors, temperature, rho))
     }
 
