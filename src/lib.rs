@@ -3,8 +3,10 @@
 //!
 //! The library never prints; the `cryochain` binary decides what the user sees.
 
+pub mod batch;
 pub mod error;
 pub mod fluids;
 pub mod quantity;
+pub mod report;
 
 pub use error::{Error, Result};

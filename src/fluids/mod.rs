@@ -12,11 +12,13 @@ pub mod flash;
 mod fluid;
 pub mod helmholtz;
 pub mod saturation;
+pub mod spec;
 pub mod state;
 
 pub use density::Branch;
 pub use fluid::{Fluid, Point, Properties};
 pub use saturation::Saturation;
+pub use spec::{Property, Spec};
 pub use state::{Phase, SaturatedPair, State};
 
 use crate::error::{Error, Result};

@@ -63,17 +63,26 @@ def load_citations():
         CITATIONS[key] = fields
 
 
+def clean(text):
+    """BibTeX accents to plain Unicode."""
+    return text.replace('\\"u', "ü").replace('\\"o', "ö").replace('\\"a', "ä")
+
+
 def citation(key):
     parts = []
     for k in key.split(","):
-        f = CITATIONS.get(k.strip(), {})
+        f = dict(CITATIONS.get(k.strip(), {}))
+        if "note" in f:
+            # Notes say where the library got unpublished coefficients; the
+            # citation needs only that the work is unpublished.
+            f["note"] = "unpublished manuscript"
         pieces = [f.get("author", ""), f'"{f.get("title", "")}"', f.get("journal", f.get("note", "")),
                   f.get("volume", ""), f.get("pages", ""), f"({f.get('year', '')})"]
         doi = f.get("doi")
         text = ", ".join(p for p in pieces if p)
         if doi:
             text += f", doi:{doi}"
-        parts.append(text)
+        parts.append(clean(text))
     return " ; ".join(parts)
 
 

@@ -1,0 +1,156 @@
+//! The command line: clap definitions, dispatch, and the one place where errors
+//! become messages and exit codes. Results go to stdout; progress and diagnostics
+//! to stderr.
+
+use clap::{Parser, Subcommand};
+use cryochain::error::Error;
+use cryochain::fluids::{self, Spec};
+use cryochain::report;
+use std::path::PathBuf;
+
+/// Exit codes, documented in docs/cli.md.
+pub mod exit {
+    /// Success.
+    pub const OK: i32 = 0;
+    /// Bad input: arguments, files, units, names, states outside a range.
+    pub const INPUT: i32 = 1;
+    /// A solver did not converge.
+    pub const NOT_CONVERGED: i32 = 3;
+    /// A file could not be read or written.
+    pub const IO: i32 = 4;
+}
+
+/// cryochain: plans Linde-Hampson liquefaction cycles on reference-quality
+/// real-fluid properties.
+#[derive(Debug, Parser)]
+#[command(name = "cryochain", version, about, long_about = None)]
+pub struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Debug, Subcommand)]
+enum Command {
+    /// List the built-in fluids with their sources, critical and triple points and ranges.
+    Fluids {
+        /// Print JSON instead of a table.
+        #[arg(long)]
+        json: bool,
+    },
+    /// Compute one state from two specifications, such as T=80K p=20bar.
+    State {
+        /// Fluid name (see `cryochain fluids`).
+        fluid: String,
+        /// First specification: T=…, p=…, h=…, s=…, x=… or rho=…, with units.
+        first: String,
+        /// Second specification.
+        second: String,
+        /// Print JSON with SI keys instead of a table.
+        #[arg(long)]
+        json: bool,
+    },
+    /// Property table in batch: a CSV of input pairs in, a CSV of properties out.
+    Table {
+        /// Input CSV (see docs/batch-tables.md).
+        input: PathBuf,
+        /// Fluid for rows without a `fluid` column.
+        #[arg(long)]
+        fluid: Option<String>,
+        /// Write the output here instead of stdout.
+        #[arg(long, short)]
+        output: Option<PathBuf>,
+    },
+}
+
+/// A failure with its exit code.
+pub struct Failure {
+    /// Message for stderr.
+    pub message: String,
+    /// Process exit code.
+    pub code: i32,
+}
+
+impl From<Error> for Failure {
+    fn from(error: Error) -> Failure {
+        let code = match error {
+            Error::NoConvergence { .. } => exit::NOT_CONVERGED,
+            _ => exit::INPUT,
+        };
+        Failure {
+            message: error.to_string(),
+            code,
+        }
+    }
+}
+
+/// Runs the parsed command; returns what to print on stdout.
+pub fn run(cli: Cli) -> Result<String, Failure> {
+    match cli.command {
+        Command::Fluids { json } => {
+            let all = fluids::all()?;
+            Ok(if json {
+                report::fluids::json(&all)
+            } else {
+                report::fluids::text(&all)
+            })
+        }
+        Command::State {
+            fluid,
+            first,
+            second,
+            json,
+        } => {
+            let fluid = fluids::fluid(&fluid)?;
+            let state = fluid.state_from(Spec::parse(&first)?, Spec::parse(&second)?)?;
+            Ok(if json {
+                report::state::json(&state)
+            } else {
+                report::state::text(&state)
+            })
+        }
+        Command::Table {
+            input,
+            fluid,
+            output,
+        } => {
+            let name = input.display().to_string();
+            let text = std::fs::read_to_string(&input).map_err(|e| Failure {
+                message: format!("cannot read {name}: {e}"),
+                code: exit::IO,
+            })?;
+            let outcome = cryochain::batch::run(&text, &name, fluid.as_deref())?;
+            for (_, message) in &outcome.failures {
+                eprintln!("{name}: {message}");
+            }
+            let result = match output {
+                Some(path) => {
+                    std::fs::write(&path, &outcome.csv).map_err(|e| Failure {
+                        message: format!("cannot write {}: {e}", path.display()),
+                        code: exit::IO,
+                    })?;
+                    eprintln!(
+                        "wrote {} rows to {}",
+                        outcome.rows,
+                        path.display()
+                    );
+                    String::new()
+                }
+                None => outcome.csv,
+            };
+            if outcome.failures.is_empty() {
+                Ok(result)
+            } else {
+                // Print what was computed, then fail with the count.
+                print!("{result}");
+                Err(Failure {
+                    message: format!(
+                        "{} of {} rows failed (their reasons are in the error column)",
+                        outcome.failures.len(),
+                        outcome.rows
+                    ),
+                    code: exit::INPUT,
+                })
+            }
+        }
+    }
+}

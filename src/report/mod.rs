@@ -1,0 +1,8 @@
+//! Turning results into text people read and JSON or CSV that programs read. The
+//! report never computes thermodynamics beyond reading states.
+
+pub mod fluids;
+pub mod state;
+pub mod table;
+
+pub use table::TextTable;
