@@ -22,45 +22,62 @@ impl AncillaryEquation {
         }
     }
 
-    /// The temperature at which the equation gives `value`, by bisection on the
-    /// monotonic pressure ancillary between `low` and `high` (K).
+    /// ln of the value and its temperature derivative d ln(value)/dT, for the
+    /// exponential form.
+    pub fn log_value_and_slope(&self, t: f64) -> (f64, f64) {
+        let tr = self.reducing_temperature_k;
+        let theta = (1.0 - t / tr).max(1e-300);
+        let mut sum = 0.0;
+        let mut dsum_dtheta = 0.0;
+        for (n, e) in self.n.iter().zip(&self.t) {
+            let term = n * theta.powf(*e);
+            sum += term;
+            dsum_dtheta += term * e / theta;
+        }
+        // dθ/dT = −1/Tr.
+        let (value, slope) = if self.divide_by_reduced_temperature {
+            let factor = tr / t;
+            (factor * sum, -factor * sum / t - factor * dsum_dtheta / tr)
+        } else {
+            (sum, -dsum_dtheta / tr)
+        };
+        (self.reducing_value.ln() + value, slope)
+    }
+
+    /// The temperature at which the (exponential, monotonic) pressure equation gives
+    /// `value`, between `low` and `high` (K): Newton on ln p from a start that is
+    /// linear in 1/T between the ends, kept inside the bracket.
     pub fn temperature_at(&self, value: f64, low: f64, high: f64) -> f64 {
-        let (mut a, mut b) = (low, high);
         let target = value.ln();
-        let f = |t: f64| self.value(t).ln() - target;
-        let fa = f(a);
-        if fa > 0.0 {
-            return a;
+        let (ln_low, _) = self.log_value_and_slope(low);
+        let (ln_high, _) = self.log_value_and_slope(high);
+        if target <= ln_low {
+            return low;
         }
-        if f(b) < 0.0 {
-            return b;
+        if target >= ln_high {
+            return high;
         }
-        // Secant-bisection hybrid (Illinois); the function is smooth and monotonic.
-        let (mut ya, mut yb) = (fa, f(b));
-        let mut side = 0;
-        for _ in 0..100 {
-            let c = (a * yb - b * ya) / (yb - ya);
-            let yc = f(c);
-            if yc.abs() < 1e-15 || (b - a).abs() < 1e-13 * b {
-                return c;
-            }
-            if (yc < 0.0) == (ya < 0.0) {
-                a = c;
-                ya = yc;
-                if side == -1 {
-                    yb *= 0.5;
-                }
-                side = -1;
+        let (mut a, mut b) = (low, high);
+        let fraction = (target - ln_low) / (ln_high - ln_low);
+        let mut t = 1.0 / (1.0 / low + fraction * (1.0 / high - 1.0 / low));
+        for _ in 0..60 {
+            let (ln_p, slope) = self.log_value_and_slope(t);
+            let f = ln_p - target;
+            if f < 0.0 {
+                a = t;
             } else {
-                b = c;
-                yb = yc;
-                if side == 1 {
-                    ya *= 0.5;
-                }
-                side = 1;
+                b = t;
             }
+            let mut next = t - f / slope;
+            if !(next > a && next < b) {
+                next = 0.5 * (a + b);
+            }
+            if (next - t).abs() <= 1e-14 * t {
+                return next;
+            }
+            t = next;
         }
-        0.5 * (a + b)
+        t
     }
 }
 

@@ -151,6 +151,7 @@ pub struct ResidualPart {
     power: Vec<PowerTerm>,
     gaussian: Vec<GaussianTerm>,
     largest_l: usize,
+    largest_d: usize,
 }
 
 /// The τ-dependent factors of every residual term at one τ.
@@ -171,8 +172,10 @@ impl TauFactors {
     }
 }
 
-/// The largest l handled from the table of powers; larger ones are computed directly.
+/// Powers δ^l and δ^d below these bounds come from tables; larger ones are computed
+/// directly.
 const L_TABLE: usize = 8;
+const D_TABLE: usize = 16;
 
 fn whole(x: f64, what: &str) -> Result<i32, String> {
     if x.fract() == 0.0 && (0.0..=64.0).contains(&x) {
@@ -195,9 +198,11 @@ impl ResidualPart {
                     for i in 0..n.len() {
                         let l_whole = whole(l[i], "exponential density")?;
                         part.largest_l = part.largest_l.max(l_whole as usize);
+                        let d_whole = whole(d[i], "density")?;
+                        part.largest_d = part.largest_d.max(d_whole as usize);
                         part.power.push(PowerTerm {
                             n: n[i],
-                            d: whole(d[i], "density")?,
+                            d: d_whole,
                             t: t[i],
                             l: l_whole,
                         });
@@ -222,9 +227,11 @@ impl ResidualPart {
                         gamma.len(),
                     ])?;
                     for i in 0..n.len() {
+                        let d_whole = whole(d[i], "density")?;
+                        part.largest_d = part.largest_d.max(d_whole as usize);
                         part.gaussian.push(GaussianTerm {
                             n: n[i],
-                            d: whole(d[i], "density")?,
+                            d: d_whole,
                             t: t[i],
                             eta: eta[i],
                             epsilon: epsilon[i],
@@ -296,6 +303,18 @@ impl ResidualPart {
             delta_l[l] = value;
             exp_l[l] = (-value).exp();
         }
+        // δ^d for every d that occurs.
+        let mut delta_d = [1.0f64; D_TABLE];
+        for d in 1..=self.largest_d.min(D_TABLE - 1) {
+            delta_d[d] = delta_d[d - 1] * delta;
+        }
+        let power_of = |d: i32| {
+            if (d as usize) < D_TABLE {
+                delta_d[d as usize]
+            } else {
+                delta.powi(d)
+            }
+        };
         let inv_delta = 1.0 / delta;
         let mut out = ResidualDerivatives::default();
         for (term, f) in self.power.iter().zip(&factors.power) {
@@ -307,7 +326,7 @@ impl ResidualPart {
                 let dl = delta.powi(term.l);
                 (dl, (-dl).exp())
             };
-            let shape = delta.powi(term.d) * el;
+            let shape = power_of(term.d) * el;
             let d = term.d as f64;
             let l = term.l as f64;
             let k = d - l * dl;
@@ -323,7 +342,7 @@ impl ResidualPart {
         for (term, f) in self.gaussian.iter().zip(&factors.gaussian) {
             let offset = delta - term.epsilon;
             let d = term.d as f64;
-            let base = f[0] * delta.powi(term.d) * (-term.eta * offset * offset).exp();
+            let base = f[0] * power_of(term.d) * (-term.eta * offset * offset).exp();
             let a = d * inv_delta - 2.0 * term.eta * offset;
             out.alpha += base;
             out.alpha_delta += base * a;
