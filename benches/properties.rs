@@ -31,7 +31,10 @@ fn states(fluid: &Fluid) -> Vec<(f64, f64)> {
 fn bench_fluid(c: &mut Criterion, name: &str) {
     let fluid = fluids::fluid(name).unwrap();
     let tp = states(fluid);
-    let built: Vec<_> = tp.iter().map(|&(t, p)| fluid.state_tp(t, p).unwrap()).collect();
+    let built: Vec<_> = tp
+        .iter()
+        .map(|&(t, p)| fluid.state_tp(t, p).unwrap())
+        .collect();
     // (p, h) and (p, s) targets include two-phase states at 1 atm.
     let mut ph: Vec<(f64, f64)> = built.iter().map(|s| (s.pressure, s.enthalpy)).collect();
     let mut ps: Vec<(f64, f64)> = built.iter().map(|s| (s.pressure, s.entropy)).collect();
@@ -77,7 +80,11 @@ fn bench_fluid(c: &mut Criterion, name: &str) {
     group.bench_function("saturation from T", |b| {
         b.iter(|| {
             i = (i + 1) % temperatures.len();
-            black_box(fluid.saturation_at_temperature(black_box(temperatures[i])).unwrap())
+            black_box(
+                fluid
+                    .saturation_at_temperature(black_box(temperatures[i]))
+                    .unwrap(),
+            )
         })
     });
     group.finish();

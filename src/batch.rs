@@ -191,7 +191,11 @@ mod tests {
         assert_eq!(out.rows, 3);
         assert_eq!(out.failures.len(), 1);
         assert_eq!(out.failures[0].0, 3);
-        assert!(out.failures[0].1.contains("outside the range"), "{:?}", out.failures);
+        assert!(
+            out.failures[0].1.contains("outside the range"),
+            "{:?}",
+            out.failures
+        );
     }
 
     #[test]

@@ -128,11 +128,7 @@ pub fn run(cli: Cli) -> Result<String, Failure> {
                         message: format!("cannot write {}: {e}", path.display()),
                         code: exit::IO,
                     })?;
-                    eprintln!(
-                        "wrote {} rows to {}",
-                        outcome.rows,
-                        path.display()
-                    );
+                    eprintln!("wrote {} rows to {}", outcome.rows, path.display());
                     String::new()
                 }
                 None => outcome.csv,

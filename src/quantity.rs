@@ -34,9 +34,13 @@ impl Dimension {
     /// A plain-words name with typical examples, for error messages.
     pub fn describe(self) -> &'static str {
         match self {
-            Dimension::Temperature => "a temperature such as 300 K, -196 °C (or degC), 70 °F or 540 °R",
+            Dimension::Temperature => {
+                "a temperature such as 300 K, -196 °C (or degC), 70 °F or 540 °R"
+            }
             Dimension::TemperatureDifference => "a temperature difference such as 2 K",
-            Dimension::Pressure => "a pressure such as 20 bar, 101.325 kPa, 3 MPa, 1 atm or 300 psi",
+            Dimension::Pressure => {
+                "a pressure such as 20 bar, 101.325 kPa, 3 MPa, 1 atm or 300 psi"
+            }
             Dimension::MassFlow => "a mass flow such as 1.5 kg/s, 20 g/s, 300 kg/h or 5 t/d",
             Dimension::Power => "a power such as 250 kW, 1.2 MW or 800 W",
             Dimension::SpecificEnergy => "an energy per mass such as 450 kJ/kg or 2.1e5 J/kg",
@@ -308,7 +312,10 @@ mod tests {
 
     #[test]
     fn differences_have_no_offset() {
-        assert_eq!(parse("2 °C", Dimension::TemperatureDifference).unwrap(), 2.0);
+        assert_eq!(
+            parse("2 °C", Dimension::TemperatureDifference).unwrap(),
+            2.0
+        );
         assert_eq!(parse("2 K", Dimension::TemperatureDifference).unwrap(), 2.0);
     }
 
@@ -328,9 +335,15 @@ mod tests {
             assert_eq!(parse(s, Dimension::SpecificEntropy).unwrap(), 5000.0, "{s}");
         }
         for s in ["70 kg/m3", "70 kg/m^3", "70 kg/m³", "0.07 g/cm3"] {
-            assert!((parse(s, Dimension::Density).unwrap() - 70.0).abs() < 1e-9, "{s}");
+            assert!(
+                (parse(s, Dimension::Density).unwrap() - 70.0).abs() < 1e-9,
+                "{s}"
+            );
         }
-        assert_eq!(parse("1.2e5 J/kg", Dimension::SpecificEnergy).unwrap(), 1.2e5);
+        assert_eq!(
+            parse("1.2e5 J/kg", Dimension::SpecificEnergy).unwrap(),
+            1.2e5
+        );
     }
 
     #[test]

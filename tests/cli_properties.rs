@@ -113,22 +113,43 @@ fn fluids_lists_every_fluid_with_its_source() {
 #[test]
 fn bad_input_is_a_clear_error() {
     let cases: [(&[&str], &str); 10] = [
-        (&["state", "unobtainium", "T=80K", "p=1bar"], "known fluids: nitrogen"),
+        (
+            &["state", "unobtainium", "T=80K", "p=1bar"],
+            "known fluids: nitrogen",
+        ),
         (&["state", "nitrogen", "T=80", "p=1bar"], "has no unit"),
         (&["state", "nitrogen", "T=80K", "p=1kg"], "unknown unit"),
-        (&["state", "nitrogen", "T=80K", "p=20K"], "unit of temperature"),
-        (&["state", "nitrogen", "T=5000K", "p=1bar"], "valid from 63.151 K to 2000 K"),
-        (&["state", "nitrogen", "T=80K", "p=3000MPa"], "up to 2200 MPa"),
-        (&["state", "nitrogen", "T=80K", "h=10kJ/kg"], "not supported"),
+        (
+            &["state", "nitrogen", "T=80K", "p=20K"],
+            "unit of temperature",
+        ),
+        (
+            &["state", "nitrogen", "T=5000K", "p=1bar"],
+            "valid from 63.151 K to 2000 K",
+        ),
+        (
+            &["state", "nitrogen", "T=80K", "p=3000MPa"],
+            "up to 2200 MPa",
+        ),
+        (
+            &["state", "nitrogen", "T=80K", "h=10kJ/kg"],
+            "not supported",
+        ),
         (&["state", "nitrogen", "T=80K", "x=1.5"], "between 0 and 1"),
-        (&["state", "nitrogen", "T=200K", "x=0.5"], "critical temperature"),
+        (
+            &["state", "nitrogen", "T=200K", "x=0.5"],
+            "critical temperature",
+        ),
         (&["state", "nitrogen", "T80K", "p=1bar"], "key=value"),
     ];
     for (args, expected) in cases {
         let (code, out, err) = cryochain(args);
         assert_eq!(code, 1, "{args:?}: {err}");
         assert!(out.is_empty(), "{args:?} printed {out}");
-        assert!(err.contains(expected), "{args:?}: '{err}' lacks '{expected}'");
+        assert!(
+            err.contains(expected),
+            "{args:?}: '{err}' lacks '{expected}'"
+        );
         assert!(!err.contains("panicked"), "{args:?}: {err}");
     }
 }
@@ -139,7 +160,11 @@ fn batch_table_round_trip_through_files() {
     std::fs::create_dir_all(&dir).unwrap();
     let input = dir.join("in.csv");
     let output = dir.join("out.csv");
-    std::fs::write(&input, "fluid,T [K],p [bar]\nnitrogen,80,1\nhydrogen,30,20\nhelium,3000,1\n").unwrap();
+    std::fs::write(
+        &input,
+        "fluid,T [K],p [bar]\nnitrogen,80,1\nhydrogen,30,20\nhelium,3000,1\n",
+    )
+    .unwrap();
     let (code, _, err) = cryochain(&[
         "table",
         input.to_str().unwrap(),

@@ -9,6 +9,9 @@
 //! differently. A difference is compared relative to its own size, with a floor of
 //! R·Tc (enthalpy) or R (entropy) so that a difference near zero is not divided by ~0.
 
+// `!(err <= tol)` also fails on NaN, which `err > tol` would let through.
+#![allow(clippy::neg_cmp_op_on_partial_ord)]
+
 mod common;
 use common::{column, read_csv, relative};
 use cryochain::fluids;
@@ -55,9 +58,12 @@ fn single_phase_states_match_coolprop() {
                 continue;
             }
         };
-        let anchor = *anchors
-            .entry(name.clone())
-            .or_insert((state.enthalpy, state.entropy, num(ch), num(cs)));
+        let anchor = *anchors.entry(name.clone()).or_insert((
+            state.enthalpy,
+            state.entropy,
+            num(ch),
+            num(cs),
+        ));
         let r = fluid.gas_constant;
         let tc = fluid.critical.temperature;
         let dh_ours = state.enthalpy - anchor.0;
@@ -71,10 +77,18 @@ fn single_phase_states_match_coolprop() {
                 (dh_ours - dh_ref).abs() / dh_ref.abs().max(r * tc),
                 1e-7,
             ),
-            ("entropy", (ds_ours - ds_ref).abs() / ds_ref.abs().max(r), 1e-7),
+            (
+                "entropy",
+                (ds_ours - ds_ref).abs() / ds_ref.abs().max(r),
+                1e-7,
+            ),
             ("cp", relative(state.cp().unwrap(), num(ccp)), 1e-6),
             ("cv", relative(state.cv().unwrap(), num(ccv)), 1e-6),
-            ("sound", relative(state.speed_of_sound().unwrap(), num(cw)), 1e-6),
+            (
+                "sound",
+                relative(state.speed_of_sound().unwrap(), num(cw)),
+                1e-6,
+            ),
         ];
         let w = worst.entry(name.clone()).or_default();
         w.count += 1;
@@ -142,19 +156,31 @@ fn saturation_matches_coolprop() {
             let err = relative(ours, theirs);
             entry.1 = entry.1.max(err);
             if !(err <= 1e-7) {
-                failures.push(format!("{name} T={t}: {what} {ours} vs {theirs} ({err:.2e})"));
+                failures.push(format!(
+                    "{name} T={t}: {what} {ours} vs {theirs} ({err:.2e})"
+                ));
             }
         }
         // Latent heat and entropy of vaporisation need no common reference state.
         let l = fluid.properties(t, sat.liquid.density);
         let v = fluid.properties(t, sat.vapour.density);
         for (what, ours, theirs) in [
-            ("latent heat", v.enthalpy - l.enthalpy, num("h_vapour_J_kg") - num("h_liquid_J_kg")),
-            ("entropy of vaporisation", v.entropy - l.entropy, num("s_vapour_J_kgK") - num("s_liquid_J_kgK")),
+            (
+                "latent heat",
+                v.enthalpy - l.enthalpy,
+                num("h_vapour_J_kg") - num("h_liquid_J_kg"),
+            ),
+            (
+                "entropy of vaporisation",
+                v.entropy - l.entropy,
+                num("s_vapour_J_kgK") - num("s_liquid_J_kgK"),
+            ),
         ] {
             let err = relative(ours, theirs);
             if !(err <= 1e-7) {
-                failures.push(format!("{name} T={t}: {what} {ours} vs {theirs} ({err:.2e})"));
+                failures.push(format!(
+                    "{name} T={t}: {what} {ours} vs {theirs} ({err:.2e})"
+                ));
             }
         }
     }
@@ -163,5 +189,10 @@ fn saturation_matches_coolprop() {
         assert!(*count >= 10);
     }
     assert_eq!(per_fluid.len(), 10);
-    assert!(failures.is_empty(), "{} failures:\n{}", failures.len(), failures.join("\n"));
+    assert!(
+        failures.is_empty(),
+        "{} failures:\n{}",
+        failures.len(),
+        failures.join("\n")
+    );
 }

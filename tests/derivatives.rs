@@ -34,11 +34,31 @@ fn residual_derivatives_match_finite_differences() {
             let a = at(tau, delta);
             let (hd, ht) = (1e-5 * delta, 1e-5 * tau);
             let checks = [
-                ("∂αʳ/∂δ", a.alpha_delta, central(|d| at(tau, d).alpha, delta, hd)),
-                ("∂²αʳ/∂δ²", a.alpha_delta_delta, central(|d| at(tau, d).alpha_delta, delta, hd)),
-                ("∂αʳ/∂τ", a.alpha_tau, central(|x| at(x, delta).alpha, tau, ht)),
-                ("∂²αʳ/∂τ²", a.alpha_tau_tau, central(|x| at(x, delta).alpha_tau, tau, ht)),
-                ("∂²αʳ/∂δ∂τ", a.alpha_delta_tau, central(|x| at(x, delta).alpha_delta, tau, ht)),
+                (
+                    "∂αʳ/∂δ",
+                    a.alpha_delta,
+                    central(|d| at(tau, d).alpha, delta, hd),
+                ),
+                (
+                    "∂²αʳ/∂δ²",
+                    a.alpha_delta_delta,
+                    central(|d| at(tau, d).alpha_delta, delta, hd),
+                ),
+                (
+                    "∂αʳ/∂τ",
+                    a.alpha_tau,
+                    central(|x| at(x, delta).alpha, tau, ht),
+                ),
+                (
+                    "∂²αʳ/∂τ²",
+                    a.alpha_tau_tau,
+                    central(|x| at(x, delta).alpha_tau, tau, ht),
+                ),
+                (
+                    "∂²αʳ/∂δ∂τ",
+                    a.alpha_delta_tau,
+                    central(|x| at(x, delta).alpha_delta, tau, ht),
+                ),
             ];
             for (what, analytic, numeric) in checks {
                 let scale = analytic.abs().max(1e-3);
@@ -104,12 +124,27 @@ fn properties_are_consistent_with_each_other() {
             let h = 1e-5 * t;
             let dh_dt = (at_fixed_p(t + h).0 - at_fixed_p(t - h).0) / (2.0 * h);
             let ds_dt = (at_fixed_p(t + h).1 - at_fixed_p(t - h).1) / (2.0 * h);
-            assert!((dh_dt - p.cp).abs() < 2e-5 * p.cp, "{name} {t} {rho}: cp {} vs {dh_dt}", p.cp);
-            assert!((ds_dt * t - p.cp).abs() < 2e-5 * p.cp, "{name} {t} {rho}: T ds/dT {} vs cp {}", ds_dt * t, p.cp);
+            assert!(
+                (dh_dt - p.cp).abs() < 2e-5 * p.cp,
+                "{name} {t} {rho}: cp {} vs {dh_dt}",
+                p.cp
+            );
+            assert!(
+                (ds_dt * t - p.cp).abs() < 2e-5 * p.cp,
+                "{name} {t} {rho}: T ds/dT {} vs cp {}",
+                ds_dt * t,
+                p.cp
+            );
             // μJT = (∂T/∂p)_h from the (p, h) flash.
             let dp = 1e-5 * p.pressure;
-            let t_up = fluid.state_ph(p.pressure + dp, p.enthalpy).unwrap().temperature;
-            let t_down = fluid.state_ph(p.pressure - dp, p.enthalpy).unwrap().temperature;
+            let t_up = fluid
+                .state_ph(p.pressure + dp, p.enthalpy)
+                .unwrap()
+                .temperature;
+            let t_down = fluid
+                .state_ph(p.pressure - dp, p.enthalpy)
+                .unwrap()
+                .temperature;
             let mu = (t_up - t_down) / (2.0 * dp);
             let scale = p.joule_thomson.abs().max(1e-3 * t / p.pressure);
             assert!(
@@ -119,8 +154,14 @@ fn properties_are_consistent_with_each_other() {
             );
             checked += 1;
             // The Helmholtz identity h = u + p/ρ and g = h − Ts.
-            assert!((p.enthalpy - (p.internal_energy + p.pressure / p.density)).abs() < 1e-9 * (p.enthalpy.abs() + p.pressure / p.density));
-            assert!((p.gibbs - (p.enthalpy - t * p.entropy)).abs() < 1e-9 * (p.gibbs.abs() + t * p.entropy.abs()));
+            assert!(
+                (p.enthalpy - (p.internal_energy + p.pressure / p.density)).abs()
+                    < 1e-9 * (p.enthalpy.abs() + p.pressure / p.density)
+            );
+            assert!(
+                (p.gibbs - (p.enthalpy - t * p.entropy)).abs()
+                    < 1e-9 * (p.gibbs.abs() + t * p.entropy.abs())
+            );
         }
     }
     assert!(checked >= 40, "only {checked} states checked");
@@ -140,11 +181,20 @@ fn second_virial_coefficient_is_the_low_density_limit() {
             let rho = 1e-6 * fluid.critical.density;
             let z = fluid.properties(t, rho).compressibility;
             let slope = (z - 1.0) / rho;
-            assert!((slope - b).abs() < 1e-4 * b.abs().max(1e-6 / fluid.critical.density), "{name} {t}: B {b} vs {slope}");
+            assert!(
+                (slope - b).abs() < 1e-4 * b.abs().max(1e-6 / fluid.critical.density),
+                "{name} {t}: B {b} vs {slope}"
+            );
             let num_db = central(|x| fluid.second_virial(x)[0], t, 1e-4 * t);
-            assert!((num_db - db).abs() < 1e-6 * db.abs().max(1e-9), "{name} {t}: dB/dT {db} vs {num_db}");
+            assert!(
+                (num_db - db).abs() < 1e-6 * db.abs().max(1e-9),
+                "{name} {t}: dB/dT {db} vs {num_db}"
+            );
             let num_d2b = central(|x| fluid.second_virial(x)[1], t, 1e-4 * t);
-            assert!((num_d2b - d2b).abs() < 1e-5 * d2b.abs().max(1e-12), "{name} {t}: d2B/dT2 {d2b} vs {num_d2b}");
+            assert!(
+                (num_d2b - d2b).abs() < 1e-5 * d2b.abs().max(1e-12),
+                "{name} {t}: d2B/dT2 {d2b} vs {num_d2b}"
+            );
         }
     }
 }

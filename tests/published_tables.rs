@@ -31,9 +31,15 @@ fn nitrogen_single_phase_span_2000() {
     let (to_mol_dm3, per_mol) = molar(n2);
     // (T K, p MPa, ρ, u, h, s, cv, cp, w) as printed.
     let rows = [
-        (80.0, 0.1, "0.15633", "1605.7", "2245.4", "152.70", "21.48", "31.15", "178.3"),
-        (1000.0, 2.0, "0.23889", "21800", "30172", "203.24", "24.40", "32.75", "635.5"),
-        (100.0, 100.0, "31.793", "-3136.1", "9.22", "81.024", "31.89", "47.93", "1208"),
+        (
+            80.0, 0.1, "0.15633", "1605.7", "2245.4", "152.70", "21.48", "31.15", "178.3",
+        ),
+        (
+            1000.0, 2.0, "0.23889", "21800", "30172", "203.24", "24.40", "32.75", "635.5",
+        ),
+        (
+            100.0, 100.0, "31.793", "-3136.1", "9.22", "81.024", "31.89", "47.93", "1208",
+        ),
     ];
     for (t, p, rho, u, h, s, cv, cp, w) in rows {
         let state = n2.state_tp(t, p * 1e6).unwrap();
@@ -79,9 +85,34 @@ fn nitrogen_triple_point_span_2000() {
 fn hydrogen_saturation_at_20_k_leachman_2009() {
     // (fluid, p kPa, ρ′, ρ″ kg/m³, cv′, cv″, cp′, cp″ kJ/(kg·K), w′, w″ m/s)
     let rows = [
-        ("parahydrogen", "93.414", "71.135", "1.2440", "5.6371", "6.4499", "9.5688", "11.920", "1118.6", "353.50"),
-        ("hydrogen", "90.717", "71.265", "1.2059", "5.6369", "6.4343", "9.5697", "11.892", "1129.1", "354.31"),
-        ("orthohydrogen", "90.417", "71.291", "1.1977", "5.6050", "6.4172", "9.5449", "11.813", "1137.1", "354.41"),
+        (
+            "parahydrogen",
+            "93.414",
+            "71.135",
+            "1.2440",
+            "5.6371",
+            "6.4499",
+            "9.5688",
+            "11.920",
+            "1118.6",
+            "353.50",
+        ),
+        (
+            "hydrogen", "90.717", "71.265", "1.2059", "5.6369", "6.4343", "9.5697", "11.892",
+            "1129.1", "354.31",
+        ),
+        (
+            "orthohydrogen",
+            "90.417",
+            "71.291",
+            "1.1977",
+            "5.6050",
+            "6.4172",
+            "9.5449",
+            "11.813",
+            "1137.1",
+            "354.41",
+        ),
     ];
     for (name, p, rl, rv, cvl, cvv, cpl, cpv, wl, wv) in rows {
         let fluid = fluids::fluid(name).unwrap();
@@ -118,7 +149,11 @@ fn hydrogen_triple_points_leachman_2009() {
         let fluid = fluids::fluid(name).unwrap();
         assert_eq!(fluid.triple_temperature, t, "{name} triple temperature");
         let sat = fluid.saturation_at_temperature(t).unwrap();
-        assert_printed(&format!("{name} triple p"), sat.vapour.pressure / 1e3, p_kpa);
+        assert_printed(
+            &format!("{name} triple p"),
+            sat.vapour.pressure / 1e3,
+            p_kpa,
+        );
     }
 }
 

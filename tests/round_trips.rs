@@ -21,19 +21,36 @@ fn pressure_for(fluid: &Fluid, temperature: f64, u: f64) -> f64 {
     (low.ln() + u * (top.ln() - low.ln())).exp()
 }
 
-fn check_recovers(fluid: &'static Fluid, temperature: f64, pressure: f64) -> Result<(), TestCaseError> {
+fn check_recovers(
+    fluid: &'static Fluid,
+    temperature: f64,
+    pressure: f64,
+) -> Result<(), TestCaseError> {
     let state = match fluid.state_tp(temperature, pressure) {
         Ok(s) => s,
         // Exactly on the saturation line: (T, p) does not fix a state.
         Err(cryochain::Error::ImpossibleState { .. }) => return Ok(()),
-        Err(e) => return Err(TestCaseError::fail(format!("{} T={temperature} p={pressure}: {e}", fluid.name))),
+        Err(e) => {
+            return Err(TestCaseError::fail(format!(
+                "{} T={temperature} p={pressure}: {e}",
+                fluid.name
+            )))
+        }
     };
     let from_h = fluid
         .state_ph(state.pressure, state.enthalpy)
-        .map_err(|e| TestCaseError::fail(format!("{} (p,h) from T={temperature} p={pressure}: {e}", fluid.name)))?;
-    let from_s = fluid
-        .state_ps(state.pressure, state.entropy)
-        .map_err(|e| TestCaseError::fail(format!("{} (p,s) from T={temperature} p={pressure}: {e}", fluid.name)))?;
+        .map_err(|e| {
+            TestCaseError::fail(format!(
+                "{} (p,h) from T={temperature} p={pressure}: {e}",
+                fluid.name
+            ))
+        })?;
+    let from_s = fluid.state_ps(state.pressure, state.entropy).map_err(|e| {
+        TestCaseError::fail(format!(
+            "{} (p,s) from T={temperature} p={pressure}: {e}",
+            fluid.name
+        ))
+    })?;
     prop_assert!(
         (from_h.temperature - temperature).abs() < 1e-7,
         "{} (p,h) T={} vs {temperature} at p={pressure}",
@@ -114,7 +131,11 @@ fn temperature_density_flash_agrees() {
     for name in fluids::names() {
         let fluid = fluids::fluid(name).unwrap();
         let tc = fluid.critical.temperature;
-        for (t, p) in [(0.7 * tc, fluid.critical.pressure * 2.0), (1.5 * tc, 1e5), (0.8 * tc, 1e3)] {
+        for (t, p) in [
+            (0.7 * tc, fluid.critical.pressure * 2.0),
+            (1.5 * tc, 1e5),
+            (0.8 * tc, 1e3),
+        ] {
             let a = fluid.state_tp(t, p).unwrap();
             let b = fluid.state_t_rho(t, a.density).unwrap();
             assert!((b.pressure - p).abs() < 1e-8 * p, "{name} {t} {p}");
@@ -122,6 +143,10 @@ fn temperature_density_flash_agrees() {
         }
         let wet = fluid.state_t_quality(0.8 * tc, 0.3).unwrap();
         let back = fluid.state_t_rho(0.8 * tc, wet.density).unwrap();
-        assert!((back.quality.unwrap() - 0.3).abs() < 1e-9, "{name}: {:?}", back.quality);
+        assert!(
+            (back.quality.unwrap() - 0.3).abs() < 1e-9,
+            "{name}: {:?}",
+            back.quality
+        );
     }
 }

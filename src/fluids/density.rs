@@ -63,7 +63,7 @@ impl Fluid {
             // A Newton step may change the density by at most half; far beyond the
             // physical densities some equations turn to negative pressures.
             let mut next = (x - f / slope).clamp(0.5 * x, 1.5 * x);
-            if !(slope > 0.0) || !(next > low && next < high) {
+            if !(slope > 0.0 && next > low && next < high) {
                 next = if high.is_finite() {
                     0.5 * (low + high)
                 } else {
@@ -128,7 +128,8 @@ impl Fluid {
                     None => self.ancillary_vapour_density(temperature) * 1.02,
                 };
                 let seed = guess.unwrap_or_else(|| {
-                    self.ideal_gas_density(temperature, pressure).min(0.9 * upper)
+                    self.ideal_gas_density(temperature, pressure)
+                        .min(0.9 * upper)
                 });
                 self.solve_density(factors, temperature, pressure, seed, 0.0, upper)
             }

@@ -114,8 +114,7 @@ impl Fluid {
     /// Relative margin around the ancillary vapour pressure inside which the exact
     /// saturation is solved before choosing the phase.
     fn ancillary_margin(&self) -> f64 {
-        let stated = self.ancillaries.bubble_pressure.stated_max_error_percent / 100.0;
-        (4.0 * stated).max(5e-4)
+        (4.0 * self.ancillary_pressure_error).max(2e-4)
     }
 
     /// The state at temperature T (K) and pressure p (Pa).
@@ -200,8 +199,7 @@ impl Fluid {
                 detail: format!("density {density} kg/m³ must be positive"),
             });
         }
-        if temperature < self.saturation_temperature_max()
-            && temperature >= self.triple_temperature
+        if temperature < self.saturation_temperature_max() && temperature >= self.triple_temperature
         {
             let saturation = self.saturation_at_temperature(temperature)?;
             let (rl, rv) = (saturation.liquid.density, saturation.vapour.density);
@@ -244,7 +242,10 @@ impl Fluid {
             solver: "two-phase quality from temperature and density",
             iterations: 80,
             residual: last,
-            context: format!(" for {} at T = {temperature} K, ρ = {density} kg/m³", self.name),
+            context: format!(
+                " for {} at T = {temperature} K, ρ = {density} kg/m³",
+                self.name
+            ),
         })
     }
 
@@ -325,8 +326,7 @@ impl Fluid {
     }
 
     fn state_at_pressure(&'static self, pressure: f64, target: f64, held: Held) -> Result<State> {
-        if !(pressure > 0.0 && pressure <= self.pressure_max * (1.0 + 1e-9)) || !target.is_finite()
-        {
+        if !(pressure > 0.0 && pressure <= self.pressure_max * (1.0 + 1e-9) && target.is_finite()) {
             return Err(Error::OutOfRange {
                 fluid: self.name.clone(),
                 what: format!("p = {pressure} Pa with {} = {target}", held.name()),
@@ -338,7 +338,11 @@ impl Fluid {
             });
         }
         let (sat_low, sat_high) = self.saturation_pressure_range();
-        if pressure >= sat_low && pressure < sat_high {
+        // The triple-point pressure itself, within rounding, still has both phases.
+        if pressure >= sat_low * (1.0 - 1e-9) && pressure < sat_high {
+            if let Some(state) = self.clearly_single_phase(pressure, target, held)? {
+                return Ok(state);
+            }
             let saturation = self.saturation_at_pressure(pressure)?;
             let pair = self.pair(&saturation);
             let (at_liquid, at_vapour) = (held.of(&pair.liquid), held.of(&pair.vapour));
@@ -349,7 +353,13 @@ impl Fluid {
                 return Ok(State::two_phase(self, pair, quality));
             }
             if target < at_liquid {
-                return self.search_temperature(pressure, target, held, Region::Liquid, pair.liquid);
+                return self.search_temperature(
+                    pressure,
+                    target,
+                    held,
+                    Region::Liquid,
+                    pair.liquid,
+                );
             }
             return self.search_temperature(pressure, target, held, Region::Vapour, pair.vapour);
         }
@@ -371,6 +381,58 @@ impl Fluid {
             detail: "starting state is two-phase".into(),
         })?;
         self.search_temperature(pressure, target, held, region, props)
+    }
+
+    /// The state at (p, target) when it clearly lies away from saturation, judged by
+    /// the saturation temperature from the ancillary equation and its stated error:
+    /// the approximate saturated vapour (or liquid) at p bounds the target with room
+    /// for that error, so the exact saturation need not be solved. `None` when the
+    /// target is too close to call (and near the critical point, and for air).
+    fn clearly_single_phase(
+        &'static self,
+        pressure: f64,
+        target: f64,
+        held: Held,
+    ) -> Result<Option<State>> {
+        if self.pseudo_pure || pressure > 0.7 * self.critical.pressure {
+            return Ok(None);
+        }
+        let equation = &self.ancillaries.bubble_pressure;
+        let temperature = equation.temperature_at(
+            pressure,
+            self.triple_temperature,
+            self.saturation_temperature_max(),
+        );
+        let (_, slope) = equation.log_value_and_slope(temperature);
+        // Four times the measured largest error of ln p, as a temperature.
+        let uncertainty = self.ancillary_margin() / slope;
+        let factors = self.tau_factors(temperature);
+        let near = |branch: Branch| -> Option<Properties> {
+            let rho = self
+                .density_on_branch(&factors, temperature, pressure, branch, None, None)
+                .ok()?;
+            let props = self.properties_with(&factors, temperature, rho);
+            (props.dp_drho > 0.0 && props.cp > 0.0).then_some(props)
+        };
+        let Some(vapour) = near(Branch::Vapour) else {
+            return Ok(None);
+        };
+        let margin = 2.0 * held.slope(&vapour) * uncertainty;
+        if target > held.of(&vapour) + margin {
+            return self
+                .search_temperature(pressure, target, held, Region::Vapour, vapour)
+                .map(Some);
+        }
+        let Some(liquid) = near(Branch::Liquid) else {
+            return Ok(None);
+        };
+        let margin = 2.0 * held.slope(&liquid) * uncertainty;
+        if target < held.of(&liquid) - margin {
+            return self
+                .search_temperature(pressure, target, held, Region::Liquid, liquid)
+                .map(Some);
+        }
+        Ok(None)
     }
 
     /// A starting temperature from the ideal-gas relations, clamped to the range.
@@ -425,10 +487,18 @@ impl Fluid {
         let guess = if guess > 0.0 { guess } else { near.density };
         // A guess extrapolated far along a steep saturated-liquid curve can fall outside
         // Newton's reach; the ancillary seeds are the fallback.
-        let rho = match self.density_on_branch(&factors, temperature, pressure, branch, Some(guess), None)
-        {
+        let rho = match self.density_on_branch(
+            &factors,
+            temperature,
+            pressure,
+            branch,
+            Some(guess),
+            None,
+        ) {
             Ok(rho) => rho,
-            Err(_) => self.density_on_branch(&factors, temperature, pressure, branch, None, None)?,
+            Err(_) => {
+                self.density_on_branch(&factors, temperature, pressure, branch, None, None)?
+            }
         };
         Ok(self.properties_with(&factors, temperature, rho))
     }

@@ -76,6 +76,10 @@ pub struct Fluid {
     pub density_ceiling: f64,
     /// The range of pressures over which saturation is solved, Pa.
     pub(crate) saturation_pressures: (f64, f64),
+    /// The largest |ln(p_ancillary/p_saturation)| found over 64 temperatures from
+    /// the triple point to the top of the saturation range, measured when the fluid
+    /// is built (the ancillaries' stated errors are not always met).
+    pub ancillary_pressure_error: f64,
     /// Ancillary equations and melting line.
     pub ancillaries: Ancillaries,
     pub(crate) ideal: IdealPart,
@@ -149,15 +153,22 @@ impl Fluid {
                 density: data.critical.density_mol_m3 * m,
             },
             triple_temperature: data.triple.temperature_k,
-            triple_pressures: (data.triple.liquid_pressure_pa, data.triple.vapour_pressure_pa),
+            triple_pressures: (
+                data.triple.liquid_pressure_pa,
+                data.triple.vapour_pressure_pa,
+            ),
             temperature_min: data.limits.temperature_min_k,
             temperature_max: data.limits.temperature_max_k,
             pressure_max: data.limits.pressure_max_pa,
             reference_state: data.reference_state,
             density_ceiling: 5.0
-                * data.ancillaries.liquid_density.value(data.triple.temperature_k)
+                * data
+                    .ancillaries
+                    .liquid_density
+                    .value(data.triple.temperature_k)
                 * m,
             saturation_pressures: (0.0, 0.0),
+            ancillary_pressure_error: 0.0,
             ancillaries: Ancillaries {
                 bubble_pressure: data.ancillaries.bubble_pressure,
                 dew_pressure: data.ancillaries.dew_pressure,
@@ -169,12 +180,17 @@ impl Fluid {
             residual,
         };
         let mut fluid = fluid;
-        fluid.saturation_pressures = fluid.compute_saturation_pressure_range().map_err(|e| {
-            bad(format!("cannot solve the saturation range: {e}"))
-        })?;
+        fluid.saturation_pressures = fluid
+            .compute_saturation_pressure_range()
+            .map_err(|e| bad(format!("cannot solve the saturation range: {e}")))?;
+        fluid.ancillary_pressure_error = fluid
+            .measure_ancillary_error()
+            .map_err(|e| bad(format!("cannot check the vapour-pressure ancillary: {e}")))?;
         if fluid.reference_state == ReferenceStateName::NormalBoilingPoint {
             fluid.set_normal_boiling_point_reference().map_err(|e| {
-                bad(format!("cannot set the normal-boiling-point reference: {e}"))
+                bad(format!(
+                    "cannot set the normal-boiling-point reference: {e}"
+                ))
             })?;
         }
         Ok(fluid)
@@ -189,6 +205,25 @@ impl Fluid {
         self.ideal.lead_tau -= liquid.enthalpy / (self.gas_constant * self.reducing_temperature);
         self.ideal.lead_constant += liquid.entropy / self.gas_constant;
         Ok(())
+    }
+
+    /// The largest deviation of the vapour-pressure ancillary from the equation's
+    /// own saturation, as |ln(p_ancillary/p)|, over 64 temperatures.
+    fn measure_ancillary_error(&self) -> Result<f64> {
+        if self.pseudo_pure {
+            // The ancillaries are the bubble and dew lines themselves.
+            return Ok(0.0);
+        }
+        let low = self.triple_temperature;
+        let high = self.saturation_temperature_max();
+        let mut worst: f64 = 0.0;
+        for i in 0..64 {
+            let t = (low + (high - low) * i as f64 / 63.0).min(high);
+            let exact = self.saturation_at_temperature(t)?.vapour.pressure;
+            let estimate = self.ancillaries.bubble_pressure.value(t);
+            worst = worst.max((estimate / exact).ln().abs());
+        }
+        Ok(worst)
     }
 
     /// τ = Tr/T.
@@ -222,8 +257,7 @@ impl Fluid {
         let r = self.residual.evaluate(factors, delta);
         let rt = self.gas_constant * temperature;
         let p = density * rt * (1.0 + delta * r.alpha_delta);
-        let slope =
-            rt * (1.0 + 2.0 * delta * r.alpha_delta + delta * delta * r.alpha_delta_delta);
+        let slope = rt * (1.0 + 2.0 * delta * r.alpha_delta + delta * delta * r.alpha_delta_delta);
         (p, slope)
     }
 

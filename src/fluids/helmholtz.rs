@@ -51,6 +51,36 @@ pub struct IdealPart {
     general: Vec<(f64, f64, f64, f64)>,
 }
 
+/// How τ^t is computed for one exponent: by repeated multiplication for whole t, a
+/// square root for half-whole t, exp(t ln τ) otherwise.
+#[derive(Debug, Clone, Copy)]
+enum Exponent {
+    Whole(i32),
+    Half(i32),
+    Real(f64),
+}
+
+impl Exponent {
+    fn of(t: f64) -> Exponent {
+        if t.fract() == 0.0 && t.abs() <= 32.0 {
+            Exponent::Whole(t as i32)
+        } else if (2.0 * t).fract() == 0.0 && t.abs() <= 32.0 {
+            Exponent::Half((2.0 * t) as i32)
+        } else {
+            Exponent::Real(t)
+        }
+    }
+
+    #[inline]
+    fn power(self, tau: f64, sqrt_tau: f64, ln_tau: f64) -> f64 {
+        match self {
+            Exponent::Whole(k) => tau.powi(k),
+            Exponent::Half(k) => sqrt_tau.powi(k),
+            Exponent::Real(t) => (t * ln_tau).exp(),
+        }
+    }
+}
+
 /// Number of terms of each kind must agree.
 fn same_lengths(lengths: &[usize]) -> Result<(), String> {
     if lengths.windows(2).all(|w| w[0] == w[1]) {
@@ -98,8 +128,9 @@ impl IdealPart {
             alpha_tau: self.lead_tau + self.log_tau / tau,
             alpha_tau_tau: -self.log_tau / (tau * tau),
         };
+        let (sqrt_tau, ln_tau) = (tau.sqrt(), tau.ln());
         for &(n, t) in &self.power {
-            let value = n * tau.powf(t);
+            let value = n * Exponent::of(t).power(tau, sqrt_tau, ln_tau);
             out.alpha += value;
             out.alpha_tau += value * t / tau;
             out.alpha_tau_tau += value * t * (t - 1.0) / (tau * tau);
@@ -152,17 +183,30 @@ pub struct ResidualPart {
     gaussian: Vec<GaussianTerm>,
     largest_l: usize,
     largest_d: usize,
+    /// The distinct temperature exponents of the power terms, and for each power term
+    /// the index of its exponent, so that each τ^t is computed once.
+    exponents: Vec<Exponent>,
+    exponent_values: Vec<f64>,
+    exponent_of: Vec<usize>,
+    gaussian_exponents: Vec<Exponent>,
 }
 
-/// The τ-dependent factors of every residual term at one τ.
+/// The most power terms a fluid may have.
+pub const MAX_TERMS: usize = 64;
+/// The most Gaussian terms a fluid may have.
+pub const MAX_GAUSSIAN: usize = 24;
+
+/// The τ-dependent factors of every residual term at one τ, kept inline (no heap).
 #[derive(Debug, Clone)]
 pub struct TauFactors {
     tau: f64,
-    /// Per power term: n τ^t, and its first and second τ derivatives.
-    power: Vec<[f64; 3]>,
-    /// Per Gaussian term: n τ^t exp(−β(τ−γ)²), the logarithmic τ derivative B and
-    /// B² − t/τ² − 2β.
-    gaussian: Vec<[f64; 3]>,
+    inv_tau: f64,
+    /// Per power term: n τ^t.
+    power: [f64; MAX_TERMS],
+    /// Per Gaussian term: n τ^t exp(−β(τ−γ)²).
+    gaussian: [f64; MAX_GAUSSIAN],
+    /// Per Gaussian term: its logarithmic τ derivative B = t/τ − 2β(τ−γ).
+    gaussian_b: [f64; MAX_GAUSSIAN],
 }
 
 impl TauFactors {
@@ -242,6 +286,23 @@ impl ResidualPart {
                 }
             }
         }
+        if part.power.len() > MAX_TERMS || part.gaussian.len() > MAX_GAUSSIAN {
+            return Err(format!(
+                "more than {MAX_TERMS} power or {MAX_GAUSSIAN} Gaussian terms"
+            ));
+        }
+        for term in &part.power {
+            let index = match part.exponent_values.iter().position(|t| *t == term.t) {
+                Some(i) => i,
+                None => {
+                    part.exponent_values.push(term.t);
+                    part.exponents.push(Exponent::of(term.t));
+                    part.exponents.len() - 1
+                }
+            };
+            part.exponent_of.push(index);
+        }
+        part.gaussian_exponents = part.gaussian.iter().map(|g| Exponent::of(g.t)).collect();
         Ok(part)
     }
 
@@ -257,39 +318,33 @@ impl ResidualPart {
 
     /// The τ-dependent factors at τ.
     pub fn at_tau(&self, tau: f64) -> TauFactors {
-        let ln_tau = tau.ln();
-        let inv_tau = 1.0 / tau;
-        let power = self
-            .power
-            .iter()
-            .map(|term| {
-                let value = term.n * (term.t * ln_tau).exp();
-                [
-                    value,
-                    value * term.t * inv_tau,
-                    value * term.t * (term.t - 1.0) * inv_tau * inv_tau,
-                ]
-            })
-            .collect();
-        let gaussian = self
+        let (sqrt_tau, ln_tau) = (tau.sqrt(), tau.ln());
+        let mut powers = [0.0f64; MAX_TERMS];
+        for (slot, e) in powers.iter_mut().zip(&self.exponents) {
+            *slot = e.power(tau, sqrt_tau, ln_tau);
+        }
+        let mut out = TauFactors {
+            tau,
+            inv_tau: 1.0 / tau,
+            power: [0.0; MAX_TERMS],
+            gaussian: [0.0; MAX_GAUSSIAN],
+            gaussian_b: [0.0; MAX_GAUSSIAN],
+        };
+        for ((slot, term), index) in out.power.iter_mut().zip(&self.power).zip(&self.exponent_of) {
+            *slot = term.n * powers[*index];
+        }
+        for (i, (term, e)) in self
             .gaussian
             .iter()
-            .map(|term| {
-                let offset = tau - term.gamma;
-                let value = term.n * (term.t * ln_tau - term.beta * offset * offset).exp();
-                let b = term.t * inv_tau - 2.0 * term.beta * offset;
-                [
-                    value,
-                    b,
-                    b * b - term.t * inv_tau * inv_tau - 2.0 * term.beta,
-                ]
-            })
-            .collect();
-        TauFactors {
-            tau,
-            power,
-            gaussian,
+            .zip(&self.gaussian_exponents)
+            .enumerate()
+        {
+            let offset = tau - term.gamma;
+            out.gaussian[i] =
+                term.n * e.power(tau, sqrt_tau, ln_tau) * (-term.beta * offset * offset).exp();
+            out.gaussian_b[i] = term.t * out.inv_tau - 2.0 * term.beta * offset;
         }
+        out
     }
 
     /// αʳ and its derivatives at δ, with the τ factors from [`ResidualPart::at_tau`].
@@ -317,7 +372,13 @@ impl ResidualPart {
         };
         let inv_delta = 1.0 / delta;
         let mut out = ResidualDerivatives::default();
-        for (term, f) in self.power.iter().zip(&factors.power) {
+        let inv_tau = factors.inv_tau;
+        for (term, value) in self.power.iter().zip(&factors.power) {
+            let f = [
+                *value,
+                value * term.t * inv_tau,
+                value * term.t * (term.t - 1.0) * inv_tau * inv_tau,
+            ];
             let (dl, el) = if term.l == 0 {
                 (0.0, 1.0)
             } else if (term.l as usize) < L_TABLE {
@@ -339,7 +400,17 @@ impl ResidualPart {
             out.alpha_tau_tau += f[2] * shape;
             out.alpha_delta_tau += f[1] * shape * k * inv_delta;
         }
-        for (term, f) in self.gaussian.iter().zip(&factors.gaussian) {
+        for ((term, value), b) in self
+            .gaussian
+            .iter()
+            .zip(&factors.gaussian)
+            .zip(&factors.gaussian_b)
+        {
+            let f = [
+                *value,
+                *b,
+                b * b - term.t * inv_tau * inv_tau - 2.0 * term.beta,
+            ];
             let offset = delta - term.epsilon;
             let d = term.d as f64;
             let base = f[0] * power_of(term.d) * (-term.eta * offset * offset).exp();
@@ -363,9 +434,15 @@ impl ResidualPart {
     /// is B·ρr, the reduced second virial coefficient.
     pub fn virial_b(&self, tau: f64) -> [f64; 3] {
         let factors = self.at_tau(tau);
+        let inv_tau = 1.0 / tau;
         let mut out = [0.0; 3];
         // lim δ→0 ∂(δ^d g(δ))/∂δ is g(0) for d = 1, g′(0) for d = 0 and 0 for d ≥ 2.
-        for (term, f) in self.power.iter().zip(&factors.power) {
+        for (term, value) in self.power.iter().zip(&factors.power) {
+            let f = [
+                *value,
+                value * term.t * inv_tau,
+                value * term.t * (term.t - 1.0) * inv_tau * inv_tau,
+            ];
             let weight = match (term.d, term.l) {
                 (1, _) => 1.0,
                 (0, 1) => -1.0,
@@ -375,7 +452,17 @@ impl ResidualPart {
                 out[k] += weight * f[k];
             }
         }
-        for (term, f) in self.gaussian.iter().zip(&factors.gaussian) {
+        for ((term, value), b) in self
+            .gaussian
+            .iter()
+            .zip(&factors.gaussian)
+            .zip(&factors.gaussian_b)
+        {
+            let f = [
+                *value,
+                *b,
+                b * b - term.t * inv_tau * inv_tau - 2.0 * term.beta,
+            ];
             let at_zero = (-term.eta * term.epsilon * term.epsilon).exp();
             let weight = match term.d {
                 1 => at_zero,

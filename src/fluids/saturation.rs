@@ -5,7 +5,7 @@
 //! ancillary equations, with densities from the equation of state.
 
 use super::density::Branch;
-use super::fluid::{Fluid, Point};
+use super::fluid::{Fluid, Point, Properties};
 use crate::error::{Error, Result};
 
 /// The two saturated states in equilibrium (for a pseudo-pure fluid, the bubble and
@@ -116,8 +116,12 @@ impl Fluid {
                 break;
             }
             if small || (residual < 1e-13 && iteration > 0) {
-                let p = self.pressure_and_slope(&factors, temperature, vapour * rho_r).0;
-                let pl = self.pressure_and_slope(&factors, temperature, liquid * rho_r).0;
+                let p = self
+                    .pressure_and_slope(&factors, temperature, vapour * rho_r)
+                    .0;
+                let pl = self
+                    .pressure_and_slope(&factors, temperature, liquid * rho_r)
+                    .0;
                 let rt_scale = 1e-12 * liquid * rho_r * self.gas_constant * temperature;
                 if (pl - p).abs() <= 1e-9 * p + rt_scale {
                     let point = |density: f64, pressure: f64| Point {
@@ -239,10 +243,92 @@ impl Fluid {
                 },
             });
         }
-        let mut temperature = self
+        let start = self
             .ancillaries
             .bubble_pressure
             .temperature_at(pressure, t_low, t_high);
+        if let Some(found) = self.saturation_at_pressure_direct(pressure, start) {
+            return Ok(found);
+        }
+        self.saturation_at_pressure_nested(pressure, start)
+    }
+
+    /// Newton in (T, ρ′, ρ″) together on p(T, ρ′) = p, p(T, ρ″) = p and
+    /// g(T, ρ′) = g(T, ρ″), seeded by the ancillary equations. Fast; `None` when it
+    /// does not settle (then the nested solve takes over).
+    fn saturation_at_pressure_direct(&self, pressure: f64, start: f64) -> Option<Saturation> {
+        let (t_low, t_high) = (
+            self.triple_temperature * (1.0 - 1e-9),
+            self.saturation_temperature_max(),
+        );
+        let mut t = start;
+        let mut liquid = self.ancillary_liquid_density(t);
+        let mut vapour = self.ancillary_vapour_density(t);
+        for _ in 0..20 {
+            let factors = self.tau_factors(t);
+            let l = self.properties_with(&factors, t, liquid);
+            let v = self.properties_with(&factors, t, vapour);
+            let rt = self.gas_constant * t;
+            let f = [
+                l.pressure / pressure - 1.0,
+                v.pressure / pressure - 1.0,
+                (l.gibbs - v.gibbs) / rt,
+            ];
+            // Rows: ∂F/∂(T, ρ′, ρ″). (∂g/∂ρ)_T = (∂p/∂ρ)_T/ρ; (∂g/∂T)_ρ = −s + (∂p/∂T)_ρ/ρ.
+            let dg_dt = |x: &Properties| -x.entropy + x.dp_dt / x.density;
+            let jacobian = [
+                [l.dp_dt / pressure, l.dp_drho / pressure, 0.0],
+                [v.dp_dt / pressure, 0.0, v.dp_drho / pressure],
+                [
+                    (dg_dt(&l) - dg_dt(&v)) / rt - f[2] / t,
+                    l.dp_drho / (l.density * rt),
+                    -v.dp_drho / (v.density * rt),
+                ],
+            ];
+            let step = solve3(jacobian, [-f[0], -f[1], -f[2]])?;
+            // The liquid pressure carries rounding of a few ulps of ρ′RT.
+            let liquid_noise = 1e-13 * liquid * rt / pressure;
+            let converged =
+                f[0].abs() < 1e-12 + liquid_noise && f[1].abs() < 1e-12 && f[2].abs() < 1e-12;
+            if converged {
+                let point = |density: f64| Point {
+                    temperature: t,
+                    pressure: v.pressure,
+                    density,
+                };
+                return Some(Saturation {
+                    liquid: point(liquid),
+                    vapour: point(vapour),
+                });
+            }
+            // Damp steps that would cross the phases or leave the range.
+            let mut damping = 1.0;
+            loop {
+                let (nt, nl, nv) = (
+                    t + damping * step[0],
+                    liquid + damping * step[1],
+                    vapour + damping * step[2],
+                );
+                if nv > 0.0 && nl > nv * 1.0001 && nt >= t_low && nt <= t_high {
+                    t = nt;
+                    liquid = nl;
+                    vapour = nv;
+                    break;
+                }
+                damping *= 0.5;
+                if damping < 1e-3 {
+                    return None;
+                }
+            }
+        }
+        None
+    }
+
+    /// Newton on T with the Clausius–Clapeyron slope, a full saturation solve at each
+    /// temperature: slower, but sure where the direct solve is not.
+    fn saturation_at_pressure_nested(&self, pressure: f64, start: f64) -> Result<Saturation> {
+        let (t_low, t_high) = (self.triple_temperature, self.saturation_temperature_max());
+        let mut temperature = start;
         let ancillary = |t: f64| {
             (
                 self.ancillary_liquid_density(t),
@@ -256,7 +342,9 @@ impl Fluid {
             // that fail (close to the critical point), from the ancillaries alone.
             let saturation = match self.pure_saturation_at_temperature(temperature, seeds) {
                 Ok(s) => s,
-                Err(_) => self.pure_saturation_at_temperature(temperature, ancillary(temperature))?,
+                Err(_) => {
+                    self.pure_saturation_at_temperature(temperature, ancillary(temperature))?
+                }
             };
             let p = saturation.liquid.pressure;
             residual = (p / pressure).ln();
@@ -293,4 +381,34 @@ impl Fluid {
             context: format!(" for {} at p = {pressure} Pa", self.name),
         })
     }
+}
+
+/// Solves the 3×3 system a·x = b by Gaussian elimination with partial pivoting;
+/// `None` when it is singular.
+fn solve3(mut a: [[f64; 3]; 3], mut b: [f64; 3]) -> Option<[f64; 3]> {
+    for col in 0..3 {
+        let pivot = (col..3).max_by(|&i, &j| a[i][col].abs().total_cmp(&a[j][col].abs()))?;
+        if a[pivot][col].abs() < 1e-300 || !a[pivot][col].is_finite() {
+            return None;
+        }
+        a.swap(col, pivot);
+        b.swap(col, pivot);
+        for row in col + 1..3 {
+            let factor = a[row][col] / a[col][col];
+            let pivot_row = a[col];
+            for (target, source) in a[row].iter_mut().zip(pivot_row).skip(col) {
+                *target -= factor * source;
+            }
+            b[row] -= factor * b[col];
+        }
+    }
+    let mut x = [0.0; 3];
+    for row in (0..3).rev() {
+        let mut sum = b[row];
+        for k in row + 1..3 {
+            sum -= a[row][k] * x[k];
+        }
+        x[row] = sum / a[row][row];
+    }
+    x.iter().all(|v| v.is_finite()).then_some(x)
 }

@@ -117,10 +117,16 @@ impl State {
     }
 
     /// Builds a single-phase state from its properties.
-    pub(crate) fn single(fluid: &'static Fluid, properties: Properties, liquid_side: bool) -> State {
+    pub(crate) fn single(
+        fluid: &'static Fluid,
+        properties: Properties,
+        liquid_side: bool,
+    ) -> State {
         let tc = fluid.critical.temperature;
         let pc = fluid.critical.pressure;
-        let phase = if properties.temperature >= fluid.saturation_temperature_max() || properties.temperature >= tc {
+        let phase = if properties.temperature >= fluid.saturation_temperature_max()
+            || properties.temperature >= tc
+        {
             if properties.pressure >= pc {
                 Phase::Supercritical
             } else {

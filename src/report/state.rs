@@ -83,7 +83,8 @@ pub fn text(state: &State) -> String {
         fluid.formula,
         state.phase.name()
     ));
-    let optional = |v: Option<f64>, f: &dyn Fn(f64) -> String| v.map_or("— (two-phase)".to_string(), f);
+    let optional =
+        |v: Option<f64>, f: &dyn Fn(f64) -> String| v.map_or("— (two-phase)".to_string(), f);
     let rows: Vec<(&str, String)> = vec![
         (
             "temperature",
@@ -104,17 +105,32 @@ pub fn text(state: &State) -> String {
         ("density", format!("{:.6} kg/m³", state.density)),
         ("enthalpy", format!("{:.4} kJ/kg", state.enthalpy / 1e3)),
         ("entropy", format!("{:.6} kJ/(kg·K)", state.entropy / 1e3)),
-        ("internal energy", format!("{:.4} kJ/kg", state.internal_energy / 1e3)),
-        ("cp", optional(state.cp(), &|v| format!("{:.6} kJ/(kg·K)", v / 1e3))),
-        ("cv", optional(state.cv(), &|v| format!("{:.6} kJ/(kg·K)", v / 1e3))),
-        ("speed of sound", optional(state.speed_of_sound(), &|v| format!("{v:.3} m/s"))),
+        (
+            "internal energy",
+            format!("{:.4} kJ/kg", state.internal_energy / 1e3),
+        ),
+        (
+            "cp",
+            optional(state.cp(), &|v| format!("{:.6} kJ/(kg·K)", v / 1e3)),
+        ),
+        (
+            "cv",
+            optional(state.cv(), &|v| format!("{:.6} kJ/(kg·K)", v / 1e3)),
+        ),
+        (
+            "speed of sound",
+            optional(state.speed_of_sound(), &|v| format!("{v:.3} m/s")),
+        ),
         (
             "Joule-Thomson coeff.",
             optional(state.joule_thomson(), &|v| {
                 format!("{:.6} K/bar   ({v:.4e} K/Pa)", v * 1e5)
             }),
         ),
-        ("compressibility Z", format!("{:.6}", state.compressibility())),
+        (
+            "compressibility Z",
+            format!("{:.6}", state.compressibility()),
+        ),
         (
             "quality",
             state

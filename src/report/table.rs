@@ -62,7 +62,9 @@ impl TextTable {
             out.trim_end().to_string()
         };
         let mut out = String::new();
-        out.push_str(&line(self.headers.iter().map(|(h, _)| h.as_str()).collect()));
+        out.push_str(&line(
+            self.headers.iter().map(|(h, _)| h.as_str()).collect(),
+        ));
         out.push('\n');
         let total: usize = widths.iter().sum::<usize>() + 2 * widths.len().saturating_sub(1);
         out.push_str(&"─".repeat(total));

@@ -14,7 +14,9 @@ pub fn reference_path(name: &str) -> PathBuf {
 /// Reads a reference CSV: skips `#` comment lines, returns the header and the rows.
 pub fn read_csv(name: &str) -> (Vec<String>, Vec<Vec<String>>) {
     let text = std::fs::read_to_string(reference_path(name)).expect("reference file");
-    let mut lines = text.lines().filter(|l| !l.starts_with('#') && !l.trim().is_empty());
+    let mut lines = text
+        .lines()
+        .filter(|l| !l.starts_with('#') && !l.trim().is_empty());
     let header = lines
         .next()
         .expect("header")
