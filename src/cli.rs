@@ -49,6 +49,36 @@ enum Command {
         #[arg(long)]
         json: bool,
     },
+    /// The Joule-Thomson inversion curve of a fluid: maximum inversion temperature,
+    /// Boyle temperature, pressure maximum, and the curve.
+    Inversion {
+        /// Fluid name.
+        fluid: String,
+        /// Print JSON (with the whole curve) instead of a table.
+        #[arg(long)]
+        json: bool,
+        /// Also write a T–p diagram to this file (.svg or .png).
+        #[arg(long)]
+        plot: Option<PathBuf>,
+        /// Rows of the curve shown in the table.
+        #[arg(long, default_value_t = 24)]
+        rows: usize,
+    },
+    /// Throttle a state isenthalpically to a lower pressure.
+    Throttle {
+        /// Fluid name.
+        fluid: String,
+        /// First inlet specification, such as T=80K.
+        first: String,
+        /// Second inlet specification, such as p=200bar.
+        second: String,
+        /// Outlet pressure, with its unit (for example 1bar).
+        #[arg(long = "to")]
+        to: String,
+        /// Print JSON instead of text.
+        #[arg(long)]
+        json: bool,
+    },
     /// Property table in batch: a CSV of input pairs in, a CSV of properties out.
     Table {
         /// Input CSV (see docs/batch-tables.md).
@@ -106,6 +136,44 @@ pub fn run(cli: Cli) -> Result<String, Failure> {
                 report::state::json(&state)
             } else {
                 report::state::text(&state)
+            })
+        }
+        Command::Inversion {
+            fluid,
+            json,
+            plot,
+            rows,
+        } => {
+            let fluid = fluids::fluid(&fluid)?;
+            let curve = fluid.inversion()?;
+            if let Some(path) = plot {
+                let diagram = fluid.tp_diagram(9)?;
+                report::plot::tp_diagram::write(&diagram, &[], &path)?;
+                eprintln!("wrote {}", path.display());
+            }
+            Ok(if json {
+                report::inversion::json(curve)
+            } else {
+                report::inversion::text(fluid, curve, rows)
+            })
+        }
+        Command::Throttle {
+            fluid,
+            first,
+            second,
+            to,
+            json,
+        } => {
+            let fluid = fluids::fluid(&fluid)?;
+            let inlet = fluid.state_from(Spec::parse(&first)?, Spec::parse(&second)?)?;
+            let outlet_pressure =
+                cryochain::quantity::parse(&to, cryochain::quantity::Dimension::Pressure)
+                    .map_err(Error::from)?;
+            let result = fluid.throttle(&inlet, outlet_pressure)?;
+            Ok(if json {
+                report::inversion::throttle_json(&result)
+            } else {
+                report::inversion::throttle_text(&result)
             })
         }
         Command::Table {

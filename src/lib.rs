@@ -10,6 +10,7 @@
 pub mod batch;
 pub mod error;
 pub mod fluids;
+pub mod numeric;
 pub mod quantity;
 pub mod report;
 

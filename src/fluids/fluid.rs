@@ -84,6 +84,8 @@ pub struct Fluid {
     pub ancillaries: Ancillaries,
     pub(crate) ideal: IdealPart,
     pub(crate) residual: ResidualPart,
+    /// The inversion curve, traced on first use.
+    pub(crate) inversion_cache: std::sync::OnceLock<Result<super::inversion::InversionCurve>>,
 }
 
 /// Every single-phase property at one (T, ρ).
@@ -178,6 +180,7 @@ impl Fluid {
             },
             ideal,
             residual,
+            inversion_cache: std::sync::OnceLock::new(),
         };
         let mut fluid = fluid;
         fluid.saturation_pressures = fluid

@@ -7,13 +7,16 @@
 
 pub mod ancillary;
 pub mod density;
+pub mod diagram;
 pub mod file;
 pub mod flash;
 mod fluid;
 pub mod helmholtz;
+pub mod inversion;
 pub mod saturation;
 pub mod spec;
 pub mod state;
+pub mod throttling;
 
 pub use density::Branch;
 pub use fluid::{Fluid, Point, Properties};

@@ -2,6 +2,8 @@
 //! report never computes thermodynamics beyond reading states.
 
 pub mod fluids;
+pub mod inversion;
+pub mod plot;
 pub mod state;
 pub mod table;
 

@@ -1,0 +1,83 @@
+//! The data of a temperature–pressure diagram: the saturation line, the inversion
+//! curve, and a family of isenthalps around it.
+
+use super::fluid::Fluid;
+use super::inversion::InversionCurve;
+use crate::error::Result;
+
+/// One isenthalp: its enthalpy and its (T, p) points from high to low pressure.
+#[derive(Debug, Clone)]
+pub struct Isenthalp {
+    /// Specific enthalpy, J/kg.
+    pub enthalpy: f64,
+    /// (temperature K, pressure Pa), in falling pressure.
+    pub points: Vec<(f64, f64)>,
+}
+
+/// Everything a T–p diagram of a fluid shows.
+#[derive(Debug, Clone)]
+pub struct TpDiagram {
+    /// Canonical fluid name.
+    pub fluid: String,
+    /// Literature key of the equation of state.
+    pub source_key: String,
+    /// The vapour-pressure line (T K, p Pa) from the triple point to the top of the
+    /// saturation range (the bubble line for air).
+    pub saturation: Vec<(f64, f64)>,
+    /// The inversion curve.
+    pub inversion: InversionCurve,
+    /// Isenthalps crossing the diagram.
+    pub isenthalps: Vec<Isenthalp>,
+    /// The highest pressure drawn, Pa.
+    pub pressure_top: f64,
+}
+
+impl Fluid {
+    /// Builds the T–p diagram data: `count` isenthalps from just above the cold end
+    /// of the inversion curve to past its maximum inversion temperature.
+    pub fn tp_diagram(&'static self, count: usize) -> Result<TpDiagram> {
+        let inversion = self.inversion()?.clone();
+        let pressure_top = (1.15 * inversion.max_inversion_pressure).min(self.pressure_max);
+        let (t_low, t_high) = (self.triple_temperature, self.saturation_temperature_max());
+        let saturation: Vec<(f64, f64)> = (0..=80)
+            .filter_map(|i| {
+                let t = t_low + (t_high - t_low) * i as f64 / 80.0;
+                let s = self.saturation_at_temperature(t.min(t_high)).ok()?;
+                Some((t, s.liquid.pressure))
+            })
+            .collect();
+        let cold = inversion
+            .curve
+            .last()
+            .map_or(self.critical.temperature, |p| p.temperature);
+        let hot = (1.25 * inversion.max_inversion_temperature).min(self.temperature_max);
+        let pressures: Vec<f64> = (0..=90)
+            .map(|i| pressure_top * (1.0 - 0.998 * i as f64 / 90.0))
+            .collect();
+        let mut isenthalps = Vec::new();
+        for j in 0..count {
+            let fraction = j as f64 / (count.max(2) - 1) as f64;
+            let t = (cold * 1.05) * ((hot / (cold * 1.05)).powf(fraction));
+            let Ok(start) = self.state_tp(t, pressure_top) else {
+                continue;
+            };
+            let points = self
+                .isenthalp(start.enthalpy, &pressures)
+                .iter()
+                .map(|s| (s.temperature, s.pressure))
+                .collect();
+            isenthalps.push(Isenthalp {
+                enthalpy: start.enthalpy,
+                points,
+            });
+        }
+        Ok(TpDiagram {
+            fluid: self.name.clone(),
+            source_key: self.source_key.clone(),
+            saturation,
+            inversion,
+            isenthalps,
+            pressure_top,
+        })
+    }
+}

@@ -1,0 +1,115 @@
+//! Small numerical tools shared by the solvers: a bracketed root finder and a
+//! golden-section maximiser, each capped and checked.
+
+use crate::error::{Error, Result};
+
+/// The root of `f` between `a` and `b`, where f(a) and f(b) differ in sign, by the
+/// Illinois variant of regula falsi (superlinear, never leaves the bracket). Stops
+/// when the bracket is narrower than `tolerance` (absolute) or f is exactly zero.
+pub fn bracketed_root(
+    solver: &'static str,
+    mut f: impl FnMut(f64) -> f64,
+    a: f64,
+    b: f64,
+    tolerance: f64,
+) -> Result<f64> {
+    const CAP: usize = 200;
+    let (mut a, mut b) = (a, b);
+    let (mut fa, mut fb) = (f(a), f(b));
+    if fa == 0.0 {
+        return Ok(a);
+    }
+    if fb == 0.0 {
+        return Ok(b);
+    }
+    if !(fa.is_finite() && fb.is_finite()) || fa.signum() == fb.signum() {
+        return Err(Error::NoConvergence {
+            solver,
+            iterations: 0,
+            residual: fa.abs().min(fb.abs()),
+            context: format!(": no sign change between {a} and {b}"),
+        });
+    }
+    let mut side = 0i32;
+    for _ in 0..CAP {
+        let c = (a * fb - b * fa) / (fb - fa);
+        let fc = f(c);
+        if !fc.is_finite() {
+            break;
+        }
+        if fc == 0.0 || (b - a).abs() < tolerance {
+            return Ok(c);
+        }
+        if fc.signum() == fa.signum() {
+            a = c;
+            fa = fc;
+            if side == -1 {
+                fb *= 0.5;
+            }
+            side = -1;
+        } else {
+            b = c;
+            fb = fc;
+            if side == 1 {
+                fa *= 0.5;
+            }
+            side = 1;
+        }
+        if (b - a).abs() < tolerance {
+            return Ok(0.5 * (a + b));
+        }
+    }
+    Err(Error::NoConvergence {
+        solver,
+        iterations: CAP,
+        residual: fa.abs().min(fb.abs()),
+        context: format!(": bracket [{a}, {b}]"),
+    })
+}
+
+/// The maximiser of a unimodal `f` on [a, b] by golden-section search, to an
+/// interval narrower than `tolerance`.
+pub fn golden_maximum(mut f: impl FnMut(f64) -> f64, a: f64, b: f64, tolerance: f64) -> f64 {
+    let ratio = 0.5 * (5f64.sqrt() - 1.0);
+    let (mut a, mut b) = (a, b);
+    let mut c = b - ratio * (b - a);
+    let mut d = a + ratio * (b - a);
+    let (mut fc, mut fd) = (f(c), f(d));
+    for _ in 0..200 {
+        if (b - a).abs() < tolerance {
+            break;
+        }
+        if fc > fd {
+            b = d;
+            d = c;
+            fd = fc;
+            c = b - ratio * (b - a);
+            fc = f(c);
+        } else {
+            a = c;
+            c = d;
+            fc = fd;
+            d = a + ratio * (b - a);
+            fd = f(d);
+        }
+    }
+    0.5 * (a + b)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn finds_a_root_and_refuses_a_bracket_without_one() {
+        let root = bracketed_root("test", |x| x * x - 2.0, 0.0, 2.0, 1e-14).unwrap();
+        assert!((root - 2f64.sqrt()).abs() < 1e-12);
+        assert!(bracketed_root("test", |x| x * x + 1.0, -1.0, 1.0, 1e-12).is_err());
+    }
+
+    #[test]
+    fn golden_section_finds_the_peak() {
+        let x = golden_maximum(|x| -(x - 0.3) * (x - 0.3), 0.0, 1.0, 1e-10);
+        assert!((x - 0.3).abs() < 1e-8);
+    }
+}

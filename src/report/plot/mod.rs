@@ -1,0 +1,60 @@
+//! Plots as SVG or PNG, chosen by the file's extension. Text is drawn with the
+//! DejaVu Sans font bundled in the binary, so PNG files carry legible text on a
+//! machine with no fonts installed.
+
+pub mod tp_diagram;
+
+use crate::error::{Error, Result};
+use std::path::Path;
+use std::sync::OnceLock;
+
+/// The font bundled for plot text (DejaVu Sans; licence beside it in
+/// src/report/fonts/).
+static FONT: &[u8] = include_bytes!("../fonts/DejaVuSans.ttf");
+
+/// Registers the bundled font under the family name plots use.
+pub fn ensure_font() -> Result<()> {
+    static DONE: OnceLock<bool> = OnceLock::new();
+    let ok = *DONE.get_or_init(|| {
+        plotters::style::register_font("sans-serif", plotters::style::FontStyle::Normal, FONT)
+            .is_ok()
+    });
+    if ok {
+        Ok(())
+    } else {
+        Err(Error::Input(
+            "the bundled plot font could not be loaded".into(),
+        ))
+    }
+}
+
+/// The image formats plots are written in.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Format {
+    /// Scalable vector graphics.
+    Svg,
+    /// Portable network graphics.
+    Png,
+}
+
+/// The format implied by a file name, or an error naming the allowed extensions.
+pub fn format_of(path: &Path) -> Result<Format> {
+    match path
+        .extension()
+        .and_then(|e| e.to_str())
+        .map(str::to_ascii_lowercase)
+        .as_deref()
+    {
+        Some("svg") => Ok(Format::Svg),
+        Some("png") => Ok(Format::Png),
+        _ => Err(Error::Input(format!(
+            "{}: a plot file must end in .svg or .png",
+            path.display()
+        ))),
+    }
+}
+
+/// Turns a drawing error into ours.
+pub(crate) fn drawing<E: std::fmt::Debug>(path: &Path) -> impl Fn(E) -> Error + '_ {
+    move |e| Error::Input(format!("cannot draw {}: {e:?}", path.display()))
+}
