@@ -8,10 +8,13 @@
 #![allow(clippy::neg_cmp_op_on_partial_ord)]
 
 pub mod batch;
+pub mod equipment;
 pub mod error;
+pub mod flowsheet;
 pub mod fluids;
 pub mod numeric;
 pub mod quantity;
 pub mod report;
+pub mod solve;
 
 pub use error::{Error, Result};

@@ -28,6 +28,8 @@ pub enum Dimension {
     Density,
     /// A pure number or fraction (no unit, or `%`).
     Fraction,
+    /// A thermal conductance such as an exchanger's UA (W/K, kW/K).
+    Conductance,
 }
 
 impl Dimension {
@@ -47,6 +49,7 @@ impl Dimension {
             Dimension::SpecificEntropy => "an entropy per mass such as 5 kJ/kg/K or 5000 J/(kg·K)",
             Dimension::Density => "a density such as 70 kg/m3 or 0.8 g/cm3",
             Dimension::Fraction => "a number or a percentage such as 0.4 or 40 %",
+            Dimension::Conductance => "a conductance such as 5 kW/K or 800 W/K",
         }
     }
 
@@ -62,6 +65,7 @@ impl Dimension {
             Dimension::SpecificEntropy => "entropy per mass",
             Dimension::Density => "density",
             Dimension::Fraction => "fraction",
+            Dimension::Conductance => "conductance",
         }
     }
 }
@@ -171,6 +175,9 @@ fn lookup(unit: &str, expected: Dimension) -> Option<UnitRule> {
         "g/L" | "g/l" => rule(Density, 1.0, 0.0),
         "lb/ft3" => rule(Density, 16.018_463_373_960_138, 0.0),
         "%" => rule(Fraction, 0.01, 0.0),
+        "W/K" => rule(Conductance, 1.0, 0.0),
+        "kW/K" => rule(Conductance, 1e3, 0.0),
+        "MW/K" => rule(Conductance, 1e6, 0.0),
         _ => return None,
     };
     Some(r)
@@ -292,6 +299,7 @@ pub fn format(value: f64, dimension: Dimension) -> String {
         SpecificEntropy => format!("{:.5} kJ/(kg·K)", value / 1e3),
         Density => format!("{value:.5} kg/m³"),
         Fraction => format!("{value:.6}"),
+        Conductance => format!("{:.4} kW/K", value / 1e3),
     }
 }
 

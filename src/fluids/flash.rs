@@ -9,7 +9,7 @@
 use super::density::Branch;
 use super::fluid::{Fluid, Properties};
 use super::saturation::Saturation;
-use super::state::{SaturatedPair, State};
+use super::state::{Phase, SaturatedPair, State};
 use crate::error::{Error, Result};
 
 /// Iteration cap of the temperature search at fixed pressure.
@@ -318,6 +318,99 @@ impl Fluid {
     /// The state at pressure p (Pa) and specific enthalpy h (J/kg).
     pub fn state_ph(&'static self, pressure: f64, enthalpy: f64) -> Result<State> {
         self.state_at_pressure(pressure, enthalpy, Held::Enthalpy)
+    }
+
+    /// The state at (p, h) when a nearby single-phase state is known, as along an
+    /// exchanger's profile: a few Newton steps in T from it, accepted only when the
+    /// answer lies clearly on the same side of saturation; otherwise the full
+    /// [`Fluid::state_ph`].
+    pub fn state_ph_near(
+        &'static self,
+        pressure: f64,
+        enthalpy: f64,
+        near: &State,
+    ) -> Result<State> {
+        if let Some(state) = self.near_single_phase(pressure, enthalpy, Held::Enthalpy, near) {
+            return Ok(state);
+        }
+        self.state_ph(pressure, enthalpy)
+    }
+
+    fn near_single_phase(
+        &'static self,
+        pressure: f64,
+        target: f64,
+        held: Held,
+        near: &State,
+    ) -> Option<State> {
+        let start = near.single_phase?;
+        if !std::ptr::eq(near.fluid, self) || self.pseudo_pure {
+            return None;
+        }
+        let region = match near.phase {
+            Phase::Liquid => Region::Liquid,
+            Phase::Vapour => Region::Vapour,
+            Phase::Gas | Phase::Supercritical => Region::AboveCritical,
+            Phase::TwoPhase => return None,
+        };
+        if pressure > self.pressure_max || pressure <= 0.0 {
+            return None;
+        }
+        let mut current = start;
+        if (current.pressure - pressure).abs() > 1e-12 * pressure {
+            current = self
+                .properties_near(region, current.temperature, pressure, &current)
+                .ok()?;
+        }
+        for _ in 0..8 {
+            let g = held.of(&current) - target;
+            let t = current.temperature;
+            if g.abs() <= 0.1 * held.rounding(self, t) {
+                break;
+            }
+            let next = t - g / held.slope(&current);
+            if !(next > self.temperature_min && next < self.temperature_max)
+                || (next - t).abs() > 0.2 * t
+            {
+                return None;
+            }
+            current = self
+                .properties_near(region, next, pressure, &current)
+                .ok()?;
+            if (next - t).abs() <= 1e-12 * t {
+                break;
+            }
+        }
+        if (held.of(&current) - target).abs() > held.rounding(self, current.temperature) {
+            return None;
+        }
+        let t = current.temperature;
+        // Clearly away from saturation at this pressure (by four times the measured
+        // ancillary error, as a temperature), or above the critical point.
+        let (sat_low, sat_high) = self.saturation_pressure_range();
+        if pressure >= sat_low && pressure < sat_high {
+            let equation = &self.ancillaries.bubble_pressure;
+            let t_sat = equation.temperature_at(
+                pressure,
+                self.triple_temperature,
+                self.saturation_temperature_max(),
+            );
+            let (_, slope) = equation.log_value_and_slope(t_sat);
+            let margin = 2.0 * self.ancillary_margin() / slope + 1e-6 * t_sat;
+            let clear = match region {
+                Region::Liquid => t < t_sat - margin,
+                Region::Vapour => t > t_sat + margin,
+                Region::AboveCritical => t > self.critical.temperature,
+            };
+            if !clear {
+                return None;
+            }
+        } else if pressure < sat_low && region == Region::Liquid {
+            return None;
+        }
+        let liquid_side = region == Region::Liquid
+            || (region == Region::AboveCritical && t < self.critical.temperature);
+        self.single_state(current, liquid_side).ok()
     }
 
     /// The state at pressure p (Pa) and specific entropy s (J/(kg·K)).

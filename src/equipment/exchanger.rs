@@ -1,0 +1,372 @@
+//! A two-stream counterflow heat exchanger, resolved along its duty on equal
+//! segments so that an internal pinch is found with real-fluid heat capacities.
+//!
+//! Position along the exchanger is the duty transferred from the warm end (where the
+//! hot stream enters and the cold stream leaves). Pressures fall linearly along each
+//! side; a heat leak from ambient warms the cold stream evenly along its length.
+
+use super::{Context, Details, Flow, Performance};
+use crate::error::{Error, Result};
+use crate::flowsheet::plant::ExchangerSpec;
+use crate::fluids::State;
+use crate::numeric::bracketed_root;
+
+/// The exchanger's design inputs.
+#[derive(Debug, Clone, Copy)]
+pub struct Design {
+    /// Duty specification.
+    pub spec: ExchangerSpec,
+    /// Pa.
+    pub hot_pressure_drop: f64,
+    /// Pa.
+    pub cold_pressure_drop: f64,
+    /// W into the cold stream.
+    pub heat_leak: f64,
+    /// Number of segments.
+    pub segments: usize,
+}
+
+/// One point of the temperature–duty profile.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct ProfilePoint {
+    /// Duty transferred from the warm end to here, W.
+    pub duty: f64,
+    /// Hot-stream temperature, K.
+    pub hot_temperature: f64,
+    /// Cold-stream temperature, K.
+    pub cold_temperature: f64,
+}
+
+/// The exchanger's results.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ExchangerReport {
+    /// Conductance UA = Σ dQ/ΔT_lm over the segments, W/K (infinite at a pinch of 0).
+    pub ua: f64,
+    /// Duty over the largest duty the streams allow (pinch of zero).
+    pub effectiveness: f64,
+    /// The largest duty the streams allow, W.
+    pub max_duty: f64,
+    /// The smallest hot-minus-cold temperature difference anywhere, K.
+    pub min_approach: f64,
+    /// Where it occurs, as the fraction of the duty from the warm end (0 warm, 1 cold).
+    pub min_approach_position: f64,
+    /// Hot inlet minus cold outlet temperature, K.
+    pub warm_end_approach: f64,
+    /// Hot outlet minus cold inlet temperature, K.
+    pub cold_end_approach: f64,
+    /// The temperature–duty profile, warm end first.
+    pub profile: Vec<ProfilePoint>,
+}
+
+struct Sides<'a> {
+    hot: &'a Flow,
+    cold: &'a Flow,
+    design: &'a Design,
+}
+
+impl Sides<'_> {
+    fn hot_outlet_pressure(&self) -> f64 {
+        self.hot.state.pressure - self.design.hot_pressure_drop
+    }
+
+    fn cold_outlet_pressure(&self) -> f64 {
+        self.cold.state.pressure - self.design.cold_pressure_drop
+    }
+
+    /// The profile at duty `q`, warm end (index 0) to cold end, with the states of
+    /// both streams at each segment boundary.
+    fn profile(&self, q: f64) -> Result<Vec<(f64, State, State)>> {
+        let n = self.design.segments.max(1);
+        let (hot, cold) = (&self.hot.state, &self.cold.state);
+        let (mh, mc) = (self.hot.flow, self.cold.flow);
+        let hot_fluid = hot.fluid();
+        let cold_fluid = cold.fluid();
+        let leak = self.design.heat_leak;
+        let mut hot_states = Vec::with_capacity(n + 1);
+        hot_states.push(hot.clone());
+        for k in 1..=n {
+            let f = k as f64 / n as f64;
+            let p = hot.pressure - self.design.hot_pressure_drop * f;
+            let h = hot.enthalpy - q * f / mh;
+            let previous = &hot_states[k - 1];
+            hot_states.push(hot_fluid.state_ph_near(p, h, previous)?);
+        }
+        let mut cold_states: Vec<State> = Vec::with_capacity(n + 1);
+        cold_states.push(cold.clone());
+        for k in (0..n).rev() {
+            let f = k as f64 / n as f64;
+            // From the cold end (k = n) towards the warm end (k = 0).
+            let along = 1.0 - f;
+            let p = cold.pressure - self.design.cold_pressure_drop * along;
+            let h = cold.enthalpy + (q + leak) * along / mc;
+            let previous = cold_states.last().unwrap_or(cold);
+            let state = cold_fluid.state_ph_near(p, h, previous)?;
+            cold_states.push(state);
+        }
+        cold_states.reverse();
+        Ok((0..=n)
+            .map(|k| {
+                (
+                    q * k as f64 / n as f64,
+                    hot_states[k].clone(),
+                    cold_states[k].clone(),
+                )
+            })
+            .collect())
+    }
+
+    fn min_approach(&self, q: f64) -> Result<(f64, usize)> {
+        let profile = self.profile(q)?;
+        Ok(profile
+            .iter()
+            .enumerate()
+            .map(|(i, (_, h, c))| (h.temperature - c.temperature, i))
+            .fold((f64::INFINITY, 0), |a, b| if b.0 < a.0 { b } else { a }))
+    }
+
+    /// The duty at which either outlet would reach the other stream's inlet
+    /// temperature: an upper bound on any duty.
+    fn end_limited_duty(&self) -> Result<f64> {
+        let (hot, cold) = (&self.hot.state, &self.cold.state);
+        if hot.temperature <= cold.temperature {
+            return Ok(0.0);
+        }
+        let hot_fluid = hot.fluid();
+        let cold_fluid = cold.fluid();
+        // Neither outlet may leave its fluid's range: the hot one not into the solid.
+        let coldest_hot = hot_fluid
+            .melting_temperature(self.hot_outlet_pressure())
+            .unwrap_or(hot_fluid.temperature_min)
+            .max(hot_fluid.temperature_min)
+            * (1.0 + 1e-6);
+        let t_cold = cold.temperature.max(coldest_hot);
+        let t_hot = hot.temperature.min(cold_fluid.temperature_max);
+        let hot_limit = self.hot.flow
+            * (hot.enthalpy - state_at(hot_fluid, t_cold, self.hot_outlet_pressure())?.enthalpy);
+        let cold_limit = self.cold.flow
+            * (state_at(cold_fluid, t_hot, self.cold_outlet_pressure())?.enthalpy - cold.enthalpy)
+            - self.design.heat_leak;
+        Ok(hot_limit.min(cold_limit).max(0.0))
+    }
+
+    /// The largest duty: where the smallest temperature difference reaches zero.
+    fn max_duty(&self, upper: f64) -> Result<f64> {
+        if upper <= 0.0 {
+            return Ok(0.0);
+        }
+        let (at_upper, _) = self.min_approach(upper)?;
+        if at_upper >= 0.0 {
+            return Ok(upper);
+        }
+        bracketed_root(
+            "exchanger largest duty (zero pinch)",
+            |q| self.min_approach(q).map(|m| m.0).unwrap_or(f64::NAN),
+            0.0,
+            upper,
+            1e-12 * upper,
+        )
+    }
+
+    fn ua(&self, q: f64) -> Result<f64> {
+        let profile = self.profile(q)?;
+        let mut ua = 0.0;
+        for pair in profile.windows(2) {
+            let a = pair[0].1.temperature - pair[0].2.temperature;
+            let b = pair[1].1.temperature - pair[1].2.temperature;
+            if a <= 0.0 || b <= 0.0 {
+                return Ok(f64::INFINITY);
+            }
+            let lmtd = if (a - b).abs() < 1e-9 * a {
+                0.5 * (a + b)
+            } else {
+                (a - b) / (a / b).ln()
+            };
+            ua += (pair[1].0 - pair[0].0) / lmtd;
+        }
+        Ok(ua)
+    }
+}
+
+/// A state at (T, p), nudged off the saturation line where (T, p) lies on it.
+fn state_at(fluid: &'static crate::fluids::Fluid, t: f64, p: f64) -> Result<State> {
+    fluid
+        .state_tp(t, p)
+        .or_else(|_| fluid.state_tp(t * (1.0 + 1e-9), p))
+}
+
+/// Solves the exchanger.
+pub fn run(
+    hot: &Flow,
+    cold: &Flow,
+    design: &Design,
+    context: &Context,
+) -> Result<(Vec<Flow>, Performance)> {
+    let sides = Sides { hot, cold, design };
+    let (hot_fluid, cold_fluid) = (hot.state.fluid(), cold.state.fluid());
+    let degenerate = !(hot.flow > 0.0 && cold.flow > 0.0);
+    let upper = if degenerate {
+        0.0
+    } else {
+        sides.end_limited_duty()?
+    };
+    let duty = match design.spec {
+        _ if upper <= 0.0 => 0.0,
+        ExchangerSpec::WarmEndApproach(dt) => {
+            let out = state_at(
+                cold_fluid,
+                (hot.state.temperature - dt).max(cold.state.temperature),
+                sides.cold_outlet_pressure(),
+            )?;
+            (cold.flow * (out.enthalpy - cold.state.enthalpy) - design.heat_leak).clamp(0.0, upper)
+        }
+        ExchangerSpec::ColdEndApproach(dt) => {
+            let out = state_at(
+                hot_fluid,
+                (cold.state.temperature + dt).min(hot.state.temperature),
+                sides.hot_outlet_pressure(),
+            )?;
+            (hot.flow * (hot.state.enthalpy - out.enthalpy)).clamp(0.0, upper)
+        }
+        ExchangerSpec::MinimumApproach(dt) => {
+            let (at_zero, _) = sides.min_approach(0.0)?;
+            if at_zero <= dt {
+                0.0
+            } else {
+                bracketed_root(
+                    "exchanger duty for a minimum approach",
+                    |q| sides.min_approach(q).map(|m| m.0 - dt).unwrap_or(f64::NAN),
+                    0.0,
+                    upper,
+                    1e-12 * upper,
+                )?
+            }
+        }
+        ExchangerSpec::Effectiveness(e) => e * sides.max_duty(upper)?,
+        ExchangerSpec::Conductance(ua) => {
+            let q_max = sides.max_duty(upper)?;
+            let top = q_max * (1.0 - 1e-9);
+            if sides.ua(top)? <= ua {
+                top
+            } else {
+                bracketed_root(
+                    "exchanger duty for a conductance",
+                    |q| sides.ua(q).map(|v| v - ua).unwrap_or(f64::NAN),
+                    0.0,
+                    top,
+                    1e-12 * q_max,
+                )?
+            }
+        }
+    };
+    if !context.detailed && !degenerate {
+        // Outlets only: no profile needed for this pass.
+        let hot_out = hot_fluid.state_ph(
+            sides.hot_outlet_pressure(),
+            hot.state.enthalpy - duty / hot.flow,
+        )?;
+        let cold_out = cold_fluid.state_ph(
+            sides.cold_outlet_pressure(),
+            cold.state.enthalpy + (duty + design.heat_leak) / cold.flow,
+        )?;
+        let performance = Performance {
+            heat_in: vec![(design.heat_leak, context.ambient)],
+            duty: Some(duty),
+            ..Performance::default()
+        };
+        return Ok((
+            vec![
+                Flow {
+                    state: hot_out,
+                    flow: hot.flow,
+                },
+                Flow {
+                    state: cold_out,
+                    flow: cold.flow,
+                },
+            ],
+            performance,
+        ));
+    }
+    let profile = sides
+        .profile(if degenerate { 0.0 } else { duty })
+        .or_else(|e| {
+            if degenerate {
+                Ok(vec![(0.0, hot.state.clone(), cold.state.clone())])
+            } else {
+                Err(e)
+            }
+        })?;
+    let (_, hot_out, _) = profile
+        .last()
+        .cloned()
+        .ok_or_else(|| Error::Input("empty profile".into()))?;
+    let (_, _, cold_out) = profile
+        .first()
+        .cloned()
+        .ok_or_else(|| Error::Input("empty profile".into()))?;
+    let hot_out = if degenerate {
+        hot_fluid.state_ph(sides.hot_outlet_pressure(), hot.state.enthalpy)?
+    } else {
+        hot_out
+    };
+    let cold_out = if degenerate {
+        cold_fluid.state_ph(
+            sides.cold_outlet_pressure(),
+            cold.state.enthalpy
+                + if cold.flow > 0.0 {
+                    design.heat_leak / cold.flow
+                } else {
+                    0.0
+                },
+        )?
+    } else {
+        cold_out
+    };
+    let points: Vec<ProfilePoint> = profile
+        .iter()
+        .map(|(q, h, c)| ProfilePoint {
+            duty: *q,
+            hot_temperature: h.temperature,
+            cold_temperature: c.temperature,
+        })
+        .collect();
+    let (min_approach, at) = points
+        .iter()
+        .enumerate()
+        .map(|(i, p)| (p.hot_temperature - p.cold_temperature, i))
+        .fold((f64::INFINITY, 0), |a, b| if b.0 < a.0 { b } else { a });
+    let max_duty = match design.spec {
+        ExchangerSpec::Effectiveness(_) | ExchangerSpec::Conductance(_) => sides.max_duty(upper)?,
+        _ if degenerate => 0.0,
+        _ => sides.max_duty(upper)?,
+    };
+    let report = ExchangerReport {
+        ua: if degenerate { 0.0 } else { sides.ua(duty)? },
+        effectiveness: if max_duty > 0.0 { duty / max_duty } else { 0.0 },
+        max_duty,
+        min_approach,
+        min_approach_position: at as f64 / (points.len().max(2) - 1) as f64,
+        warm_end_approach: hot.state.temperature - cold_out.temperature,
+        cold_end_approach: hot_out.temperature - cold.state.temperature,
+        profile: points,
+    };
+    let performance = Performance {
+        heat_in: vec![(design.heat_leak, context.ambient)],
+        duty: Some(duty),
+        details: Details::Exchanger(Box::new(report)),
+        ..Performance::default()
+    };
+    Ok((
+        vec![
+            Flow {
+                state: hot_out,
+                flow: hot.flow,
+            },
+            Flow {
+                state: cold_out,
+                flow: cold.flow,
+            },
+        ],
+        performance,
+    ))
+}

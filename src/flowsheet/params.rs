@@ -1,0 +1,213 @@
+//! Reading one equipment item's keys: typed, unit-checked and range-checked, each
+//! error located at its key; keys the kind does not know are errors too.
+
+use super::locate::Locator;
+use super::schema::EquipmentEntry;
+use super::FlowsheetError;
+use crate::quantity::{self, Dimension};
+use std::cell::RefCell;
+use std::collections::BTreeSet;
+
+/// Where errors are reported: the file's name and its locator.
+pub struct Place<'a> {
+    /// File name for messages.
+    pub file: &'a str,
+    /// Key positions.
+    pub locator: &'a Locator,
+    /// Keys replaced by `--set`, reported as such.
+    pub overridden: &'a BTreeSet<(String, String)>,
+}
+
+/// The keys of one equipment item.
+pub struct Params<'a> {
+    entry: &'a EquipmentEntry,
+    index: usize,
+    place: &'a Place<'a>,
+    used: RefCell<BTreeSet<&'static str>>,
+}
+
+/// Text of a YAML scalar as written.
+fn scalar_text(value: &serde_yaml::Value) -> Option<String> {
+    match value {
+        serde_yaml::Value::String(s) => Some(s.clone()),
+        serde_yaml::Value::Number(n) => Some(n.to_string()),
+        serde_yaml::Value::Bool(b) => Some(b.to_string()),
+        _ => None,
+    }
+}
+
+impl<'a> Params<'a> {
+    /// The keys of equipment item `index`.
+    pub fn new(entry: &'a EquipmentEntry, index: usize, place: &'a Place<'a>) -> Self {
+        Params {
+            entry,
+            index,
+            place,
+            used: RefCell::new(BTreeSet::new()),
+        }
+    }
+
+    /// An error located at `key` (or at the item when the key is absent).
+    pub fn error(&self, key: &str, message: impl Into<String>) -> FlowsheetError {
+        let overridden = self
+            .place
+            .overridden
+            .contains(&(self.entry.id.clone(), key.to_string()));
+        FlowsheetError {
+            file: if overridden {
+                format!("--set {}.{key}", self.entry.id)
+            } else {
+                self.place.file.to_string()
+            },
+            position: if overridden {
+                None
+            } else {
+                self.place.locator.key(self.index, key)
+            },
+            equipment: Some(self.entry.id.clone()),
+            message: message.into(),
+        }
+    }
+
+    fn raw(&self, key: &'static str) -> Option<&serde_yaml::Value> {
+        self.used.borrow_mut().insert(key);
+        self.entry.params.get(key)
+    }
+
+    /// A required text value.
+    pub fn text(&self, key: &'static str) -> Result<String, FlowsheetError> {
+        self.text_opt(key)?.ok_or_else(|| {
+            self.error(
+                key,
+                format!("'{key}' is required for a {}", self.entry.kind),
+            )
+        })
+    }
+
+    /// An optional text value.
+    pub fn text_opt(&self, key: &'static str) -> Result<Option<String>, FlowsheetError> {
+        match self.raw(key) {
+            None => Ok(None),
+            Some(v) => scalar_text(v)
+                .map(Some)
+                .ok_or_else(|| self.error(key, format!("'{key}' must be a single value"))),
+        }
+    }
+
+    /// A list of text values (a single value counts as a list of one).
+    pub fn text_list(&self, key: &'static str) -> Result<Option<Vec<String>>, FlowsheetError> {
+        match self.raw(key) {
+            None => Ok(None),
+            Some(serde_yaml::Value::Sequence(items)) => items
+                .iter()
+                .map(|v| {
+                    scalar_text(v).ok_or_else(|| {
+                        self.error(
+                            key,
+                            format!("'{key}' must list names of upstream equipment"),
+                        )
+                    })
+                })
+                .collect::<Result<Vec<_>, _>>()
+                .map(Some),
+            Some(v) => scalar_text(v)
+                .map(|s| Some(vec![s]))
+                .ok_or_else(|| self.error(key, format!("'{key}' must list upstream equipment"))),
+        }
+    }
+
+    /// A required quantity with its unit, in SI, between `low` and `high`.
+    pub fn quantity(
+        &self,
+        key: &'static str,
+        dimension: Dimension,
+        low: f64,
+        high: f64,
+    ) -> Result<f64, FlowsheetError> {
+        self.quantity_opt(key, dimension, low, high)?
+            .ok_or_else(|| {
+                self.error(
+                    key,
+                    format!(
+                        "'{key}' is required for a {}: give {}",
+                        self.entry.kind,
+                        dimension.describe()
+                    ),
+                )
+            })
+    }
+
+    /// An optional quantity with its unit, in SI, between `low` and `high`.
+    pub fn quantity_opt(
+        &self,
+        key: &'static str,
+        dimension: Dimension,
+        low: f64,
+        high: f64,
+    ) -> Result<Option<f64>, FlowsheetError> {
+        let Some(raw) = self.raw(key) else {
+            return Ok(None);
+        };
+        let text = scalar_text(raw)
+            .ok_or_else(|| self.error(key, format!("'{key}' must be {}", dimension.describe())))?;
+        let value = quantity::parse(&text, dimension)
+            .map_err(|e| self.error(key, format!("{key}: {e}")))?;
+        if !(value >= low && value <= high) {
+            return Err(self.error(
+                key,
+                format!(
+                    "{key} = {text} is outside the allowed range {} to {}",
+                    quantity::format(low, dimension),
+                    quantity::format(high, dimension)
+                ),
+            ));
+        }
+        Ok(Some(value))
+    }
+
+    /// An optional whole number between `low` and `high`.
+    pub fn whole_opt(
+        &self,
+        key: &'static str,
+        low: usize,
+        high: usize,
+    ) -> Result<Option<usize>, FlowsheetError> {
+        let Some(raw) = self.raw(key) else {
+            return Ok(None);
+        };
+        let value = raw.as_u64().map(|v| v as usize).ok_or_else(|| {
+            self.error(
+                key,
+                format!("'{key}' must be a whole number from {low} to {high}"),
+            )
+        })?;
+        if !(low..=high).contains(&value) {
+            return Err(self.error(
+                key,
+                format!("{key} = {value} is outside the allowed range {low} to {high}"),
+            ));
+        }
+        Ok(Some(value))
+    }
+
+    /// Checks that every key written was read: unknown keys are errors.
+    pub fn finish(&self) -> Result<(), FlowsheetError> {
+        let used = self.used.borrow();
+        for key in self.entry.params.keys() {
+            if !used.contains(key.as_str()) {
+                let mut known: Vec<&str> = used.iter().copied().collect();
+                known.sort_unstable();
+                return Err(self.error(
+                    key,
+                    format!(
+                        "unknown key '{key}' for a {}; the keys of a {} are: id, kind, {}",
+                        self.entry.kind,
+                        self.entry.kind,
+                        known.join(", ")
+                    ),
+                ));
+            }
+        }
+        Ok(())
+    }
+}

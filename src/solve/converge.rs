@@ -1,0 +1,256 @@
+//! Recycle convergence: bounded Wegstein acceleration of the fixed point x = G(x),
+//! or Newton–Broyden on F(x) = G(x) − x, both on scaled variables, both capped, both
+//! backing off when a pass fails from a poor iterate.
+
+use crate::error::{Error, Result};
+use nalgebra::{DMatrix, DVector};
+
+/// One pass of the flowsheet: G(x), or an error when the pass cannot be computed.
+pub trait FixedPoint {
+    /// Computes G(x) (in the same scaled variables).
+    fn pass(&mut self, x: &[f64]) -> Result<Vec<f64>>;
+}
+
+/// The outcome of a convergence run.
+#[derive(Debug, Clone)]
+pub struct Converged {
+    /// The converged variables.
+    pub x: Vec<f64>,
+    /// Passes made.
+    pub iterations: usize,
+    /// Largest scaled residual |G(x) − x| after each pass.
+    pub log: Vec<f64>,
+}
+
+fn largest(a: &[f64], b: &[f64]) -> (f64, usize) {
+    a.iter()
+        .zip(b)
+        .map(|(x, y)| (y - x).abs())
+        .enumerate()
+        .fold((0.0, 0), |best, (i, r)| {
+            if r > best.0 || r.is_nan() {
+                (r, i)
+            } else {
+                best
+            }
+        })
+}
+
+/// A pass at `x`; when it fails, steps back halfway towards `safe` up to ten times.
+fn guarded_pass(problem: &mut impl FixedPoint, x: &mut Vec<f64>, safe: &[f64]) -> Result<Vec<f64>> {
+    let mut last_error = None;
+    for _ in 0..10 {
+        match problem.pass(x) {
+            Ok(g) if g.iter().all(|v| v.is_finite()) => return Ok(g),
+            Ok(_) => last_error = None,
+            Err(e) => last_error = Some(e),
+        }
+        for (xi, si) in x.iter_mut().zip(safe) {
+            *xi = 0.5 * (*xi + si);
+        }
+    }
+    Err(last_error.unwrap_or(Error::Input(
+        "a flowsheet pass gave non-finite values".into(),
+    )))
+}
+
+/// Wegstein with q bounded to [−3, 0.9] per variable (negative q accelerates a
+/// slow approach, positive q damps an oscillation), after two plain substitutions.
+/// Where a step makes the largest residual grow (a recycle switching regime, as a
+/// valve outlet turning two-phase), the history is dropped and a damped plain step
+/// taken instead, more damped each time it recurs.
+pub fn wegstein(
+    problem: &mut impl FixedPoint,
+    start: Vec<f64>,
+    tolerance: f64,
+    cap: usize,
+    describe: &dyn Fn(usize) -> String,
+) -> Result<Converged> {
+    let mut x = start.clone();
+    let mut g = guarded_pass(problem, &mut x, &start)?;
+    let mut log = vec![largest(&x, &g).0];
+    let mut previous: Option<(Vec<f64>, Vec<f64>)> = None;
+    let mut plain_steps = 0usize;
+    let mut damping = 1.0f64;
+    let mut last_residual = f64::INFINITY;
+    for iteration in 1..=cap {
+        let (r, worst) = largest(&x, &g);
+        if r <= tolerance {
+            return Ok(Converged {
+                x,
+                iterations: iteration,
+                log,
+            });
+        }
+        let grew = r > last_residual;
+        if grew {
+            previous = None;
+            plain_steps = 0;
+            damping = (damping * 0.7).max(0.1);
+        } else if r < 0.5 * last_residual {
+            damping = (damping * 1.2).min(1.0);
+        }
+        last_residual = r;
+        let mut next: Vec<f64> = x
+            .iter()
+            .zip(&g)
+            .map(|(xi, gi)| xi + damping * (gi - xi))
+            .collect();
+        if let Some((px, pg)) = &previous {
+            if plain_steps >= 2 {
+                for i in 0..x.len() {
+                    let dx = x[i] - px[i];
+                    if dx.abs() > 1e-300 {
+                        let s = (g[i] - pg[i]) / dx;
+                        let q = (s / (s - 1.0)).clamp(-3.0, 0.9);
+                        if q.is_finite() {
+                            next[i] = q * x[i] + (1.0 - q) * g[i];
+                        }
+                    }
+                }
+            }
+        }
+        plain_steps += 1;
+        previous = Some((x.clone(), g.clone()));
+        let safe = x.clone();
+        x = next;
+        g = match guarded_pass(problem, &mut x, &safe) {
+            Ok(g) => g,
+            Err(e) => {
+                return Err(Error::NoConvergence {
+                    solver: "recycle convergence (Wegstein)",
+                    iterations: iteration,
+                    residual: r,
+                    context: format!(
+                        ": a pass failed ({e}); largest residual was {}",
+                        describe(worst)
+                    ),
+                })
+            }
+        };
+        log.push(largest(&x, &g).0);
+    }
+    let (r, worst) = largest(&x, &g);
+    Err(Error::NoConvergence {
+        solver: "recycle convergence (Wegstein)",
+        iterations: cap,
+        residual: r,
+        context: format!(" on {}", describe(worst)),
+    })
+}
+
+/// Broyden's good method on F(x) = G(x) − x, starting from J = −I (a plain
+/// substitution), with a backtracking step when the residual grows.
+pub fn broyden(
+    problem: &mut impl FixedPoint,
+    start: Vec<f64>,
+    tolerance: f64,
+    cap: usize,
+    describe: &dyn Fn(usize) -> String,
+) -> Result<Converged> {
+    let n = start.len();
+    let mut x = DVector::from_vec(start.clone());
+    let mut xs = x.as_slice().to_vec();
+    let g = guarded_pass(problem, &mut xs, &start)?;
+    x = DVector::from_vec(xs);
+    let mut f = DVector::from_vec(g) - &x;
+    let mut inverse = -DMatrix::<f64>::identity(n, n);
+    let mut log = vec![f.amax()];
+    for iteration in 1..=cap {
+        let r = f.amax();
+        if r <= tolerance {
+            return Ok(Converged {
+                x: x.as_slice().to_vec(),
+                iterations: iteration,
+                log,
+            });
+        }
+        let step = -(&inverse * &f);
+        let mut lambda = 1.0;
+        let mut accepted = None;
+        for _ in 0..12 {
+            let mut trial: Vec<f64> = (&x + &step * lambda).as_slice().to_vec();
+            let safe = x.as_slice().to_vec();
+            if let Ok(g) = guarded_pass(problem, &mut trial, &safe) {
+                let t = DVector::from_vec(trial);
+                let ft = DVector::from_vec(g) - &t;
+                if ft.amax() < r * (1.0 - 1e-4 * lambda) || lambda < 0.02 {
+                    accepted = Some((t, ft));
+                    break;
+                }
+            }
+            lambda *= 0.5;
+        }
+        let Some((xn, fn_)) = accepted else {
+            let worst = f.iamax();
+            return Err(Error::NoConvergence {
+                solver: "recycle convergence (Broyden)",
+                iterations: iteration,
+                residual: r,
+                context: format!(
+                    ": no step reduced the residual; largest on {}",
+                    describe(worst)
+                ),
+            });
+        };
+        let dx = &xn - &x;
+        let df = &fn_ - &f;
+        let h_df = &inverse * &df;
+        let denominator = dx.dot(&h_df);
+        if denominator.abs() > 1e-300 {
+            inverse += (&dx - &h_df) * (dx.transpose() * &inverse) / denominator;
+        }
+        x = xn;
+        f = fn_;
+        log.push(f.amax());
+    }
+    let worst = f.iamax();
+    Err(Error::NoConvergence {
+        solver: "recycle convergence (Broyden)",
+        iterations: cap,
+        residual: f.amax(),
+        context: format!(" on {}", describe(worst)),
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    struct Linear;
+    impl FixedPoint for Linear {
+        /// x = 0.9 x + 1 with a strongly coupled second variable.
+        fn pass(&mut self, x: &[f64]) -> Result<Vec<f64>> {
+            Ok(vec![0.95 * x[0] + 1.0, 0.5 * x[0] - 0.9 * x[1]])
+        }
+    }
+
+    #[test]
+    fn both_methods_find_the_fixed_point() {
+        let describe = |i: usize| format!("x{i}");
+        for solved in [
+            wegstein(&mut Linear, vec![0.0, 0.0], 1e-12, 200, &describe).unwrap(),
+            broyden(&mut Linear, vec![0.0, 0.0], 1e-12, 200, &describe).unwrap(),
+        ] {
+            assert!((solved.x[0] - 20.0).abs() < 1e-9, "{:?}", solved.x);
+            assert!((solved.x[1] - 10.0 / 1.9).abs() < 1e-9, "{:?}", solved.x);
+        }
+    }
+
+    struct Diverging;
+    impl FixedPoint for Diverging {
+        fn pass(&mut self, x: &[f64]) -> Result<Vec<f64>> {
+            Ok(vec![x[0] * x[0] + 1.0])
+        }
+    }
+
+    #[test]
+    fn no_fixed_point_is_a_diagnostic_error() {
+        let e = wegstein(&mut Diverging, vec![0.0], 1e-12, 30, &|_| "tear x".into()).unwrap_err();
+        let text = e.to_string();
+        assert!(
+            text.contains("Wegstein") && text.contains("tear x"),
+            "{text}"
+        );
+    }
+}

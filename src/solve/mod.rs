@@ -1,0 +1,302 @@
+//! The sequential-modular solver: units computed in order over the torn graph, the
+//! tear streams and make-up flows converged by Wegstein (default) or Broyden.
+
+pub mod converge;
+pub mod order;
+pub mod results;
+
+pub use results::{Solution, Summary, UnitResult};
+
+use crate::equipment::{self, Context, Flow, Performance};
+use crate::error::{Error, Result};
+use crate::flowsheet::plant::{flow_networks, static_pressures, FeedFlow, Method, ProductRole};
+use crate::flowsheet::{Plant, UnitSpec};
+use converge::FixedPoint;
+use order::Sequence;
+
+/// Options the caller may set beyond the flowsheet's settings.
+#[derive(Debug, Clone, Default)]
+pub struct Options {
+    /// Starting temperature of every tear stream, K (overrides the settings).
+    pub initial_temperature: Option<f64>,
+    /// Starting mass flow of every tear stream as a fraction of the flow basis.
+    pub initial_flow_fraction: Option<f64>,
+    /// Iteration cap (overrides the settings).
+    pub max_iterations: Option<usize>,
+    /// Method (overrides the settings).
+    pub method: Option<Method>,
+}
+
+/// A variable of the convergence vector.
+#[derive(Debug, Clone, Copy)]
+enum Variable {
+    Pressure(usize),
+    Enthalpy(usize),
+    Flow(usize),
+    MakeUp(usize),
+}
+
+struct Problem<'a> {
+    plant: &'a Plant,
+    sequence: &'a Sequence,
+    variables: Vec<Variable>,
+    scales: Vec<f64>,
+    networks: Vec<usize>,
+    context: Context,
+    last: Option<(Vec<Option<Flow>>, Vec<Performance>)>,
+}
+
+impl Problem<'_> {
+    fn run_pass(&self, x: &[f64]) -> Result<(Vec<f64>, Vec<Option<Flow>>, Vec<Performance>)> {
+        let plant = self.plant;
+        let mut flows: Vec<Option<Flow>> = vec![None; plant.streams.len()];
+        let value = |i: usize| x[i] * self.scales[i];
+        // Tear streams and make-up flows from the iterate.
+        let mut make_up = vec![0.0; plant.units.len()];
+        let mut tear_values: Vec<(usize, f64, f64, f64)> = Vec::new();
+        let mut i = 0;
+        while i < self.variables.len() {
+            match self.variables[i] {
+                Variable::Pressure(s) => {
+                    tear_values.push((s, value(i), value(i + 1), value(i + 2).max(0.0)));
+                    i += 3;
+                }
+                Variable::MakeUp(u) => {
+                    make_up[u] = value(i).max(0.0);
+                    i += 1;
+                }
+                _ => i += 1,
+            }
+        }
+        for &(s, p, h, m) in &tear_values {
+            let fluid = plant.streams[s].fluid;
+            let state = fluid.state_ph(p, h)?;
+            flows[s] = Some(Flow { state, flow: m });
+        }
+        let mut computed: Vec<Option<Flow>> = vec![None; plant.streams.len()];
+        let mut performances = vec![Performance::default(); plant.units.len()];
+        for &u in &self.sequence.order {
+            let unit = &plant.units[u];
+            let inlets: Vec<Flow> = unit
+                .inlets
+                .iter()
+                .map(|&s| {
+                    flows[s].clone().ok_or_else(|| {
+                        Error::Input(format!("stream {} has no value yet", plant.streams[s].name))
+                    })
+                })
+                .collect::<Result<_>>()?;
+            let feed_flow = match unit.spec {
+                UnitSpec::Feed {
+                    flow: FeedFlow::Fixed(f),
+                    ..
+                } => f,
+                UnitSpec::Feed {
+                    flow: FeedFlow::Balance,
+                    ..
+                } => make_up[u],
+                _ => 0.0,
+            };
+            let (mut outlets, performance) =
+                equipment::run(&unit.spec, &inlets, feed_flow, &self.context)
+                    .map_err(|e| Error::Input(format!("equipment '{}': {e}", unit.id)))?;
+            if let (Some(basis), Some(first)) = (unit.flow_basis, outlets.first_mut()) {
+                if !matches!(unit.spec, UnitSpec::Feed { .. }) {
+                    first.flow = basis;
+                }
+            }
+            for (&s, flow) in unit.outlets.iter().zip(outlets) {
+                if self.sequence.tears.contains(&s) {
+                    computed[s] = Some(flow);
+                } else {
+                    flows[s] = Some(flow.clone());
+                    computed[s] = Some(flow);
+                }
+            }
+            performances[u] = performance;
+        }
+        // G(x).
+        let mut g = vec![0.0; self.variables.len()];
+        for (k, variable) in self.variables.iter().enumerate() {
+            let v = match *variable {
+                Variable::Pressure(s) => computed[s].as_ref().map(|f| f.state.pressure),
+                Variable::Enthalpy(s) => computed[s].as_ref().map(|f| f.state.enthalpy),
+                Variable::Flow(s) => computed[s].as_ref().map(|f| f.flow),
+                Variable::MakeUp(u) => Some(self.make_up_target(u, &computed)),
+            }
+            .ok_or_else(|| Error::Input("a tear stream was not computed".into()))?;
+            g[k] = v / self.scales[k];
+        }
+        Ok((g, computed, performances))
+    }
+
+    /// What leaves the feed's flow network through products, less its other feeds.
+    fn make_up_target(&self, feed: usize, computed: &[Option<Flow>]) -> f64 {
+        let plant = self.plant;
+        let network = self.networks[plant.units[feed].outlets[0]];
+        let mut out = 0.0;
+        for unit in &plant.units {
+            match unit.spec {
+                UnitSpec::Product { .. } => {
+                    let s = unit.inlets[0];
+                    if self.networks[s] == network {
+                        out += computed[s].as_ref().map_or(0.0, |f| f.flow);
+                    }
+                }
+                UnitSpec::Feed {
+                    flow: FeedFlow::Fixed(f),
+                    ..
+                } if self.networks[unit.outlets[0]] == network => out -= f,
+                _ => {}
+            }
+        }
+        let balance_feeds = plant
+            .units
+            .iter()
+            .filter(|u| {
+                matches!(
+                    u.spec,
+                    UnitSpec::Feed {
+                        flow: FeedFlow::Balance,
+                        ..
+                    }
+                ) && self.networks[u.outlets[0]] == network
+            })
+            .count()
+            .max(1);
+        (out / balance_feeds as f64).max(0.0)
+    }
+}
+
+impl FixedPoint for Problem<'_> {
+    fn pass(&mut self, x: &[f64]) -> Result<Vec<f64>> {
+        let (g, flows, performances) = self.run_pass(x)?;
+        self.last = Some((flows, performances));
+        Ok(g)
+    }
+}
+
+/// Solves the plant.
+pub fn solve(plant: &Plant, options: &Options) -> Result<Solution> {
+    let sequence = order::plan(plant);
+    let networks = flow_networks(&plant.units, plant.streams.len());
+    let pressures = static_pressures(&plant.units, plant.streams.len());
+    let basis = plant
+        .units
+        .iter()
+        .filter_map(|u| u.flow_basis)
+        .fold(0.0f64, f64::max)
+        .max(1e-6);
+    let initial_t = options
+        .initial_temperature
+        .or(plant.settings.initial_temperature)
+        .unwrap_or(plant.ambient);
+    let fraction = options.initial_flow_fraction.unwrap_or(1.0);
+    let mut variables = Vec::new();
+    let mut scales = Vec::new();
+    let mut start = Vec::new();
+    for &s in &sequence.tears {
+        let stream = &plant.streams[s];
+        let fluid = stream.fluid;
+        let p = pressures[s].unwrap_or(101_325.0);
+        let t = initial_t.clamp(fluid.temperature_min * 1.001, fluid.temperature_max);
+        let guess = fluid
+            .state_tp(t, p)
+            .or_else(|_| fluid.state_tp(t * 1.001, p))
+            .map_err(|e| Error::Input(format!("cannot start tear stream {}: {e}", stream.name)))?;
+        let h_scale = fluid.gas_constant * plant.ambient;
+        variables.extend([
+            Variable::Pressure(s),
+            Variable::Enthalpy(s),
+            Variable::Flow(s),
+        ]);
+        scales.extend([p, h_scale, basis]);
+        start.extend([1.0, guess.enthalpy / h_scale, fraction]);
+    }
+    for (u, unit) in plant.units.iter().enumerate() {
+        if matches!(
+            unit.spec,
+            UnitSpec::Feed {
+                flow: FeedFlow::Balance,
+                ..
+            }
+        ) {
+            variables.push(Variable::MakeUp(u));
+            scales.push(basis);
+            start.push(0.1);
+        }
+    }
+    let mut problem = Problem {
+        plant,
+        sequence: &sequence,
+        variables: variables.clone(),
+        scales,
+        networks,
+        context: Context {
+            ambient: plant.ambient,
+            detailed: false,
+        },
+        last: None,
+    };
+    let describe = |k: usize| -> String {
+        let name = |s: usize| plant.streams[s].name.clone();
+        let tears: Vec<String> = sequence.tears.iter().map(|&s| name(s)).collect();
+        let which = match variables.get(k) {
+            Some(Variable::Pressure(s)) => format!("the pressure of {}", name(*s)),
+            Some(Variable::Enthalpy(s)) => format!("the enthalpy of {}", name(*s)),
+            Some(Variable::Flow(s)) => format!("the mass flow of {}", name(*s)),
+            Some(Variable::MakeUp(u)) => format!("the make-up flow of {}", plant.units[*u].id),
+            None => "—".into(),
+        };
+        format!(
+            "{which} (tear streams: {})",
+            if tears.is_empty() {
+                "none".into()
+            } else {
+                tears.join(", ")
+            }
+        )
+    };
+    let cap = options
+        .max_iterations
+        .unwrap_or(plant.settings.max_iterations);
+    let tolerance = plant.settings.tolerance;
+    let converged = if variables.is_empty() {
+        problem.pass(&[])?;
+        converge::Converged {
+            x: vec![],
+            iterations: 1,
+            log: vec![0.0],
+        }
+    } else {
+        match options.method.unwrap_or(plant.settings.method) {
+            Method::Wegstein => converge::wegstein(&mut problem, start, tolerance, cap, &describe)?,
+            Method::Broyden => converge::broyden(&mut problem, start, tolerance, cap, &describe)?,
+        }
+    };
+    // The reported streams come from a pass at the converged point, in detail.
+    problem.context.detailed = true;
+    problem.pass(&converged.x)?;
+    let (flows, performances) = problem
+        .last
+        .take()
+        .ok_or_else(|| Error::Input("no pass was made".into()))?;
+    let flows: Vec<Flow> = flows
+        .into_iter()
+        .enumerate()
+        .map(|(s, f)| {
+            f.ok_or_else(|| {
+                Error::Input(format!("stream {} was not computed", plant.streams[s].name))
+            })
+        })
+        .collect::<Result<_>>()?;
+    let _ = ProductRole::Liquid;
+    results::assemble(
+        plant,
+        &sequence,
+        flows,
+        performances,
+        converged.iterations,
+        converged.log,
+    )
+}

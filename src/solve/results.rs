@@ -1,0 +1,288 @@
+//! What a solved flowsheet reports: every stream, every unit's work, heat and
+//! exergy destroyed, the headline figures and the mass, energy and exergy balances.
+//!
+//! Definitions (docs/output.md): liquid yield is the liquid product's mass flow over
+//! the mass flow through the compressor of its flow network (the largest, where
+//! there are several). Exergy of a stream is (h − h₀) − T₀(s − s₀) with the dead
+//! state at the ambient temperature and 101.325 kPa. The minimum work is the exergy
+//! of the liquid product. Exergy supplied is the shaft work in (less work
+//! recovered), the cold exergy Q(T₀/T − 1) drawn from baths and refrigerators, and
+//! the feeds' exergy; it equals minimum work + exergy lost (in vents) + exergy
+//! destroyed, which the exergy balance checks.
+
+use super::order::Sequence;
+use crate::equipment::{Details, Flow, Performance};
+use crate::error::Result;
+use crate::flowsheet::plant::{flow_networks, ProductRole};
+use crate::flowsheet::{Plant, UnitSpec};
+use crate::fluids::Fluid;
+use std::collections::HashMap;
+
+/// One unit's results.
+#[derive(Debug, Clone)]
+pub struct UnitResult {
+    /// Id.
+    pub id: String,
+    /// Kind.
+    pub kind: &'static str,
+    /// Work, heat, duty, details.
+    pub performance: Performance,
+    /// Exergy destroyed, W.
+    pub exergy_destroyed: f64,
+}
+
+/// The headline figures.
+#[derive(Debug, Clone, Default)]
+pub struct Summary {
+    /// Liquid product, kg/s.
+    pub liquid_flow: f64,
+    /// Liquid product, litres per hour at its own state.
+    pub liquid_volume_flow_l_h: f64,
+    /// Mass flow through the compressors of the liquid's networks, kg/s.
+    pub compressed_flow: f64,
+    /// Liquid over compressed flow (None without liquid product or compressor).
+    pub liquid_yield: Option<f64>,
+    /// Compressor power less recovered expander power, W.
+    pub shaft_power: f64,
+    /// Work equivalent of precooling (cryogen and refrigerators), W.
+    pub precooling_work: f64,
+    /// Heat removed by precoolers, W.
+    pub precooling_duty: f64,
+    /// Cryogen evaporated in baths, kg/s.
+    pub cryogen_boil_off: f64,
+    /// Shaft power per liquid, kWh/kg.
+    pub specific_energy_shaft: Option<f64>,
+    /// Shaft power plus precooling work per liquid, kWh/kg.
+    pub specific_energy: Option<f64>,
+    /// The minimum work: exergy of the liquid product, W.
+    pub minimum_work: f64,
+    /// Minimum work over shaft plus precooling work.
+    pub figure_of_merit: Option<f64>,
+    /// Exergy supplied, W.
+    pub exergy_supplied: f64,
+    /// Exergy destroyed in the units, W.
+    pub exergy_destroyed: f64,
+    /// Exergy leaving in vents, W.
+    pub exergy_lost: f64,
+    /// (feeds − products)/feeds.
+    pub mass_closure: f64,
+    /// Energy in − out over the energy flows.
+    pub energy_closure: f64,
+    /// Exergy supplied − (minimum work + lost + destroyed) over exergy supplied.
+    pub exergy_closure: f64,
+}
+
+/// A solved flowsheet.
+#[derive(Debug, Clone)]
+pub struct Solution {
+    /// Title.
+    pub title: String,
+    /// Source file.
+    pub source: String,
+    /// Ambient temperature, K.
+    pub ambient: f64,
+    /// Stream names, in stream order.
+    pub stream_names: Vec<String>,
+    /// Stream values, in stream order.
+    pub streams: Vec<Flow>,
+    /// Unit results, in file order.
+    pub units: Vec<UnitResult>,
+    /// Headline figures and balances.
+    pub summary: Summary,
+    /// Passes to convergence.
+    pub iterations: usize,
+    /// Largest scaled residual after each pass.
+    pub residual_log: Vec<f64>,
+    /// Names of the tear streams.
+    pub tears: Vec<String>,
+    /// The recycles, as lists of unit ids.
+    pub recycles: Vec<Vec<String>>,
+}
+
+/// Dead-state (h₀, s₀) per fluid.
+struct DeadStates {
+    ambient: f64,
+    cache: HashMap<String, (f64, f64)>,
+}
+
+impl DeadStates {
+    fn exergy(&mut self, flow: &Flow) -> Result<f64> {
+        let fluid: &'static Fluid = flow.state.fluid();
+        let (h0, s0) = match self.cache.get(&fluid.name) {
+            Some(v) => *v,
+            None => {
+                let dead = fluid.state_tp(self.ambient.min(fluid.temperature_max), 101_325.0)?;
+                self.cache
+                    .insert(fluid.name.clone(), (dead.enthalpy, dead.entropy));
+                (dead.enthalpy, dead.entropy)
+            }
+        };
+        Ok((flow.state.enthalpy - h0) - self.ambient * (flow.state.entropy - s0))
+    }
+}
+
+/// Builds the solution from the converged pass.
+pub fn assemble(
+    plant: &Plant,
+    sequence: &Sequence,
+    streams: Vec<Flow>,
+    performances: Vec<Performance>,
+    iterations: usize,
+    log: Vec<f64>,
+) -> Result<Solution> {
+    let t0 = plant.ambient;
+    let mut dead = DeadStates {
+        ambient: t0,
+        cache: HashMap::new(),
+    };
+    let networks = flow_networks(&plant.units, plant.streams.len());
+    let mut units = Vec::new();
+    let mut s = Summary::default();
+    let mut feed_mass = 0.0;
+    let mut product_mass = 0.0;
+    let mut energy_in = 0.0;
+    let mut energy_out = 0.0;
+    let mut energy_scale = 0.0;
+    let mut feed_exergy = 0.0;
+    for (u, (unit, performance)) in plant.units.iter().zip(performances).enumerate() {
+        let _ = u;
+        let inflow: Vec<&Flow> = unit.inlets.iter().map(|&i| &streams[i]).collect();
+        let outflow: Vec<&Flow> = unit.outlets.iter().map(|&i| &streams[i]).collect();
+        let mut destroyed = 0.0;
+        match unit.spec {
+            UnitSpec::Feed { .. } => {
+                for f in &outflow {
+                    feed_mass += f.flow;
+                    energy_in += f.flow * f.state.enthalpy;
+                    feed_exergy += f.flow * dead.exergy(f)?;
+                }
+            }
+            UnitSpec::Product { role } => {
+                for f in &inflow {
+                    product_mass += f.flow;
+                    energy_out += f.flow * f.state.enthalpy;
+                    let ex = f.flow * dead.exergy(f)?;
+                    match role {
+                        ProductRole::Liquid => {
+                            s.liquid_flow += f.flow;
+                            s.minimum_work += ex;
+                            s.liquid_volume_flow_l_h += f.flow * 3600.0 / f.state.density * 1000.0;
+                        }
+                        ProductRole::Vent => s.exergy_lost += ex,
+                    }
+                }
+            }
+            _ => {
+                let entropy_out: f64 = outflow.iter().map(|f| f.flow * f.state.entropy).sum();
+                let entropy_in: f64 = inflow.iter().map(|f| f.flow * f.state.entropy).sum();
+                let reservoirs: f64 = performance.heat_in.iter().map(|(q, t)| q / t).sum();
+                destroyed =
+                    t0 * (entropy_out - entropy_in - reservoirs) + performance.extra_destroyed;
+            }
+        }
+        energy_in += performance.work_in + performance.heat_in.iter().map(|(q, _)| q).sum::<f64>();
+        energy_scale += performance.work_in.abs()
+            + performance
+                .heat_in
+                .iter()
+                .map(|(q, _)| q.abs())
+                .sum::<f64>();
+        s.shaft_power += performance.work_in;
+        s.precooling_work += performance.precooling_work;
+        if matches!(unit.spec, UnitSpec::Precooler { .. }) {
+            s.precooling_duty += performance.duty.unwrap_or(0.0);
+        }
+        if let Details::Precooler {
+            boil_off: Some(b), ..
+        } = performance.details
+        {
+            s.cryogen_boil_off += b;
+        }
+        s.exergy_supplied += performance.work_in
+            + performance
+                .heat_in
+                .iter()
+                .map(|(q, t)| q * (1.0 - t0 / t))
+                .sum::<f64>()
+            + performance.extra_destroyed;
+        s.exergy_destroyed += destroyed;
+        units.push(UnitResult {
+            id: unit.id.clone(),
+            kind: unit.spec.kind(),
+            performance,
+            exergy_destroyed: destroyed,
+        });
+    }
+    s.exergy_supplied += feed_exergy;
+    // Compressed flow of the networks that make liquid.
+    let liquid_networks: Vec<usize> = plant
+        .units
+        .iter()
+        .filter(|u| {
+            matches!(
+                u.spec,
+                UnitSpec::Product {
+                    role: ProductRole::Liquid
+                }
+            )
+        })
+        .map(|u| networks[u.inlets[0]])
+        .collect();
+    for network in dedup(liquid_networks) {
+        let compressed = plant
+            .units
+            .iter()
+            .filter(|u| {
+                matches!(u.spec, UnitSpec::Compressor { .. }) && networks[u.inlets[0]] == network
+            })
+            .map(|u| streams[u.inlets[0]].flow)
+            .fold(0.0f64, f64::max);
+        s.compressed_flow += compressed;
+    }
+    if s.compressed_flow > 0.0 && s.liquid_flow >= 0.0 {
+        s.liquid_yield = Some(s.liquid_flow / s.compressed_flow);
+    }
+    let total_work = s.shaft_power + s.precooling_work;
+    if s.liquid_flow > 0.0 {
+        s.specific_energy_shaft = Some(s.shaft_power / s.liquid_flow / 3.6e6);
+        s.specific_energy = Some(total_work / s.liquid_flow / 3.6e6);
+    }
+    if total_work > 0.0 && s.liquid_flow > 0.0 {
+        s.figure_of_merit = Some(s.minimum_work / total_work);
+    }
+    s.mass_closure = if feed_mass > 0.0 {
+        (feed_mass - product_mass) / feed_mass
+    } else {
+        0.0
+    };
+    s.energy_closure = (energy_in - energy_out) / energy_scale.max(1e-300);
+    s.exergy_closure = (s.exergy_supplied - (s.minimum_work + s.exergy_lost + s.exergy_destroyed))
+        / s.exergy_supplied.abs().max(1e-300);
+    Ok(Solution {
+        title: plant.title.clone(),
+        source: plant.source.clone(),
+        ambient: t0,
+        stream_names: plant.streams.iter().map(|st| st.name.clone()).collect(),
+        streams,
+        units,
+        summary: s,
+        iterations,
+        residual_log: log,
+        tears: sequence
+            .tears
+            .iter()
+            .map(|&t| plant.streams[t].name.clone())
+            .collect(),
+        recycles: sequence
+            .recycles
+            .iter()
+            .map(|r| r.iter().map(|&u| plant.units[u].id.clone()).collect())
+            .collect(),
+    })
+}
+
+fn dedup(mut v: Vec<usize>) -> Vec<usize> {
+    v.sort_unstable();
+    v.dedup();
+    v
+}
