@@ -31,6 +31,21 @@ pub struct Cli {
 
 #[derive(Debug, Subcommand)]
 enum Command {
+    /// Solve a flowsheet (with no file: the built-in demo, a liquid-nitrogen-precooled
+    /// hydrogen liquefier) and report yield, power, precooling and exergy.
+    Solve {
+        /// The flowsheet file (YAML); see docs/flowsheet-format.md.
+        file: Option<PathBuf>,
+        /// Print the full result as JSON (schema in docs/output.md).
+        #[arg(long)]
+        json: bool,
+        /// Override a parameter for a quick what-if: id.key=value (repeatable).
+        #[arg(long = "set", value_name = "ID.KEY=VALUE")]
+        set: Vec<String>,
+        /// Print the largest tear residual of every pass on stderr.
+        #[arg(long)]
+        log: bool,
+    },
     /// List the built-in fluids with their sources, critical and triple points and ranges.
     Fluids {
         /// Print JSON instead of a table.
@@ -113,9 +128,54 @@ impl From<Error> for Failure {
     }
 }
 
+impl From<cryochain::flowsheet::FlowsheetError> for Failure {
+    fn from(error: cryochain::flowsheet::FlowsheetError) -> Failure {
+        Failure {
+            message: error.to_string(),
+            code: exit::INPUT,
+        }
+    }
+}
+
+/// The built-in demo flowsheet.
+const DEMO: &str = include_str!("../flowsheets/hydrogen-ln2-precooled.yaml");
+/// Its name in messages.
+const DEMO_NAME: &str = "built-in demo (flowsheets/hydrogen-ln2-precooled.yaml)";
+
+/// Reads a flowsheet (or the built-in demo) with overrides.
+fn load_plant(file: &Option<PathBuf>, set: &[String]) -> Result<cryochain::flowsheet::Plant, Failure> {
+    let overrides = set
+        .iter()
+        .map(|s| cryochain::flowsheet::Override::parse(s))
+        .collect::<Result<Vec<_>, _>>()?;
+    Ok(match file {
+        Some(path) => cryochain::flowsheet::load(path, &overrides)?,
+        None => {
+            eprintln!("no flowsheet given: solving the {DEMO_NAME}");
+            cryochain::flowsheet::load_str(DEMO, DEMO_NAME, &overrides)?
+        }
+    })
+}
+
 /// Runs the parsed command; returns what to print on stdout.
 pub fn run(cli: Cli) -> Result<String, Failure> {
     match cli.command {
+        Command::Solve { file, json, set, log } => {
+            let plant = load_plant(&file, &set)?;
+            let solution = cryochain::solve::solve(&plant, &Default::default())?;
+            if log {
+                for (i, r) in solution.residual_log.iter().enumerate() {
+                    eprintln!("pass {:>4}  largest scaled tear residual {r:.3e}", i + 1);
+                }
+            }
+            Ok(if json {
+                report::solution::json(&solution)
+            } else {
+                format!("{}
+{}
+", report::solution::text(&solution), report::solution::CAUTION)
+            })
+        }
         Command::Fluids { json } => {
             let all = fluids::all()?;
             Ok(if json {

@@ -187,6 +187,34 @@ impl Sides<'_> {
     }
 }
 
+/// A few secant steps on g from the previous pass's duty; `None` unless they settle
+/// inside [0, upper] (the bracketed root then takes over).
+fn secant_from(g: &dyn Fn(f64) -> f64, hint: f64, upper: f64) -> Option<f64> {
+    let mut a = hint.clamp(0.0, upper);
+    let mut b = (a * (1.0 - 1e-4)).max(0.0);
+    if a == b {
+        return None;
+    }
+    let (mut fa, mut fb) = (g(a), g(b));
+    for _ in 0..8 {
+        if !(fa.is_finite() && fb.is_finite()) || fa == fb {
+            return None;
+        }
+        let c = b - fb * (b - a) / (fb - fa);
+        if !(0.0..=upper).contains(&c) {
+            return None;
+        }
+        if (c - b).abs() <= 1e-12 * upper {
+            return Some(c);
+        }
+        a = b;
+        fa = fb;
+        b = c;
+        fb = g(c);
+    }
+    None
+}
+
 /// A state at (T, p), nudged off the saturation line where (T, p) lies on it.
 fn state_at(fluid: &'static crate::fluids::Fluid, t: f64, p: f64) -> Result<State> {
     fluid
@@ -194,12 +222,13 @@ fn state_at(fluid: &'static crate::fluids::Fluid, t: f64, p: f64) -> Result<Stat
         .or_else(|_| fluid.state_tp(t * (1.0 + 1e-9), p))
 }
 
-/// Solves the exchanger.
+/// Solves the exchanger; `duty_hint` (the last pass's duty) starts a duty search.
 pub fn run(
     hot: &Flow,
     cold: &Flow,
     design: &Design,
     context: &Context,
+    duty_hint: Option<f64>,
 ) -> Result<(Vec<Flow>, Performance)> {
     let sides = Sides { hot, cold, design };
     let (hot_fluid, cold_fluid) = (hot.state.fluid(), cold.state.fluid());
@@ -232,13 +261,11 @@ pub fn run(
             if at_zero <= dt {
                 0.0
             } else {
-                bracketed_root(
-                    "exchanger duty for a minimum approach",
-                    |q| sides.min_approach(q).map(|m| m.0 - dt).unwrap_or(f64::NAN),
-                    0.0,
-                    upper,
-                    1e-12 * upper,
-                )?
+                let g = |q: f64| sides.min_approach(q).map(|m| m.0 - dt).unwrap_or(f64::NAN);
+                match duty_hint.and_then(|hint| secant_from(&g, hint, upper)) {
+                    Some(q) => q,
+                    None => bracketed_root("exchanger duty for a minimum approach", g, 0.0, upper, 1e-12 * upper)?,
+                }
             }
         }
         ExchangerSpec::Effectiveness(e) => e * sides.max_duty(upper)?,

@@ -83,12 +83,14 @@ pub struct Performance {
 }
 
 /// Runs the model of `spec` on its inlets. `feed_flow` is the flow the solver gives
-/// a feed.
+/// a feed; `duty_hint` is the unit's duty on the previous pass, which exchangers
+/// solved for their duty start from.
 pub fn run(
     spec: &UnitSpec,
     inlets: &[Flow],
     feed_flow: f64,
     context: &Context,
+    duty_hint: Option<f64>,
 ) -> Result<(Vec<Flow>, Performance)> {
     match spec {
         UnitSpec::Feed {
@@ -123,6 +125,7 @@ pub fn run(
                 segments: *segments,
             },
             context,
+            duty_hint,
         ),
         UnitSpec::Precooler {
             outlet_temperature,

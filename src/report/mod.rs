@@ -4,6 +4,7 @@
 pub mod fluids;
 pub mod inversion;
 pub mod plot;
+pub mod solution;
 pub mod state;
 pub mod table;
 

@@ -44,6 +44,8 @@ struct Problem<'a> {
     networks: Vec<usize>,
     context: Context,
     last: Option<(Vec<Option<Flow>>, Vec<Performance>)>,
+    /// Each unit's duty on the last pass, to start the next from.
+    duty_hints: std::cell::RefCell<Vec<Option<f64>>>,
 }
 
 impl Problem<'_> {
@@ -97,9 +99,11 @@ impl Problem<'_> {
                 } => make_up[u],
                 _ => 0.0,
             };
+            let hint = self.duty_hints.borrow()[u];
             let (mut outlets, performance) =
-                equipment::run(&unit.spec, &inlets, feed_flow, &self.context)
+                equipment::run(&unit.spec, &inlets, feed_flow, &self.context, hint)
                     .map_err(|e| Error::Input(format!("equipment '{}': {e}", unit.id)))?;
+            self.duty_hints.borrow_mut()[u] = performance.duty;
             if let (Some(basis), Some(first)) = (unit.flow_basis, outlets.first_mut()) {
                 if !matches!(unit.spec, UnitSpec::Feed { .. }) {
                     first.flow = basis;
@@ -237,6 +241,7 @@ pub fn solve(plant: &Plant, options: &Options) -> Result<Solution> {
             detailed: false,
         },
         last: None,
+        duty_hints: std::cell::RefCell::new(vec![None; plant.units.len()]),
     };
     let describe = |k: usize| -> String {
         let name = |s: usize| plant.streams[s].name.clone();

@@ -1,0 +1,386 @@
+//! A solved flowsheet as tables people read (fitting 100 columns) and as JSON with
+//! the documented schema (docs/output.md).
+
+use super::table::{Align, TextTable};
+use crate::equipment::Details;
+use crate::solve::Solution;
+use serde::{Deserialize, Serialize};
+
+/// The caution printed with every report.
+pub const CAUTION: &str = "Caution: high-pressure gas, cryogenic liquids (cold burns, asphyxiation in\nclosed spaces, oxygen enrichment near liquid-nitrogen-cooled surfaces) and hydrogen\n(flammable) are hazards. These figures are for planning: follow local codes and licensed\nengineering practice. See docs/safety.md.";
+
+/// One stream in the JSON output.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
+pub struct StreamRecord {
+    /// `source.port`.
+    pub name: String,
+    /// Fluid.
+    pub fluid: String,
+    /// K.
+    #[serde(rename = "temperature_K")]
+    pub temperature_k: f64,
+    /// Pa.
+    #[serde(rename = "pressure_Pa")]
+    pub pressure_pa: f64,
+    /// J/kg.
+    #[serde(rename = "enthalpy_J_kg")]
+    pub enthalpy_j_kg: f64,
+    /// J/(kg·K).
+    #[serde(rename = "entropy_J_kgK")]
+    pub entropy_j_kgk: f64,
+    /// kg/m³.
+    pub density_kg_m3: f64,
+    /// kg/s.
+    pub mass_flow_kg_s: f64,
+    /// Vapour mass fraction (0 liquid, 1 gas).
+    pub vapour_fraction: f64,
+    /// Phase name.
+    pub phase: String,
+}
+
+/// One unit in the JSON output.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
+pub struct EquipmentRecord {
+    /// Id.
+    pub id: String,
+    /// Kind.
+    pub kind: String,
+    /// Shaft power in, W (negative when recovered).
+    #[serde(rename = "power_W")]
+    pub power_w: f64,
+    /// Heat transferred, W.
+    #[serde(rename = "duty_W")]
+    pub duty_w: Option<f64>,
+    /// Work equivalent of precooling, W.
+    #[serde(rename = "precooling_work_W")]
+    pub precooling_work_w: f64,
+    /// Exergy destroyed, W.
+    #[serde(rename = "exergy_destroyed_W")]
+    pub exergy_destroyed_w: f64,
+    /// Exchangers: smallest temperature difference, K.
+    #[serde(rename = "min_approach_K")]
+    pub min_approach_k: Option<f64>,
+    /// Exchangers: where it occurs, fraction of duty from the warm end.
+    pub min_approach_position: Option<f64>,
+    /// Exchangers: conductance, W/K.
+    #[serde(rename = "ua_W_K")]
+    pub ua_w_k: Option<f64>,
+    /// Exchangers: effectiveness.
+    pub effectiveness: Option<f64>,
+    /// Compressors: discharge temperature of each stage, K.
+    #[serde(rename = "discharge_temperatures_K")]
+    pub discharge_temperatures_k: Option<Vec<f64>>,
+    /// Precoolers: cryogen boiled, kg/s.
+    pub boil_off_kg_s: Option<f64>,
+    /// Expanders: liquid fraction at the outlet.
+    pub outlet_liquid_fraction: Option<f64>,
+}
+
+/// Balances in the JSON output.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
+pub struct BalanceRecord {
+    /// (feeds − products)/feeds.
+    pub mass: f64,
+    /// Energy in − out over energy flows.
+    pub energy: f64,
+    /// Exergy supplied − (minimum work + lost + destroyed) over exergy supplied.
+    pub exergy: f64,
+}
+
+/// The whole solution in the JSON output.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
+pub struct SolutionRecord {
+    /// Title.
+    pub title: String,
+    /// Source file.
+    pub source: String,
+    /// K.
+    #[serde(rename = "ambient_K")]
+    pub ambient_k: f64,
+    /// Always true: a case that does not converge is an error, not a result.
+    pub converged: bool,
+    /// Passes.
+    pub iterations: usize,
+    /// Largest scaled tear residual after each pass.
+    pub residual_log: Vec<f64>,
+    /// Tear streams.
+    pub tear_streams: Vec<String>,
+    /// Recycles as lists of unit ids.
+    pub recycles: Vec<Vec<String>>,
+    /// kg/s of liquid product.
+    pub liquid_flow_kg_s: f64,
+    /// Liquid per mass compressed.
+    pub liquid_yield: Option<f64>,
+    /// L/h of liquid product.
+    pub liquid_flow_l_h: f64,
+    /// W.
+    #[serde(rename = "shaft_power_W")]
+    pub shaft_power_w: f64,
+    /// W.
+    #[serde(rename = "precooling_work_W")]
+    pub precooling_work_w: f64,
+    /// W.
+    #[serde(rename = "precooling_duty_W")]
+    pub precooling_duty_w: f64,
+    /// kg/s of cryogen boiled.
+    pub cryogen_boil_off_kg_s: f64,
+    /// Shaft power per kg liquid.
+    #[serde(rename = "specific_energy_shaft_kWh_per_kg")]
+    pub specific_energy_shaft: Option<f64>,
+    /// Shaft plus precooling per kg liquid.
+    #[serde(rename = "specific_energy_kWh_per_kg")]
+    pub specific_energy: Option<f64>,
+    /// W.
+    #[serde(rename = "minimum_work_W")]
+    pub minimum_work_w: f64,
+    /// Minimum work over shaft plus precooling work.
+    pub figure_of_merit: Option<f64>,
+    /// W.
+    #[serde(rename = "exergy_supplied_W")]
+    pub exergy_supplied_w: f64,
+    /// W.
+    #[serde(rename = "exergy_destroyed_W")]
+    pub exergy_destroyed_w: f64,
+    /// W.
+    #[serde(rename = "exergy_lost_W")]
+    pub exergy_lost_w: f64,
+    /// Closures.
+    pub balances: BalanceRecord,
+    /// Streams.
+    pub streams: Vec<StreamRecord>,
+    /// Equipment.
+    pub equipment: Vec<EquipmentRecord>,
+}
+
+impl SolutionRecord {
+    /// The record of a solution.
+    pub fn of(solution: &Solution) -> SolutionRecord {
+        let s = &solution.summary;
+        let streams = solution
+            .stream_names
+            .iter()
+            .zip(&solution.streams)
+            .map(|(name, f)| StreamRecord {
+                name: name.clone(),
+                fluid: f.state.fluid().name.clone(),
+                temperature_k: f.state.temperature,
+                pressure_pa: f.state.pressure,
+                enthalpy_j_kg: f.state.enthalpy,
+                entropy_j_kgk: f.state.entropy,
+                density_kg_m3: f.state.density,
+                mass_flow_kg_s: f.flow,
+                vapour_fraction: f.state.vapour_fraction(),
+                phase: f.state.phase.name().to_string(),
+            })
+            .collect();
+        let equipment = solution
+            .units
+            .iter()
+            .map(|u| {
+                let p = &u.performance;
+                let mut record = EquipmentRecord {
+                    id: u.id.clone(),
+                    kind: u.kind.to_string(),
+                    power_w: p.work_in,
+                    duty_w: p.duty,
+                    precooling_work_w: p.precooling_work,
+                    exergy_destroyed_w: u.exergy_destroyed,
+                    min_approach_k: None,
+                    min_approach_position: None,
+                    ua_w_k: None,
+                    effectiveness: None,
+                    discharge_temperatures_k: None,
+                    boil_off_kg_s: None,
+                    outlet_liquid_fraction: None,
+                };
+                match &p.details {
+                    Details::Exchanger(x) => {
+                        record.min_approach_k = Some(x.min_approach);
+                        record.min_approach_position = Some(x.min_approach_position);
+                        record.ua_w_k = x.ua.is_finite().then_some(x.ua);
+                        record.effectiveness = Some(x.effectiveness);
+                    }
+                    Details::Compressor { discharge_temperatures } => {
+                        record.discharge_temperatures_k = Some(discharge_temperatures.clone())
+                    }
+                    Details::Precooler { boil_off, .. } => record.boil_off_kg_s = *boil_off,
+                    Details::Expander { outlet_liquid_fraction } => record.outlet_liquid_fraction = Some(*outlet_liquid_fraction),
+                    Details::None => {}
+                }
+                record
+            })
+            .collect();
+        SolutionRecord {
+            title: solution.title.clone(),
+            source: solution.source.clone(),
+            ambient_k: solution.ambient,
+            converged: true,
+            iterations: solution.iterations,
+            residual_log: solution.residual_log.clone(),
+            tear_streams: solution.tears.clone(),
+            recycles: solution.recycles.clone(),
+            liquid_flow_kg_s: s.liquid_flow,
+            liquid_yield: s.liquid_yield,
+            liquid_flow_l_h: s.liquid_volume_flow_l_h,
+            shaft_power_w: s.shaft_power,
+            precooling_work_w: s.precooling_work,
+            precooling_duty_w: s.precooling_duty,
+            cryogen_boil_off_kg_s: s.cryogen_boil_off,
+            specific_energy_shaft: s.specific_energy_shaft,
+            specific_energy: s.specific_energy,
+            minimum_work_w: s.minimum_work,
+            figure_of_merit: s.figure_of_merit,
+            exergy_supplied_w: s.exergy_supplied,
+            exergy_destroyed_w: s.exergy_destroyed,
+            exergy_lost_w: s.exergy_lost,
+            balances: BalanceRecord { mass: s.mass_closure, energy: s.energy_closure, exergy: s.exergy_closure },
+            streams,
+            equipment,
+        }
+    }
+}
+
+/// The solution as pretty JSON.
+pub fn json(solution: &Solution) -> String {
+    serde_json::to_string_pretty(&SolutionRecord::of(solution)).unwrap_or_default() + "\n"
+}
+
+/// Wraps `text` at spaces to `width` characters, indenting continuation lines.
+pub fn wrap(text: &str, width: usize, indent: &str) -> String {
+    let mut out = String::new();
+    let mut line = String::new();
+    for word in text.split(' ') {
+        if !line.is_empty() && line.chars().count() + 1 + word.chars().count() > width {
+            out.push_str(&line);
+            out.push('\n');
+            line = indent.to_string();
+        } else if !line.is_empty() && line != indent {
+            line.push(' ');
+        }
+        line.push_str(word);
+    }
+    out.push_str(&line);
+    out.push('\n');
+    out
+}
+
+fn or_dash(v: Option<f64>, f: impl Fn(f64) -> String) -> String {
+    v.map_or("—".to_string(), f)
+}
+
+/// The solution as text: summary, streams, equipment.
+pub fn text(solution: &Solution) -> String {
+    let s = &solution.summary;
+    let mut out = String::new();
+    out.push_str(&format!("{}\n", solution.title));
+    out.push_str(&format!("source: {}\n", solution.source));
+    out.push_str(&format!(
+        "ambient {:.2} K; converged in {} passes\n",
+        solution.ambient, solution.iterations
+    ));
+    let tears = if solution.tears.is_empty() { "none".to_string() } else { solution.tears.join(", ") };
+    out.push_str(&wrap(&format!("tear streams: {tears}"), 98, "  "));
+    out.push('\n');
+    out.push_str("Summary\n");
+    let line = |label: &str, value: String| format!("  {label:<26}{value}\n");
+    out.push_str(&line(
+        "liquid product",
+        format!(
+            "{:.4} g/s = {:.3} kg/h = {:.2} L/h",
+            s.liquid_flow * 1e3,
+            s.liquid_flow * 3600.0,
+            s.liquid_volume_flow_l_h
+        ),
+    ));
+    out.push_str(&line("liquid yield", or_dash(s.liquid_yield, |y| format!("{y:.5} (liquid per mass compressed)"))));
+    out.push_str(&line(
+        "shaft power",
+        format!("{:.3} kW{}", s.shaft_power / 1e3, or_dash(s.specific_energy_shaft, |e| format!(" = {e:.3} kWh per kg liquid"))),
+    ));
+    if s.precooling_duty > 0.0 || s.precooling_work > 0.0 {
+        out.push_str(&line(
+            "precooling",
+            format!(
+                "{:.3} kW removed; cryogen boiled {:.3} g/s; work equivalent {:.3} kW",
+                s.precooling_duty / 1e3,
+                s.cryogen_boil_off * 1e3,
+                s.precooling_work / 1e3
+            ),
+        ));
+    }
+    out.push_str(&line("specific energy", or_dash(s.specific_energy, |e| format!("{e:.3} kWh/kg with precooling"))));
+    out.push_str(&line(
+        "minimum work",
+        format!("{:.3} kW; figure of merit {}", s.minimum_work / 1e3, or_dash(s.figure_of_merit, |f| format!("{f:.4}"))),
+    ));
+    out.push_str(&line(
+        "exergy",
+        format!(
+            "supplied {:.3} kW = minimum {:.3} + destroyed {:.3} + lost {:.3} kW",
+            s.exergy_supplied / 1e3,
+            s.minimum_work / 1e3,
+            s.exergy_destroyed / 1e3,
+            s.exergy_lost / 1e3
+        ),
+    ));
+    out.push_str(&line(
+        "balance closure",
+        format!("mass {:.1e}, energy {:.1e}, exergy {:.1e} (relative)", s.mass_closure, s.energy_closure, s.exergy_closure),
+    ));
+    out.push_str("\nStreams\n");
+    let mut table = TextTable::new(&[
+        ("stream", Align::Left),
+        ("fluid", Align::Left),
+        ("T [K]", Align::Right),
+        ("p [bar]", Align::Right),
+        ("h [kJ/kg]", Align::Right),
+        ("s [kJ/kg/K]", Align::Right),
+        ("flow [g/s]", Align::Right),
+        ("vapour", Align::Right),
+    ]);
+    for (name, f) in solution.stream_names.iter().zip(&solution.streams) {
+        table.row(vec![
+            name.clone(),
+            f.state.fluid().name.clone(),
+            format!("{:.3}", f.state.temperature),
+            format!("{:.4}", f.state.pressure / 1e5),
+            format!("{:.3}", f.state.enthalpy / 1e3),
+            format!("{:.4}", f.state.entropy / 1e3),
+            format!("{:.4}", f.flow * 1e3),
+            format!("{:.4}", f.state.vapour_fraction()),
+        ]);
+    }
+    out.push_str(&table.render());
+    out.push_str("\nEquipment\n");
+    let mut table = TextTable::new(&[
+        ("id", Align::Left),
+        ("kind", Align::Left),
+        ("power [kW]", Align::Right),
+        ("duty [kW]", Align::Right),
+        ("ΔT min [K]", Align::Right),
+        ("Xdest [kW]", Align::Right),
+        ("share", Align::Right),
+    ]);
+    let total = s.exergy_destroyed.max(1e-300);
+    for u in &solution.units {
+        if matches!(u.kind, "feed" | "product") {
+            continue;
+        }
+        let p = &u.performance;
+        let approach = match &p.details {
+            Details::Exchanger(x) => format!("{:.3}", x.min_approach),
+            _ => String::new(),
+        };
+        table.row(vec![
+            u.id.clone(),
+            u.kind.to_string(),
+            if p.work_in != 0.0 { format!("{:.3}", p.work_in / 1e3) } else { String::new() },
+            p.duty.map_or(String::new(), |d| format!("{:.3}", d / 1e3)),
+            approach,
+            format!("{:.3}", u.exergy_destroyed / 1e3),
+            format!("{:.1} %", 100.0 * u.exergy_destroyed / total),
+        ]);
+    }
+    out.push_str(&table.render());
+    out
+}
