@@ -143,7 +143,10 @@ const DEMO: &str = include_str!("../flowsheets/hydrogen-ln2-precooled.yaml");
 const DEMO_NAME: &str = "built-in demo (flowsheets/hydrogen-ln2-precooled.yaml)";
 
 /// Reads a flowsheet (or the built-in demo) with overrides.
-fn load_plant(file: &Option<PathBuf>, set: &[String]) -> Result<cryochain::flowsheet::Plant, Failure> {
+fn load_plant(
+    file: &Option<PathBuf>,
+    set: &[String],
+) -> Result<cryochain::flowsheet::Plant, Failure> {
     let overrides = set
         .iter()
         .map(|s| cryochain::flowsheet::Override::parse(s))
@@ -160,7 +163,12 @@ fn load_plant(file: &Option<PathBuf>, set: &[String]) -> Result<cryochain::flows
 /// Runs the parsed command; returns what to print on stdout.
 pub fn run(cli: Cli) -> Result<String, Failure> {
     match cli.command {
-        Command::Solve { file, json, set, log } => {
+        Command::Solve {
+            file,
+            json,
+            set,
+            log,
+        } => {
             let plant = load_plant(&file, &set)?;
             let solution = cryochain::solve::solve(&plant, &Default::default())?;
             if log {
@@ -171,9 +179,13 @@ pub fn run(cli: Cli) -> Result<String, Failure> {
             Ok(if json {
                 report::solution::json(&solution)
             } else {
-                format!("{}
+                format!(
+                    "{}
 {}
-", report::solution::text(&solution), report::solution::CAUTION)
+",
+                    report::solution::text(&solution),
+                    report::solution::CAUTION
+                )
             })
         }
         Command::Fluids { json } => {

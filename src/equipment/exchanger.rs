@@ -264,7 +264,13 @@ pub fn run(
                 let g = |q: f64| sides.min_approach(q).map(|m| m.0 - dt).unwrap_or(f64::NAN);
                 match duty_hint.and_then(|hint| secant_from(&g, hint, upper)) {
                     Some(q) => q,
-                    None => bracketed_root("exchanger duty for a minimum approach", g, 0.0, upper, 1e-12 * upper)?,
+                    None => bracketed_root(
+                        "exchanger duty for a minimum approach",
+                        g,
+                        0.0,
+                        upper,
+                        1e-12 * upper,
+                    )?,
                 }
             }
         }

@@ -1,12 +1,15 @@
 //! Finding where in the file a key or an equipment item was written, so that errors
 //! found after parsing still point at a line and column.
 
+/// A key written in the file: its name, line and column.
+type KeyPlace = (String, usize, usize);
+
 /// Positions of the equipment items and their keys in the file's text.
 #[derive(Debug, Clone, Default)]
 pub struct Locator {
-    /// Per equipment item (in file order): its first line and the (key, line,
-    /// column) of each key written on its own line.
-    items: Vec<(usize, Vec<(String, usize, usize)>)>,
+    /// Per equipment item (in file order): its first line and the place of each key
+    /// written on its own line.
+    items: Vec<(usize, Vec<KeyPlace>)>,
     /// Top-level keys and their lines.
     top: Vec<(String, usize)>,
 }

@@ -117,6 +117,74 @@ fn apply_override(raw: &mut FlowsheetFile, o: &Override) -> Result<(), Flowsheet
     Ok(())
 }
 
+/// The keys each kind accepts besides `id` and `kind`.
+fn allowed_keys(kind: &str) -> Option<&'static [&'static str]> {
+    Some(match kind {
+        "feed" => &["fluid", "temperature", "pressure", "flow"],
+        "product" => &["inlet", "role", "fluid"],
+        "compressor" => &[
+            "inlet",
+            "outlet_pressure",
+            "model",
+            "isothermal_efficiency",
+            "temperature",
+            "stages",
+            "isentropic_efficiency",
+            "intercooler_temperature",
+            "flow",
+            "fluid",
+        ],
+        "cooler" => &[
+            "inlet",
+            "outlet_temperature",
+            "pressure_drop",
+            "medium",
+            "flow",
+            "fluid",
+        ],
+        "exchanger" => &[
+            "hot",
+            "cold",
+            "minimum_approach",
+            "warm_end_approach",
+            "cold_end_approach",
+            "effectiveness",
+            "ua",
+            "hot_pressure_drop",
+            "cold_pressure_drop",
+            "heat_leak",
+            "segments",
+            "fluid",
+        ],
+        "precooler" => &[
+            "inlet",
+            "outlet_temperature",
+            "pressure_drop",
+            "approach",
+            "bath",
+            "bath_pressure",
+            "liquid_work",
+            "refrigerator",
+            "coolant",
+            "flow",
+            "fluid",
+        ],
+        "valve" => &["inlet", "outlet_pressure", "heat_leak", "flow", "fluid"],
+        "separator" => &["inlet", "fluid"],
+        "mixer" => &["inlets", "fluid"],
+        "splitter" => &["inlet", "fraction", "fluid"],
+        "expander" => &[
+            "inlet",
+            "outlet_pressure",
+            "isentropic_efficiency",
+            "work",
+            "flow",
+            "fluid",
+        ],
+        _ => return None,
+    })
+}
+
 /// An inlet written in the file, before it is connected.
 struct PendingInlet {
     unit: usize,
@@ -210,6 +278,19 @@ impl<'a> Resolver<'a> {
         let mut declared_fluid: Vec<Option<(&'static Fluid, &'static str)>> = Vec::new();
         for (index, entry) in self.raw.equipment.iter().enumerate() {
             let params = Params::new(entry, index, self.place);
+            // Unknown keys first: a misspelt key would otherwise show as a missing one.
+            if let Some(allowed) = allowed_keys(&entry.kind) {
+                if let Some(key) = entry.params.keys().find(|k| !allowed.contains(&k.as_str())) {
+                    return Err(params.error(
+                        key,
+                        format!(
+                            "unknown key '{key}' for a {}; its keys are: id, kind, {}",
+                            entry.kind,
+                            allowed.join(", ")
+                        ),
+                    ));
+                }
+            }
             let (spec, inlets, flow_basis, fluid) =
                 self.read_unit(entry, index, &params, &declared, &settings, ambient)?;
             params.finish()?;
@@ -765,8 +846,7 @@ impl<'a> Resolver<'a> {
             }
         }
         let mut reported = BTreeSet::new();
-        for s in 0..n {
-            let root = network[s];
+        for (s, &root) in network.iter().enumerate() {
             if !reported.insert(root) {
                 continue;
             }

@@ -200,11 +200,13 @@ impl SolutionRecord {
                         record.ua_w_k = x.ua.is_finite().then_some(x.ua);
                         record.effectiveness = Some(x.effectiveness);
                     }
-                    Details::Compressor { discharge_temperatures } => {
-                        record.discharge_temperatures_k = Some(discharge_temperatures.clone())
-                    }
+                    Details::Compressor {
+                        discharge_temperatures,
+                    } => record.discharge_temperatures_k = Some(discharge_temperatures.clone()),
                     Details::Precooler { boil_off, .. } => record.boil_off_kg_s = *boil_off,
-                    Details::Expander { outlet_liquid_fraction } => record.outlet_liquid_fraction = Some(*outlet_liquid_fraction),
+                    Details::Expander {
+                        outlet_liquid_fraction,
+                    } => record.outlet_liquid_fraction = Some(*outlet_liquid_fraction),
                     Details::None => {}
                 }
                 record
@@ -233,7 +235,11 @@ impl SolutionRecord {
             exergy_supplied_w: s.exergy_supplied,
             exergy_destroyed_w: s.exergy_destroyed,
             exergy_lost_w: s.exergy_lost,
-            balances: BalanceRecord { mass: s.mass_closure, energy: s.energy_closure, exergy: s.exergy_closure },
+            balances: BalanceRecord {
+                mass: s.mass_closure,
+                energy: s.energy_closure,
+                exergy: s.exergy_closure,
+            },
             streams,
             equipment,
         }
@@ -278,7 +284,11 @@ pub fn text(solution: &Solution) -> String {
         "ambient {:.2} K; converged in {} passes\n",
         solution.ambient, solution.iterations
     ));
-    let tears = if solution.tears.is_empty() { "none".to_string() } else { solution.tears.join(", ") };
+    let tears = if solution.tears.is_empty() {
+        "none".to_string()
+    } else {
+        solution.tears.join(", ")
+    };
     out.push_str(&wrap(&format!("tear streams: {tears}"), 98, "  "));
     out.push('\n');
     out.push_str("Summary\n");
@@ -292,10 +302,21 @@ pub fn text(solution: &Solution) -> String {
             s.liquid_volume_flow_l_h
         ),
     ));
-    out.push_str(&line("liquid yield", or_dash(s.liquid_yield, |y| format!("{y:.5} (liquid per mass compressed)"))));
+    out.push_str(&line(
+        "liquid yield",
+        or_dash(s.liquid_yield, |y| {
+            format!("{y:.5} (liquid per mass compressed)")
+        }),
+    ));
     out.push_str(&line(
         "shaft power",
-        format!("{:.3} kW{}", s.shaft_power / 1e3, or_dash(s.specific_energy_shaft, |e| format!(" = {e:.3} kWh per kg liquid"))),
+        format!(
+            "{:.3} kW{}",
+            s.shaft_power / 1e3,
+            or_dash(s.specific_energy_shaft, |e| format!(
+                " = {e:.3} kWh per kg liquid"
+            ))
+        ),
     ));
     if s.precooling_duty > 0.0 || s.precooling_work > 0.0 {
         out.push_str(&line(
@@ -308,10 +329,19 @@ pub fn text(solution: &Solution) -> String {
             ),
         ));
     }
-    out.push_str(&line("specific energy", or_dash(s.specific_energy, |e| format!("{e:.3} kWh/kg with precooling"))));
+    out.push_str(&line(
+        "specific energy",
+        or_dash(s.specific_energy, |e| {
+            format!("{e:.3} kWh/kg with precooling")
+        }),
+    ));
     out.push_str(&line(
         "minimum work",
-        format!("{:.3} kW; figure of merit {}", s.minimum_work / 1e3, or_dash(s.figure_of_merit, |f| format!("{f:.4}"))),
+        format!(
+            "{:.3} kW; figure of merit {}",
+            s.minimum_work / 1e3,
+            or_dash(s.figure_of_merit, |f| format!("{f:.4}"))
+        ),
     ));
     out.push_str(&line(
         "exergy",
@@ -325,7 +355,10 @@ pub fn text(solution: &Solution) -> String {
     ));
     out.push_str(&line(
         "balance closure",
-        format!("mass {:.1e}, energy {:.1e}, exergy {:.1e} (relative)", s.mass_closure, s.energy_closure, s.exergy_closure),
+        format!(
+            "mass {:.1e}, energy {:.1e}, exergy {:.1e} (relative)",
+            s.mass_closure, s.energy_closure, s.exergy_closure
+        ),
     ));
     out.push_str("\nStreams\n");
     let mut table = TextTable::new(&[
@@ -374,7 +407,11 @@ pub fn text(solution: &Solution) -> String {
         table.row(vec![
             u.id.clone(),
             u.kind.to_string(),
-            if p.work_in != 0.0 { format!("{:.3}", p.work_in / 1e3) } else { String::new() },
+            if p.work_in != 0.0 {
+                format!("{:.3}", p.work_in / 1e3)
+            } else {
+                String::new()
+            },
             p.duty.map_or(String::new(), |d| format!("{:.3}", d / 1e3)),
             approach,
             format!("{:.3}", u.exergy_destroyed / 1e3),

@@ -27,6 +27,9 @@ pub struct Options {
     pub method: Option<Method>,
 }
 
+/// What one pass produces: G(x), every stream, every unit's performance.
+type PassOutput = (Vec<f64>, Vec<Option<Flow>>, Vec<Performance>);
+
 /// A variable of the convergence vector.
 #[derive(Debug, Clone, Copy)]
 enum Variable {
@@ -49,7 +52,7 @@ struct Problem<'a> {
 }
 
 impl Problem<'_> {
-    fn run_pass(&self, x: &[f64]) -> Result<(Vec<f64>, Vec<Option<Flow>>, Vec<Performance>)> {
+    fn run_pass(&self, x: &[f64]) -> Result<PassOutput> {
         let plant = self.plant;
         let mut flows: Vec<Option<Flow>> = vec![None; plant.streams.len()];
         let value = |i: usize| x[i] * self.scales[i];

@@ -1,0 +1,32 @@
+//! Speed of solving whole flowsheets from scratch (parse excluded, solve included).
+//! Run: `cargo bench --bench solve`.
+
+use criterion::{black_box, criterion_group, criterion_main, Criterion};
+use cryochain::flowsheet::load;
+use cryochain::solve::{solve, Options};
+use std::path::Path;
+
+fn solving(c: &mut Criterion) {
+    let mut group = c.benchmark_group("solve");
+    for name in [
+        "hydrogen-ln2-precooled",
+        "nitrogen-linde-hampson",
+        "helium-lh2-precooled",
+    ] {
+        let path = Path::new(env!("CARGO_MANIFEST_DIR"))
+            .join("flowsheets")
+            .join(format!("{name}.yaml"));
+        let plant = load(&path, &[]).unwrap();
+        group.bench_function(name, |b| {
+            b.iter(|| black_box(solve(&plant, &Options::default()).unwrap()))
+        });
+    }
+    group.finish();
+}
+
+criterion_group! {
+    name = benches;
+    config = Criterion::default().sample_size(30);
+    targets = solving
+}
+criterion_main!(benches);
