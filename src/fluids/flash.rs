@@ -473,7 +473,16 @@ impl Fluid {
             fluid: self.name.clone(),
             detail: "starting state is two-phase".into(),
         })?;
-        self.search_temperature(pressure, target, held, region, props)
+        // Above the saturation range the stable root is unique: try the joint Newton.
+        self.newton_in_temperature_and_density(
+            pressure,
+            target,
+            held,
+            region,
+            &props,
+            (coldest, f64::INFINITY),
+        )
+        .unwrap_or_else(|| self.search_temperature(pressure, target, held, region, props))
     }
 
     /// The state at (p, target) when it clearly lies away from saturation, judged by
@@ -513,7 +522,17 @@ impl Fluid {
         let margin = 2.0 * held.slope(&vapour) * uncertainty;
         if target > held.of(&vapour) + margin {
             return self
-                .search_temperature(pressure, target, held, Region::Vapour, vapour)
+                .newton_in_temperature_and_density(
+                    pressure,
+                    target,
+                    held,
+                    Region::Vapour,
+                    &vapour,
+                    (temperature, f64::INFINITY),
+                )
+                .unwrap_or_else(|| {
+                    self.search_temperature(pressure, target, held, Region::Vapour, vapour)
+                })
                 .map(Some);
         }
         let Some(liquid) = near(Branch::Liquid) else {
@@ -522,10 +541,81 @@ impl Fluid {
         let margin = 2.0 * held.slope(&liquid) * uncertainty;
         if target < held.of(&liquid) - margin {
             return self
-                .search_temperature(pressure, target, held, Region::Liquid, liquid)
+                .newton_in_temperature_and_density(
+                    pressure,
+                    target,
+                    held,
+                    Region::Liquid,
+                    &liquid,
+                    (0.0, temperature),
+                )
+                .unwrap_or_else(|| {
+                    self.search_temperature(pressure, target, held, Region::Liquid, liquid)
+                })
                 .map(Some);
         }
         Ok(None)
+    }
+
+    /// Newton in (T, ρ) together on p(T, ρ) = p and h (or s)(T, ρ) = target, from a
+    /// single-phase start: one property evaluation a step, no nested density solve.
+    /// `None` unless it converges with T inside `bounds` (open), on a stable branch
+    /// and in range; the bracketed search then takes over.
+    fn newton_in_temperature_and_density(
+        &'static self,
+        pressure: f64,
+        target: f64,
+        held: Held,
+        region: Region,
+        start: &Properties,
+        bounds: (f64, f64),
+    ) -> Option<Result<State>> {
+        let (mut t, mut rho) = (start.temperature, start.density);
+        let mut props = *start;
+        for _ in 0..12 {
+            let f1 = props.pressure - pressure;
+            let f2 = held.of(&props) - target;
+            let (a, b) = (props.dp_dt, props.dp_drho);
+            let (c, d) = match held {
+                Held::Enthalpy => (
+                    props.cv + props.dp_dt / rho,
+                    props.dp_drho / rho - t * props.dp_dt / (rho * rho),
+                ),
+                Held::Entropy => (props.cv / t, -props.dp_dt / (rho * rho)),
+            };
+            let det = a * d - b * c;
+            if !(det.is_finite() && det != 0.0) {
+                return None;
+            }
+            let dt = (-f1 * d + f2 * b) / det;
+            let drho = (-a * f2 + c * f1) / det;
+            // Keep steps modest: at most a fifth of T, half of ρ.
+            let scale = (1.0f64)
+                .min(0.2 * t / dt.abs().max(1e-300))
+                .min(0.5 * rho / drho.abs().max(1e-300));
+            t += scale * dt;
+            rho += scale * drho;
+            if !(t > bounds.0
+                && t < bounds.1
+                && t > self.temperature_min
+                && t < self.temperature_max
+                && rho > 0.0)
+            {
+                return None;
+            }
+            props = self.properties_with(&self.tau_factors(t), t, rho);
+            let converged = (props.pressure - pressure).abs()
+                <= 1e-12 * pressure + 1e-14 * rho * self.gas_constant * t
+                && (held.of(&props) - target).abs() <= 0.1 * held.rounding(self, t);
+            if converged {
+                if !(props.dp_drho > 0.0) || self.check_range(t, pressure).is_err() {
+                    return None;
+                }
+                let liquid_side = region == Region::Liquid;
+                return Some(self.single_state(props, liquid_side));
+            }
+        }
+        None
     }
 
     /// A starting temperature from the ideal-gas relations, clamped to the range.
