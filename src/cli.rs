@@ -14,6 +14,8 @@ pub mod exit {
     pub const OK: i32 = 0;
     /// Bad input: arguments, files, units, names, states outside a range.
     pub const INPUT: i32 = 1;
+    /// `check` found errors in the design.
+    pub const DESIGN: i32 = 2;
     /// A solver did not converge.
     pub const NOT_CONVERGED: i32 = 3;
     /// A file could not be read or written.
@@ -45,6 +47,18 @@ enum Command {
         /// Print the largest tear residual of every pass on stderr.
         #[arg(long)]
         log: bool,
+    },
+    /// Solve a flowsheet and hold it against the design checks (docs/checks.md);
+    /// exits with code 2 when the design has errors.
+    Check {
+        /// The flowsheet file (with no file: the built-in demo).
+        file: Option<PathBuf>,
+        /// Print the findings as JSON.
+        #[arg(long)]
+        json: bool,
+        /// Override a parameter: id.key=value (repeatable).
+        #[arg(long = "set", value_name = "ID.KEY=VALUE")]
+        set: Vec<String>,
     },
     /// List the built-in fluids with their sources, critical and triple points and ranges.
     Fluids {
@@ -176,17 +190,46 @@ pub fn run(cli: Cli) -> Result<String, Failure> {
                     eprintln!("pass {:>4}  largest scaled tear residual {r:.3e}", i + 1);
                 }
             }
+            let findings = cryochain::rules::check(&plant, &solution);
             Ok(if json {
-                report::solution::json(&solution)
+                report::solution::json(&solution, &findings)
             } else {
                 format!(
-                    "{}
-{}
-",
+                    "{}\n{}\n{}\n",
                     report::solution::text(&solution),
+                    report::solution::findings_text(&findings),
                     report::solution::CAUTION
                 )
             })
+        }
+        Command::Check { file, json, set } => {
+            let plant = load_plant(&file, &set)?;
+            let solution = cryochain::solve::solve(&plant, &Default::default())?;
+            let findings = cryochain::rules::check(&plant, &solution);
+            let text = if json {
+                serde_json::to_string_pretty(&findings).unwrap_or_default() + "\n"
+            } else {
+                format!(
+                    "{}\n{}\n",
+                    report::solution::findings_text(&findings),
+                    report::solution::CAUTION
+                )
+            };
+            let errors = findings
+                .iter()
+                .filter(|f| f.severity == cryochain::rules::Severity::Error)
+                .count();
+            if errors > 0 {
+                print!("{text}");
+                return Err(Failure {
+                    message: format!(
+                        "the design has {errors} error{}",
+                        if errors == 1 { "" } else { "s" }
+                    ),
+                    code: exit::DESIGN,
+                });
+            }
+            Ok(text)
         }
         Command::Fluids { json } => {
             let all = fluids::all()?;

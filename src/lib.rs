@@ -15,6 +15,7 @@ pub mod fluids;
 pub mod numeric;
 pub mod quantity;
 pub mod report;
+pub mod rules;
 pub mod solve;
 
 pub use error::{Error, Result};

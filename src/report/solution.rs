@@ -3,6 +3,7 @@
 
 use super::table::{Align, TextTable};
 use crate::equipment::Details;
+use crate::rules::Finding;
 use crate::solve::Solution;
 use serde::{Deserialize, Serialize};
 
@@ -150,11 +151,15 @@ pub struct SolutionRecord {
     pub streams: Vec<StreamRecord>,
     /// Equipment.
     pub equipment: Vec<EquipmentRecord>,
+    /// Design-check findings: `{id, severity, equipment, message, values, hint}`.
+    pub findings: Vec<Finding>,
+    /// The safety caution carried by every report.
+    pub caution: String,
 }
 
 impl SolutionRecord {
-    /// The record of a solution.
-    pub fn of(solution: &Solution) -> SolutionRecord {
+    /// The record of a solution and its design-check findings.
+    pub fn of(solution: &Solution, findings: &[Finding]) -> SolutionRecord {
         let s = &solution.summary;
         let streams = solution
             .stream_names
@@ -242,28 +247,62 @@ impl SolutionRecord {
             },
             streams,
             equipment,
+            findings: findings.to_vec(),
+            caution: CAUTION.replace('\n', " "),
         }
     }
 }
 
 /// The solution as pretty JSON.
-pub fn json(solution: &Solution) -> String {
-    serde_json::to_string_pretty(&SolutionRecord::of(solution)).unwrap_or_default() + "\n"
+pub fn json(solution: &Solution, findings: &[Finding]) -> String {
+    serde_json::to_string_pretty(&SolutionRecord::of(solution, findings)).unwrap_or_default() + "\n"
 }
 
-/// Wraps `text` at spaces to `width` characters, indenting continuation lines.
+/// The design-check findings as text, each with its hint, wrapped to 100 columns.
+pub fn findings_text(findings: &[Finding]) -> String {
+    let mut out = String::from("Design checks\n");
+    if findings.is_empty() {
+        out.push_str("  none: no rule of docs/checks.md is broken\n");
+        return out;
+    }
+    for f in findings {
+        let head = format!(
+            "  {:<7} {} [{}]: {}",
+            f.severity.word(),
+            f.equipment.as_deref().unwrap_or("plant"),
+            f.id,
+            f.message
+        );
+        out.push_str(&wrap(&head, 98, "          "));
+        out.push_str(&wrap(
+            &format!("          → {}", f.hint),
+            98,
+            "            ",
+        ));
+    }
+    out
+}
+
+/// Wraps `text` at spaces to `width` characters, keeping its leading indentation
+/// and indenting continuation lines by `indent`.
 pub fn wrap(text: &str, width: usize, indent: &str) -> String {
+    let body = text.trim_start();
+    let lead = &text[..text.len() - body.len()];
     let mut out = String::new();
-    let mut line = String::new();
-    for word in text.split(' ') {
-        if !line.is_empty() && line.chars().count() + 1 + word.chars().count() > width {
+    let mut line = lead.to_string();
+    let mut fresh = true;
+    for word in body.split(' ').filter(|w| !w.is_empty()) {
+        if !fresh && line.chars().count() + 1 + word.chars().count() > width {
             out.push_str(&line);
             out.push('\n');
             line = indent.to_string();
-        } else if !line.is_empty() && line != indent {
+            fresh = true;
+        }
+        if !fresh {
             line.push(' ');
         }
         line.push_str(word);
+        fresh = false;
     }
     out.push_str(&line);
     out.push('\n');

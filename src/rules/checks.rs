@@ -1,0 +1,442 @@
+//! The checks themselves, one function each, run over a solved plant.
+
+use super::{Finding, Severity};
+use crate::equipment::Details;
+use crate::flowsheet::plant::{CompressorModel, PrecoolerSource, ProductRole};
+use crate::flowsheet::{Plant, UnitSpec};
+use crate::fluids::inversion::InversionCurve;
+use crate::fluids::{Fluid, Phase};
+use crate::solve::Solution;
+
+/// Every finding for a solved plant, errors first.
+pub fn check(plant: &Plant, solution: &Solution) -> Vec<Finding> {
+    let mut findings = Vec::new();
+    valves(plant, solution, &mut findings);
+    no_liquid(plant, solution, &mut findings);
+    exchangers(plant, solution, &mut findings);
+    compressors(plant, solution, &mut findings);
+    coolers_and_precoolers(plant, solution, &mut findings);
+    expanders(plant, solution, &mut findings);
+    ranges(plant, solution, &mut findings);
+    balances(solution, &mut findings);
+    findings.sort_by_key(|f| f.severity);
+    findings
+}
+
+/// The pressure of the inversion curve at temperature T, where the curve reaches it.
+fn inversion_pressure_at(curve: &InversionCurve, t: f64) -> Option<f64> {
+    curve.curve.windows(2).find_map(|w| {
+        let (a, b) = (w[0], w[1]);
+        if (a.temperature >= t && b.temperature <= t) && a.temperature != b.temperature {
+            let f = (a.temperature - t) / (a.temperature - b.temperature);
+            Some(a.pressure + f * (b.pressure - a.pressure))
+        } else {
+            None
+        }
+    })
+}
+
+fn precooling_advice(fluid: &Fluid) -> &'static str {
+    match fluid.name.as_str() {
+        "hydrogen" | "parahydrogen" | "orthohydrogen" => {
+            "precool it first: a liquid-nitrogen bath (about 80 K) ahead of a cold recuperator is the usual way, or an expander stage"
+        }
+        "helium" => "precool it first: a liquid-hydrogen bath (about 20 K) or expander stages ahead of the cold recuperator",
+        "neon" => "precool it first, for example with liquid nitrogen",
+        _ => "precool it first in a recuperator or a bath",
+    }
+}
+
+fn valves(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
+    for unit in &plant.units {
+        let UnitSpec::Valve { .. } = unit.spec else {
+            continue;
+        };
+        let inlet = &solution.streams[unit.inlets[0]];
+        let outlet = &solution.streams[unit.outlets[0]];
+        let fluid = inlet.state.fluid();
+        let Ok(curve) = fluid.inversion() else {
+            continue;
+        };
+        let t_in = inlet.state.temperature;
+        let id = unit.id.as_str();
+        if t_in > curve.max_inversion_temperature && inlet.state.phase != Phase::TwoPhase {
+            out.push(
+                Finding::new(
+                    "valve-above-inversion-temperature",
+                    Severity::Error,
+                    Some(id),
+                    format!(
+                        "the valve inlet is at {t_in:.2} K, above {}'s maximum inversion temperature {:.1} K: throttling can only warm it",
+                        fluid.name, curve.max_inversion_temperature
+                    ),
+                    format!("bring the inlet below {:.0} K — {}", curve.max_inversion_temperature, precooling_advice(fluid)),
+                )
+                .value("inlet_temperature_K", t_in)
+                .value("max_inversion_temperature_K", curve.max_inversion_temperature),
+            );
+            continue;
+        }
+        let warms = outlet.state.temperature > t_in + 1e-9;
+        let outside = inlet.state.joule_thomson().is_some_and(|mu| mu < 0.0);
+        if warms || outside {
+            let p_inv = inversion_pressure_at(curve, t_in);
+            let mut finding = Finding::new(
+                if warms { "valve-warms" } else { "valve-outside-inversion-curve" },
+                Severity::Warning,
+                Some(id),
+                format!(
+                    "the valve inlet ({t_in:.2} K, {:.2} bar) lies outside the inversion curve{}{}",
+                    inlet.state.pressure / 1e5,
+                    p_inv.map_or(String::new(), |p| format!(", whose pressure at this temperature is {:.1} bar", p / 1e5)),
+                    if warms { format!("; the expansion warms the stream by {:.3} K", outlet.state.temperature - t_in) } else { String::new() }
+                ),
+                "lower the high pressure towards the inversion pressure at the inlet temperature, or precool further: a Linde-Hampson loop's yield peaks when the high pressure equals the inversion pressure at the warm end of the last recuperator".to_string(),
+            )
+            .value("inlet_temperature_K", t_in)
+            .value("inlet_pressure_Pa", inlet.state.pressure)
+            .value("temperature_change_K", outlet.state.temperature - t_in);
+            if let Some(p) = p_inv {
+                finding = finding.value("inversion_pressure_Pa", p);
+            }
+            out.push(finding);
+        }
+    }
+}
+
+fn no_liquid(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
+    let liquid_products: Vec<_> = plant
+        .units
+        .iter()
+        .filter(|u| {
+            matches!(
+                u.spec,
+                UnitSpec::Product {
+                    role: ProductRole::Liquid
+                }
+            )
+        })
+        .collect();
+    if liquid_products.is_empty()
+        || solution.summary.liquid_flow > 1e-12 * solution.summary.compressed_flow.max(1e-300)
+    {
+        return;
+    }
+    // Trace the cause back: valves feeding separators.
+    let above: Vec<&str> = plant
+        .units
+        .iter()
+        .filter(|u| matches!(u.spec, UnitSpec::Valve { .. }))
+        .filter(|u| {
+            let s = &solution.streams[u.inlets[0]];
+            s.state
+                .fluid()
+                .inversion()
+                .is_ok_and(|c| s.state.temperature > c.max_inversion_temperature)
+        })
+        .map(|u| u.id.as_str())
+        .collect();
+    let cause = if !above.is_empty() {
+        format!("the valve {} throttles above the maximum inversion temperature, so it warms the gas instead of cooling it", above.join(", "))
+    } else {
+        let vapour_valves: Vec<String> = plant
+            .units
+            .iter()
+            .filter(|u| matches!(u.spec, UnitSpec::Valve { .. }))
+            .map(|u| &solution.streams[u.outlets[0]])
+            .filter(|s| s.state.phase != Phase::TwoPhase)
+            .map(|s| format!("{:.2} K", s.state.temperature))
+            .collect();
+        format!(
+            "no valve outlet reaches the two-phase region (outlets at {})",
+            vapour_valves.join(", ")
+        )
+    };
+    out.push(
+        Finding::new(
+            "no-liquid",
+            Severity::Error,
+            liquid_products.first().map(|u| u.id.as_str()),
+            format!("the plant makes no liquid: {cause}"),
+            "precool the high-pressure stream further before the valve, raise the high pressure towards the inversion pressure, or improve the recuperators".to_string(),
+        )
+        .value("liquid_flow_kg_s", solution.summary.liquid_flow),
+    );
+}
+
+fn exchangers(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
+    for (unit, result) in plant.units.iter().zip(&solution.units) {
+        let Details::Exchanger(report) = &result.performance.details else {
+            continue;
+        };
+        if result.performance.duty.unwrap_or(0.0) <= 0.0 {
+            continue;
+        }
+        let position = report.min_approach_position;
+        let where_ = format!("{:.0} % of the duty from the warm end", 100.0 * position);
+        if report.min_approach < -1e-9 {
+            out.push(
+                Finding::new(
+                    "exchanger-temperature-cross",
+                    Severity::Error,
+                    Some(&unit.id),
+                    format!("the hot stream is {:.3} K colder than the cold one at {where_}: heat cannot flow that way", -report.min_approach),
+                    "reduce the duty (a larger approach) or change the flow ratio; a real exchanger needs a positive difference all along".to_string(),
+                )
+                .value("min_approach_K", report.min_approach)
+                .value("position", position),
+            );
+        } else if report.min_approach < plant.settings.approach_floor {
+            out.push(
+                Finding::new(
+                    "exchanger-approach-below-floor",
+                    Severity::Warning,
+                    Some(&unit.id),
+                    format!(
+                        "the smallest temperature difference is {:.3} K at {where_}, below the flowsheet's floor of {:.2} K",
+                        report.min_approach, plant.settings.approach_floor
+                    ),
+                    "an approach this small needs a very large exchanger; allow more (the floor is settings.approach_floor)".to_string(),
+                )
+                .value("min_approach_K", report.min_approach)
+                .value("approach_floor_K", plant.settings.approach_floor)
+                .value("position", position),
+            );
+        }
+    }
+}
+
+fn compressors(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
+    for (unit, result) in plant.units.iter().zip(&solution.units) {
+        let UnitSpec::Compressor { model, .. } = &unit.spec else {
+            continue;
+        };
+        let inlet = &solution.streams[unit.inlets[0]];
+        if inlet.state.vapour_fraction() < 1.0 - 1e-9 {
+            out.push(
+                Finding::new(
+                    "liquid-at-compressor-suction",
+                    Severity::Error,
+                    Some(&unit.id),
+                    format!("the suction carries liquid (vapour fraction {:.4}); liquid damages a compressor", inlet.state.vapour_fraction()),
+                    "warm the suction stream in a recuperator or separate the liquid before the compressor".to_string(),
+                )
+                .value("vapour_fraction", inlet.state.vapour_fraction()),
+            );
+        }
+        if let (
+            CompressorModel::Staged { .. },
+            Details::Compressor {
+                discharge_temperatures,
+            },
+        ) = (model, &result.performance.details)
+        {
+            let hottest = discharge_temperatures
+                .iter()
+                .copied()
+                .fold(f64::NEG_INFINITY, f64::max);
+            if hottest > plant.settings.discharge_limit {
+                out.push(
+                    Finding::new(
+                        "discharge-temperature-high",
+                        Severity::Warning,
+                        Some(&unit.id),
+                        format!(
+                            "a stage discharges at {hottest:.1} K, above the limit of {:.1} K",
+                            plant.settings.discharge_limit
+                        ),
+                        "add a stage or intercool more (the limit is settings.discharge_limit)"
+                            .to_string(),
+                    )
+                    .value("discharge_temperature_K", hottest)
+                    .value("discharge_limit_K", plant.settings.discharge_limit),
+                );
+            }
+        }
+    }
+}
+
+fn coolers_and_precoolers(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
+    for (unit, result) in plant.units.iter().zip(&solution.units) {
+        let inlet = unit.inlets.first().map(|&i| &solution.streams[i]);
+        let outlet = unit.outlets.first().map(|&o| &solution.streams[o]);
+        let (Some(inlet), Some(outlet)) = (inlet, outlet) else {
+            continue;
+        };
+        match &unit.spec {
+            UnitSpec::Cooler { outlet_temperature, .. } if *outlet_temperature < plant.ambient => out.push(
+                Finding::new(
+                    "cooler-below-ambient",
+                    Severity::Error,
+                    Some(&unit.id),
+                    format!("a cooler against ambient air or cooling water cannot reach {outlet_temperature:.2} K, below the ambient {:.2} K", plant.ambient),
+                    "use a precooler (bath or refrigerator) for temperatures below ambient".to_string(),
+                )
+                .value("outlet_temperature_K", *outlet_temperature)
+                .value("ambient_K", plant.ambient),
+            ),
+            UnitSpec::Precooler { outlet_temperature, approach, source, .. } => {
+                if outlet.state.temperature > inlet.state.temperature + 1e-9 || result.performance.duty.unwrap_or(0.0) < 0.0 {
+                    out.push(
+                        Finding::new(
+                            "precooler-heats",
+                            Severity::Error,
+                            Some(&unit.id),
+                            format!("the stream arrives at {:.2} K, colder than the target {:.2} K: the precooler would heat it", inlet.state.temperature, outlet_temperature),
+                            "remove the precooler or lower its target".to_string(),
+                        )
+                        .value("inlet_temperature_K", inlet.state.temperature)
+                        .value("outlet_temperature_K", outlet.state.temperature),
+                    );
+                }
+                let sink = match (source, &result.performance.details) {
+                    (PrecoolerSource::Refrigerator { .. }, _) => None,
+                    (_, Details::Precooler { sink_temperature, .. }) => Some(*sink_temperature),
+                    _ => None,
+                };
+                if let Some(sink) = sink {
+                    if *outlet_temperature < sink + approach - 1e-9 {
+                        out.push(
+                            Finding::new(
+                                "precooler-colder-than-bath",
+                                Severity::Error,
+                                Some(&unit.id),
+                                format!(
+                                    "the target {outlet_temperature:.2} K is colder than the bath or coolant at {sink:.2} K plus the approach {approach:.2} K allows"
+                                ),
+                                format!("raise the target to at least {:.2} K, or lower the bath pressure", sink + approach),
+                            )
+                            .value("outlet_temperature_K", *outlet_temperature)
+                            .value("sink_temperature_K", sink)
+                            .value("approach_K", *approach),
+                        );
+                    }
+                }
+                if matches!(source, PrecoolerSource::Coolant) && outlet.state.temperature > outlet_temperature + 1e-6 {
+                    out.push(
+                        Finding::new(
+                            "precooler-short-of-target",
+                            Severity::Warning,
+                            Some(&unit.id),
+                            format!("the coolant can take only part of the duty: the stream leaves at {:.2} K instead of {outlet_temperature:.2} K", outlet.state.temperature),
+                            "send more coolant (a larger flow in the coolant's loop) or accept the warmer outlet".to_string(),
+                        )
+                        .value("outlet_temperature_K", outlet.state.temperature)
+                        .value("target_K", *outlet_temperature),
+                    );
+                }
+            }
+            _ => {}
+        }
+    }
+}
+
+fn expanders(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
+    for (unit, result) in plant.units.iter().zip(&solution.units) {
+        let Details::Expander {
+            outlet_liquid_fraction,
+        } = result.performance.details
+        else {
+            continue;
+        };
+        if outlet_liquid_fraction > plant.settings.expander_liquid_limit {
+            out.push(
+                Finding::new(
+                    "wet-expander-outlet",
+                    Severity::Warning,
+                    Some(&unit.id),
+                    format!(
+                        "the expander exhausts {:.1} % liquid, above the limit of {:.1} %",
+                        100.0 * outlet_liquid_fraction,
+                        100.0 * plant.settings.expander_liquid_limit
+                    ),
+                    "expand from a warmer inlet, to a higher outlet pressure, or send less flow through the expander (the limit is settings.expander_liquid_limit)".to_string(),
+                )
+                .value("outlet_liquid_fraction", outlet_liquid_fraction)
+                .value("limit", plant.settings.expander_liquid_limit),
+            );
+        }
+    }
+}
+
+/// Streams near the edge of their equation's range: within 1 % of the lowest
+/// temperature (close to the triple point, where solid may form) or of the highest
+/// pressure. States outside the range never get this far: the flash refuses them.
+fn ranges(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
+    for (s, flow) in solution.streams.iter().enumerate() {
+        let f = flow.state.fluid();
+        let t = flow.state.temperature;
+        let near_triple = t < f.temperature_min * 1.01;
+        let near_pressure = flow.state.pressure > 0.99 * f.pressure_max;
+        if near_triple || near_pressure {
+            out.push(
+                Finding::new(
+                    "state-near-range-limit",
+                    Severity::Warning,
+                    Some(&plant.units[plant.streams[s].from.unit].id),
+                    format!(
+                        "the stream {} ({t:.3} K, {:.4} bar) lies within 1 % of the {} equation's {}",
+                        solution.stream_names[s],
+                        flow.state.pressure / 1e5,
+                        f.name,
+                        if near_triple { format!("lowest temperature {:.3} K (solid may form)", f.temperature_min) } else { format!("highest pressure {:.0} MPa", f.pressure_max / 1e6) }
+                    ),
+                    "keep streams clear of the triple point (raise the pressure there) and of the equation's pressure limit".to_string(),
+                )
+                .value("temperature_K", t)
+                .value("pressure_Pa", flow.state.pressure),
+            );
+        }
+    }
+}
+
+/// Balance tolerances: mass 1e-9, energy 1e-6, exergy 1e-6 (relative).
+pub(crate) fn balances(solution: &Solution, out: &mut Vec<Finding>) {
+    let s = &solution.summary;
+    for (name, value, tolerance) in [
+        ("mass", s.mass_closure, 1e-9),
+        ("energy", s.energy_closure, 1e-6),
+        ("exergy", s.exergy_closure, 1e-6),
+    ] {
+        if !(value.abs() <= tolerance) {
+            out.push(
+                Finding::new(
+                    "balance-not-closed",
+                    Severity::Error,
+                    None,
+                    format!(
+                        "the {name} balance closes only to {value:.3e} (tolerance {tolerance:.0e})"
+                    ),
+                    "tighten settings.tolerance; if it persists, report the flowsheet as a bug"
+                        .to_string(),
+                )
+                .value("closure", value)
+                .value("tolerance", tolerance),
+            );
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn an_open_balance_is_reported() {
+        let plant = crate::flowsheet::load_str(
+            "title: t\nambient: 300 K\nfluids: [nitrogen]\nequipment:\n  - {id: f, kind: feed, fluid: nitrogen, temperature: 300 K, pressure: 1 bar, flow: 1 kg/s}\n  - {id: p, kind: product, inlet: f, role: vent}\n",
+            "t",
+            &[],
+        )
+        .unwrap();
+        let mut solution = crate::solve::solve(&plant, &Default::default()).unwrap();
+        let mut findings = Vec::new();
+        balances(&solution, &mut findings);
+        assert!(findings.is_empty());
+        solution.summary.energy_closure = 3e-4;
+        balances(&solution, &mut findings);
+        assert_eq!(findings.len(), 1);
+        assert_eq!(findings[0].id, "balance-not-closed");
+        assert!(findings[0].message.contains("energy"));
+    }
+}
