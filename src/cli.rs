@@ -47,6 +47,13 @@ enum Command {
         /// Print the largest tear residual of every pass on stderr.
         #[arg(long)]
         log: bool,
+        /// Write the plots (T–s, T–p with the valves, exchanger curves, exergy) as SVG
+        /// and PNG into this folder.
+        #[arg(long, value_name = "DIR")]
+        plot: Option<PathBuf>,
+        /// Write streams.csv and equipment.csv into this folder.
+        #[arg(long, value_name = "DIR")]
+        csv: Option<PathBuf>,
     },
     /// Solve a flowsheet and hold it against the design checks (docs/checks.md);
     /// exits with code 2 when the design has errors.
@@ -182,9 +189,19 @@ pub fn run(cli: Cli) -> Result<String, Failure> {
             json,
             set,
             log,
+            plot,
+            csv,
         } => {
             let plant = load_plant(&file, &set)?;
             let solution = cryochain::solve::solve(&plant, &Default::default())?;
+            if let Some(dir) = plot {
+                let files = report::plot::cycle::write_all(&plant, &solution, &dir)?;
+                eprintln!("wrote {} plot files to {}", files.len(), dir.display());
+            }
+            if let Some(dir) = csv {
+                let files = report::tables_csv::write_all(&solution, &dir)?;
+                eprintln!("wrote {} CSV files to {}", files.len(), dir.display());
+            }
             if log {
                 for (i, r) in solution.residual_log.iter().enumerate() {
                     eprintln!("pass {:>4}  largest scaled tear residual {r:.3e}", i + 1);

@@ -81,3 +81,38 @@ impl Fluid {
         })
     }
 }
+
+/// The saturation dome on the T–s plane: (entropy J/(kg·K), temperature K) of the
+/// saturated liquid from the triple point up, then of the saturated vapour back down.
+pub fn saturation_dome(fluid: &'static Fluid, points: usize) -> Vec<(f64, f64)> {
+    let (low, high) = (fluid.triple_temperature, fluid.saturation_temperature_max());
+    let mut liquid = Vec::new();
+    let mut vapour = Vec::new();
+    for i in 0..=points {
+        let t = (low + (high - low) * i as f64 / points as f64).min(high);
+        if let (Ok(l), Ok(v)) = (fluid.state_t_quality(t, 0.0), fluid.state_t_quality(t, 1.0)) {
+            liquid.push((l.entropy, l.temperature));
+            vapour.push((v.entropy, v.temperature));
+        }
+    }
+    vapour.reverse();
+    liquid.extend(vapour);
+    liquid
+}
+
+/// The (T, p) path of an isenthalpic expansion from `inlet` to `outlet_pressure`.
+pub fn throttling_path(
+    inlet: &super::State,
+    outlet_pressure: f64,
+    points: usize,
+) -> Vec<(f64, f64)> {
+    let fluid = inlet.fluid();
+    let pressures: Vec<f64> = (0..=points)
+        .map(|i| inlet.pressure + (outlet_pressure - inlet.pressure) * i as f64 / points as f64)
+        .collect();
+    fluid
+        .isenthalp(inlet.enthalpy, &pressures)
+        .iter()
+        .map(|s| (s.temperature, s.pressure))
+        .collect()
+}

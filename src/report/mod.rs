@@ -7,5 +7,6 @@ pub mod plot;
 pub mod solution;
 pub mod state;
 pub mod table;
+pub mod tables_csv;
 
 pub use table::TextTable;

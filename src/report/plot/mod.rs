@@ -2,6 +2,7 @@
 //! DejaVu Sans font bundled in the binary, so PNG files carry legible text on a
 //! machine with no fonts installed.
 
+pub mod cycle;
 pub mod tp_diagram;
 
 use crate::error::{Error, Result};
