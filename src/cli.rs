@@ -67,6 +67,67 @@ enum Command {
         #[arg(long = "set", value_name = "ID.KEY=VALUE")]
         set: Vec<String>,
     },
+    /// Sweep one to three parameters over a grid; every case is solved (in parallel)
+    /// and a failed case is recorded with its reason.
+    Sweep {
+        /// The flowsheet file.
+        file: PathBuf,
+        /// id.key=START..END:STEPS[:log], both ends with their unit (repeatable, 1–3).
+        #[arg(long = "vary", required = true)]
+        vary: Vec<String>,
+        /// Fixed overrides applied to every case.
+        #[arg(long = "set")]
+        set: Vec<String>,
+        /// Run only shard K of N (K/N): every N-th row of the grid from row K.
+        #[arg(long)]
+        shard: Option<String>,
+        /// Write the cases as CSV here.
+        #[arg(long)]
+        csv: Option<PathBuf>,
+        /// Write a plot (line or heat map) here (.svg or .png).
+        #[arg(long)]
+        plot: Option<PathBuf>,
+    },
+    /// Merge shard CSV files of one sweep into the file the unsharded sweep writes.
+    MergeShards {
+        /// The shard files.
+        files: Vec<PathBuf>,
+        /// Write here instead of stdout.
+        #[arg(long, short)]
+        output: Option<PathBuf>,
+    },
+    /// Optimise a figure over bounded parameters (argmin: Brent for one, Nelder–Mead
+    /// for several).
+    Optimize {
+        /// The flowsheet file.
+        file: PathBuf,
+        /// id.key=LO..HI with units (repeatable).
+        #[arg(long = "vary", required = true)]
+        vary: Vec<String>,
+        /// liquid_yield or figure_of_merit.
+        #[arg(long)]
+        maximize: Option<String>,
+        /// specific_energy.
+        #[arg(long)]
+        minimize: Option<String>,
+        /// Keep the smallest exchanger approach at least this (for example 1K).
+        #[arg(long = "min-approach")]
+        min_approach: Option<String>,
+        /// Fixed overrides.
+        #[arg(long = "set")]
+        set: Vec<String>,
+        /// Solver iteration cap.
+        #[arg(long, default_value_t = 100)]
+        iterations: u64,
+    },
+    /// Headline figures of several flowsheets side by side.
+    Compare {
+        /// The flowsheet files.
+        files: Vec<PathBuf>,
+        /// Write a bar chart here (.svg or .png).
+        #[arg(long)]
+        plot: Option<PathBuf>,
+    },
     /// List the built-in fluids with their sources, critical and triple points and ranges.
     Fluids {
         /// Print JSON instead of a table.
@@ -181,6 +242,126 @@ fn load_plant(
     })
 }
 
+fn read_text(path: &std::path::Path) -> Result<String, Failure> {
+    std::fs::read_to_string(path).map_err(|e| Failure {
+        message: format!("cannot read {}: {e}", path.display()),
+        code: exit::IO,
+    })
+}
+
+fn parse_overrides(set: &[String]) -> Result<Vec<cryochain::flowsheet::Override>, Failure> {
+    Ok(set
+        .iter()
+        .map(|s| cryochain::flowsheet::Override::parse(s))
+        .collect::<Result<Vec<_>, _>>()?)
+}
+
+fn sweep_command(
+    file: &std::path::Path,
+    vary: &[String],
+    set: &[String],
+    shard: Option<&str>,
+    csv: Option<&std::path::Path>,
+    plot: Option<&std::path::Path>,
+) -> Result<String, Failure> {
+    let text = read_text(file)?;
+    let name = file.display().to_string();
+    let overrides = parse_overrides(set)?;
+    let variables = vary
+        .iter()
+        .map(|v| cryochain::study::Variable::parse_range(v))
+        .collect::<Result<Vec<_>, _>>()?;
+    let shard = match shard {
+        None => None,
+        Some(text) => {
+            let (k, n) = text
+                .split_once('/')
+                .and_then(|(k, n)| Some((k.trim().parse().ok()?, n.trim().parse().ok()?)))
+                .ok_or_else(|| Failure {
+                    message: format!("--shard {text}: write K/N, such as 2/8"),
+                    code: exit::INPUT,
+                })?;
+            Some((k, n))
+        }
+    };
+    let total: usize = variables.iter().map(|v| v.values.len()).product();
+    let step = (total / 10).max(1);
+    let progress = move |done: usize, of: usize| {
+        if of >= 20 && (done % step == 0 || done == of) {
+            eprintln!("solved {done}/{of} cases");
+        }
+    };
+    let study = cryochain::study::sweep(&text, &name, &overrides, &variables, shard, &progress)?;
+    let csv_text = cryochain::study::to_csv(&study)?;
+    if let Some(path) = csv {
+        std::fs::write(path, &csv_text).map_err(|e| Failure {
+            message: format!("cannot write {}: {e}", path.display()),
+            code: exit::IO,
+        })?;
+        eprintln!("wrote {} cases to {}", study.cases.len(), path.display());
+    }
+    if let Some(path) = plot {
+        report::plot::study::sweep(&study, path)?;
+        eprintln!("wrote {}", path.display());
+    }
+    // A table of the cases, and the best one.
+    let mut headers: Vec<(String, report::table::Align)> = study
+        .variables
+        .iter()
+        .map(|v| {
+            (
+                format!("{} [{}]", v.name(), v.unit),
+                report::table::Align::Right,
+            )
+        })
+        .collect();
+    headers.extend([
+        ("yield".to_string(), report::table::Align::Right),
+        ("kWh/kg".to_string(), report::table::Align::Right),
+        ("status".to_string(), report::table::Align::Left),
+    ]);
+    let refs: Vec<(&str, report::table::Align)> =
+        headers.iter().map(|(h, a)| (h.as_str(), *a)).collect();
+    let mut table = report::TextTable::new(&refs);
+    for case in &study.cases {
+        let mut row: Vec<String> = case.coordinates.iter().map(|c| format!("{c:.4}")).collect();
+        match &case.outcome {
+            Ok(m) => row.extend([
+                format!("{:.5}", m.liquid_yield),
+                format!("{:.3}", m.specific_energy),
+                if m.design_errors > 0 {
+                    format!("ok, {} design errors", m.design_errors)
+                } else {
+                    "ok".into()
+                },
+            ]),
+            Err(reason) => row.extend([
+                String::new(),
+                String::new(),
+                format!("failed: {}", reason.chars().take(60).collect::<String>()),
+            ]),
+        }
+        table.row(row);
+    }
+    let mut out = table.render();
+    let failed = study.cases.iter().filter(|c| c.outcome.is_err()).count();
+    if let Some(best) = study
+        .cases
+        .iter()
+        .filter_map(|c| c.outcome.as_ref().ok().map(|m| (c, m)))
+        .max_by(|a, b| a.1.liquid_yield.total_cmp(&b.1.liquid_yield))
+    {
+        out.push_str(&format!(
+            "\nhighest yield {:.5} at {:?}; {} of {} cases failed\n",
+            best.1.liquid_yield,
+            best.0.coordinates,
+            failed,
+            study.cases.len()
+        ));
+    }
+    Ok(out)
+}
+
 /// Runs the parsed command; returns what to print on stdout.
 pub fn run(cli: Cli) -> Result<String, Failure> {
     match cli.command {
@@ -247,6 +428,133 @@ pub fn run(cli: Cli) -> Result<String, Failure> {
                 });
             }
             Ok(text)
+        }
+        Command::Sweep {
+            file,
+            vary,
+            set,
+            shard,
+            csv,
+            plot,
+        } => sweep_command(
+            &file,
+            &vary,
+            &set,
+            shard.as_deref(),
+            csv.as_deref(),
+            plot.as_deref(),
+        ),
+        Command::MergeShards { files, output } => {
+            let parts = files
+                .iter()
+                .map(|f| {
+                    std::fs::read_to_string(f).map_err(|e| Failure {
+                        message: format!("cannot read {}: {e}", f.display()),
+                        code: exit::IO,
+                    })
+                })
+                .collect::<Result<Vec<_>, _>>()?;
+            let merged = cryochain::study::merge_csv(&parts)?;
+            match output {
+                Some(path) => {
+                    std::fs::write(&path, merged).map_err(|e| Failure {
+                        message: format!("cannot write {}: {e}", path.display()),
+                        code: exit::IO,
+                    })?;
+                    Ok(String::new())
+                }
+                None => Ok(merged),
+            }
+        }
+        Command::Optimize {
+            file,
+            vary,
+            maximize,
+            minimize,
+            min_approach,
+            set,
+            iterations,
+        } => {
+            let text = read_text(&file)?;
+            let name = file.display().to_string();
+            let overrides = parse_overrides(&set)?;
+            let variables = vary
+                .iter()
+                .map(|v| cryochain::study::optimize::Bounded::parse(v))
+                .collect::<Result<Vec<_>, _>>()?;
+            let objective = cryochain::study::optimize::Objective::parse(
+                maximize.as_deref(),
+                minimize.as_deref(),
+            )?;
+            let floor = min_approach
+                .map(|t| {
+                    cryochain::quantity::parse(
+                        &t,
+                        cryochain::quantity::Dimension::TemperatureDifference,
+                    )
+                    .map_err(Error::from)
+                })
+                .transpose()?;
+            let best = cryochain::study::optimize::optimize(
+                &text, &name, &overrides, &variables, objective, floor, iterations,
+            )?;
+            let mut out = format!("{} of {}\n", objective.name(), name);
+            for (v, x) in variables.iter().zip(&best.values) {
+                out.push_str(&format!("  {}.{} = {x:.6} {}\n", v.target, v.key, v.unit));
+            }
+            out.push_str(&format!(
+                "  objective {:.6}; liquid yield {:.6}; specific energy {:.4} kWh/kg; smallest approach {:.3} K\n",
+                best.objective, best.metrics.liquid_yield, best.metrics.specific_energy, best.metrics.min_approach
+            ));
+            out.push_str(&format!(
+                "  {} solver iterations, {} flowsheet solves; constraint {}\n",
+                best.iterations,
+                best.solves,
+                if best.constraint_met {
+                    "met"
+                } else {
+                    "NOT met"
+                }
+            ));
+            Ok(out)
+        }
+        Command::Compare { files, plot } => {
+            let mut table = report::TextTable::new(&[
+                ("flowsheet", report::table::Align::Left),
+                ("yield", report::table::Align::Right),
+                ("liquid [kg/h]", report::table::Align::Right),
+                ("power [kW]", report::table::Align::Right),
+                ("precool [kW]", report::table::Align::Right),
+                ("kWh/kg", report::table::Align::Right),
+                ("FOM", report::table::Align::Right),
+            ]);
+            let (mut names, mut yields, mut energies) = (Vec::new(), Vec::new(), Vec::new());
+            for file in &files {
+                let plant = cryochain::flowsheet::load(file, &[])?;
+                let solution = cryochain::solve::solve(&plant, &Default::default())?;
+                let s = &solution.summary;
+                let name = file.file_stem().map_or_else(
+                    || file.display().to_string(),
+                    |n| n.to_string_lossy().into_owned(),
+                );
+                table.row(vec![
+                    name.clone(),
+                    s.liquid_yield.map_or("—".into(), |y| format!("{y:.4}")),
+                    format!("{:.3}", s.liquid_flow * 3600.0),
+                    format!("{:.2}", s.shaft_power / 1e3),
+                    format!("{:.2}", s.precooling_work / 1e3),
+                    s.specific_energy.map_or("—".into(), |e| format!("{e:.3}")),
+                    s.figure_of_merit.map_or("—".into(), |f| format!("{f:.4}")),
+                ]);
+                names.push(name);
+                yields.push(s.liquid_yield.unwrap_or(f64::NAN));
+                energies.push(s.specific_energy.unwrap_or(f64::NAN));
+            }
+            if let Some(path) = plot {
+                report::plot::study::compare(&names, &yields, &energies, &path)?;
+                eprintln!("wrote {}", path.display());
+            }
+            Ok(table.render())
         }
         Command::Fluids { json } => {
             let all = fluids::all()?;

@@ -17,5 +17,6 @@ pub mod quantity;
 pub mod report;
 pub mod rules;
 pub mod solve;
+pub mod study;
 
 pub use error::{Error, Result};

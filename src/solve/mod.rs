@@ -25,6 +25,9 @@ pub struct Options {
     pub max_iterations: Option<usize>,
     /// Method (overrides the settings).
     pub method: Option<Method>,
+    /// Start the recycle from this converged vector of a neighbouring case (used
+    /// when its length matches this plant's).
+    pub warm_start: Option<Vec<f64>>,
 }
 
 /// What one pass produces: G(x), every stream, every unit's performance.
@@ -299,12 +302,14 @@ pub fn solve(plant: &Plant, options: &Options) -> Result<Solution> {
         })
         .collect::<Result<_>>()?;
     let _ = ProductRole::Liquid;
-    results::assemble(
+    let mut solution = results::assemble(
         plant,
         &sequence,
         flows,
         performances,
         converged.iterations,
         converged.log,
-    )
+    )?;
+    solution.tear_vector = converged.x;
+    Ok(solution)
 }

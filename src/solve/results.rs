@@ -97,6 +97,8 @@ pub struct Solution {
     pub tears: Vec<String>,
     /// The recycles, as lists of unit ids.
     pub recycles: Vec<Vec<String>>,
+    /// The converged (scaled) tear vector, to warm-start a neighbouring case.
+    pub tear_vector: Vec<f64>,
 }
 
 /// Dead-state (h₀, s₀) per fluid.
@@ -273,6 +275,7 @@ pub fn assemble(
             .iter()
             .map(|&t| plant.streams[t].name.clone())
             .collect(),
+        tear_vector: Vec::new(),
         recycles: sequence
             .recycles
             .iter()

@@ -3,6 +3,7 @@
 //! machine with no fonts installed.
 
 pub mod cycle;
+pub mod study;
 pub mod tp_diagram;
 
 use crate::error::{Error, Result};
