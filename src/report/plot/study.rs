@@ -130,7 +130,6 @@ pub fn sweep(study: &Sweep, path: &Path) -> Result<()> {
                     .margin(18)
                     .x_label_area_size(56)
                     .y_label_area_size(80)
-                    .right_y_label_area_size(20)
                     .build_cartesian_2d(
                         (x0 - dx / 2.0)..(x1 + dx / 2.0),
                         (a0 - dy / 2.0)..(a1 + dy / 2.0),
@@ -149,7 +148,7 @@ pub fn sweep(study: &Sweep, path: &Path) -> Result<()> {
                         let (x, y) = (c.coordinates[0], c.coordinates[1]);
                         let colour = match &c.outcome {
                             Ok(m) => {
-                                let f = (m.liquid_yield / y_max).clamp(0.0, 1.0);
+                                let f = (1.1 * m.liquid_yield / y_max).clamp(0.0, 1.0);
                                 RGBColor(
                                     (255.0 * f) as u8,
                                     (60.0 + 120.0 * f) as u8,
@@ -167,7 +166,7 @@ pub fn sweep(study: &Sweep, path: &Path) -> Result<()> {
                 chart
                     .draw_series([Text::new(
                         format!(
-                            "colour: liquid yield from 0 (blue) to {:.3} (red); grey: failed",
+                            "colour: liquid yield from 0 (blue) to {:.3} (orange); grey: failed",
                             y_max / 1.1
                         ),
                         (x0, a1 + dy * 0.2),
