@@ -521,6 +521,25 @@ impl Fluid {
         };
         let margin = 2.0 * held.slope(&vapour) * uncertainty;
         if target > held.of(&vapour) + margin {
+            // Far into the gas, the ideal-gas estimate is a closer start than the
+            // saturated vapour; the answer must be less dense than that vapour.
+            let estimate = self.ideal_gas_estimate(pressure, target, held);
+            if estimate > 1.5 * temperature {
+                let t0 = estimate.min(self.temperature_max * 0.999);
+                let start = self.properties(t0, self.ideal_gas_density(t0, pressure));
+                if let Some(Ok(state)) = self.newton_in_temperature_and_density(
+                    pressure,
+                    target,
+                    held,
+                    Region::Vapour,
+                    &start,
+                    (temperature, f64::INFINITY),
+                ) {
+                    if state.density < vapour.density {
+                        return Ok(Some(state));
+                    }
+                }
+            }
             return self
                 .newton_in_temperature_and_density(
                     pressure,
@@ -589,9 +608,9 @@ impl Fluid {
             }
             let dt = (-f1 * d + f2 * b) / det;
             let drho = (-a * f2 + c * f1) / det;
-            // Keep steps modest: at most a fifth of T, half of ρ.
+            // Keep steps modest: at most half of T, half of ρ.
             let scale = (1.0f64)
-                .min(0.2 * t / dt.abs().max(1e-300))
+                .min(0.5 * t / dt.abs().max(1e-300))
                 .min(0.5 * rho / drho.abs().max(1e-300));
             t += scale * dt;
             rho += scale * drho;

@@ -280,9 +280,25 @@ pub fn solve(plant: &Plant, options: &Options) -> Result<Solution> {
             log: vec![0.0],
         }
     } else {
-        match options.method.unwrap_or(plant.settings.method) {
-            Method::Wegstein => converge::wegstein(&mut problem, start, tolerance, cap, &describe)?,
-            Method::Broyden => converge::broyden(&mut problem, start, tolerance, cap, &describe)?,
+        // The chosen method first; where it fails, the other from the same start
+        // (Wegstein is quick on smooth loops, Broyden surer where a unit switches
+        // regime, as a coolant-limited precooler does). Both failing is the first
+        // method's error.
+        let method = options.method.unwrap_or(plant.settings.method);
+        let run = |problem: &mut Problem, method: Method, start: Vec<f64>| match method {
+            Method::Wegstein => converge::wegstein(problem, start, tolerance, cap, &describe),
+            Method::Broyden => converge::broyden(problem, start, tolerance, cap, &describe),
+        };
+        match run(&mut problem, method, start.clone()) {
+            Ok(c) => c,
+            Err(first @ Error::NoConvergence { .. }) => {
+                let other = match method {
+                    Method::Wegstein => Method::Broyden,
+                    Method::Broyden => Method::Wegstein,
+                };
+                run(&mut problem, other, start).map_err(|_| first)?
+            }
+            Err(e) => return Err(e),
         }
     };
     // The reported streams come from a pass at the converged point, in detail.
