@@ -285,13 +285,26 @@ fn sweep_command(
         }
     };
     let total: usize = variables.iter().map(|v| v.values.len()).product();
-    let step = (total / 10).max(1);
-    let progress = move |done: usize, of: usize| {
-        if of >= 20 && (done % step == 0 || done == of) {
-            eprintln!("solved {done}/{of} cases");
-        }
+    // A progress bar on stderr for long runs (hidden when stderr is not a terminal).
+    let bar = indicatif::ProgressBar::with_draw_target(
+        Some(total as u64),
+        indicatif::ProgressDrawTarget::stderr(),
+    );
+    bar.set_style(
+        indicatif::ProgressStyle::with_template(
+            "{bar:40} {pos}/{len} cases, {elapsed} elapsed, {eta} left",
+        )
+        .unwrap_or_else(|_| indicatif::ProgressStyle::default_bar()),
+    );
+    if total < 20 {
+        bar.set_draw_target(indicatif::ProgressDrawTarget::hidden());
+    }
+    let progress = |done: usize, of: usize| {
+        bar.set_length(of as u64);
+        bar.set_position(done as u64);
     };
     let study = cryochain::study::sweep(&text, &name, &overrides, &variables, shard, &progress)?;
+    bar.finish_and_clear();
     let csv_text = cryochain::study::to_csv(&study)?;
     if let Some(path) = csv {
         std::fs::write(path, &csv_text).map_err(|e| Failure {
