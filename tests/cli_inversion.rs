@@ -1,19 +1,10 @@
 //! End-to-end tests of `cryochain inversion` and `cryochain throttle`: the real
 //! binary, its files, its JSON and its errors.
 
-use std::process::Command;
+mod common;
 
 fn cryochain(args: &[&str]) -> (i32, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_cryochain"))
-        .args(args)
-        .current_dir(std::env::temp_dir())
-        .output()
-        .expect("run cryochain");
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&out.stdout).into_owned(),
-        String::from_utf8_lossy(&out.stderr).into_owned(),
-    )
+    common::run_in(&std::env::temp_dir(), args)
 }
 
 fn scratch(name: &str) -> std::path::PathBuf {

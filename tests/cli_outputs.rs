@@ -2,21 +2,13 @@
 //! CSV tables with headers and units, and JSON that round-trips into the documented
 //! structure.
 
+mod common;
+
 use cryochain::report::solution::SolutionRecord;
 use std::path::Path;
-use std::process::Command;
 
 fn cryochain(args: &[&str]) -> (i32, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_cryochain"))
-        .args(args)
-        .current_dir(Path::new(env!("CARGO_MANIFEST_DIR")))
-        .output()
-        .unwrap();
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&out.stdout).into_owned(),
-        String::from_utf8_lossy(&out.stderr).into_owned(),
-    )
+    common::run_in(Path::new(env!("CARGO_MANIFEST_DIR")), args)
 }
 
 fn scratch(name: &str) -> std::path::PathBuf {

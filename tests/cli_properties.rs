@@ -1,19 +1,9 @@
 //! End-to-end tests of the property commands: the real binary in a temporary folder.
 
-use std::process::Command;
+mod common;
 
 fn cryochain(args: &[&str]) -> (i32, String, String) {
-    let dir = std::env::temp_dir();
-    let out = Command::new(env!("CARGO_BIN_EXE_cryochain"))
-        .args(args)
-        .current_dir(dir)
-        .output()
-        .expect("run cryochain");
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&out.stdout).into_owned(),
-        String::from_utf8_lossy(&out.stderr).into_owned(),
-    )
+    common::run_in(&std::env::temp_dir(), args)
 }
 
 #[test]

@@ -1,20 +1,12 @@
 //! End-to-end: the real binary solves every demo flowsheet and the built-in default,
 //! prints readable tables within 100 columns, and JSON with the documented keys.
 
+mod common;
+
 use std::path::Path;
-use std::process::Command;
 
 fn cryochain(args: &[&str]) -> (i32, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_cryochain"))
-        .args(args)
-        .current_dir(Path::new(env!("CARGO_MANIFEST_DIR")))
-        .output()
-        .expect("run cryochain");
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&out.stdout).into_owned(),
-        String::from_utf8_lossy(&out.stderr).into_owned(),
-    )
+    common::run_in(Path::new(env!("CARGO_MANIFEST_DIR")), args)
 }
 
 #[test]

@@ -41,3 +41,17 @@ pub fn column(header: &[String], name: &str) -> usize {
 pub fn relative(a: f64, b: f64) -> f64 {
     (a - b).abs() / b.abs()
 }
+
+/// Runs the real `cryochain` binary in `dir`: (exit code, stdout, stderr).
+pub fn run_in(dir: &std::path::Path, args: &[&str]) -> (i32, String, String) {
+    let out = std::process::Command::new(env!("CARGO_BIN_EXE_cryochain"))
+        .args(args)
+        .current_dir(dir)
+        .output()
+        .expect("run cryochain");
+    (
+        out.status.code().unwrap_or(-1),
+        String::from_utf8_lossy(&out.stdout).into_owned(),
+        String::from_utf8_lossy(&out.stderr).into_owned(),
+    )
+}

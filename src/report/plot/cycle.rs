@@ -4,7 +4,7 @@
 //! written as SVG and PNG.
 
 use super::tp_diagram::{self, ValvePath};
-use super::{drawing, ensure_font};
+use super::{chart, drawing, ensure_font, legend};
 use crate::equipment::Details;
 use crate::error::Result;
 use crate::flowsheet::{Plant, UnitSpec};
@@ -194,13 +194,14 @@ fn ts_diagram(
             let root = $root;
             let err = drawing(path);
             root.fill(&WHITE).map_err(&err)?;
-            let mut chart = ChartBuilder::on(root)
-                .caption(&title, ("sans-serif", 24))
-                .margin(18)
-                .x_label_area_size(56)
-                .y_label_area_size(72)
-                .build_cartesian_2d((s_min - pad)..(s_max + pad), t_min..t_max)
-                .map_err(&err)?;
+            let mut chart = chart(
+                root,
+                &title,
+                24,
+                (s_min - pad)..(s_max + pad),
+                t_min..t_max,
+                path,
+            )?;
             chart
                 .configure_mesh()
                 .x_desc("specific entropy [kJ/(kg·K)]")
@@ -257,14 +258,7 @@ fn ts_diagram(
             for label in labels {
                 root.draw(&label).map_err(&err)?;
             }
-            chart
-                .configure_series_labels()
-                .position(SeriesLabelPosition::UpperLeft)
-                .label_font(("sans-serif", 16))
-                .background_style(WHITE.mix(0.9))
-                .border_style(BLACK)
-                .draw()
-                .map_err(&err)?;
+            legend(&mut chart, SeriesLabelPosition::UpperLeft, path)?;
             Ok(())
         }};
     }
@@ -301,16 +295,14 @@ fn exchanger_curves(
             let root = $root;
             let err = drawing(path);
             root.fill(&WHITE).map_err(&err)?;
-            let mut chart = ChartBuilder::on(root)
-                .caption(&title, ("sans-serif", 24))
-                .margin(18)
-                .x_label_area_size(56)
-                .y_label_area_size(72)
-                .build_cartesian_2d(
-                    0.0..q_max * 1.02,
-                    (t_min - 0.05 * span)..(t_max + 0.08 * span),
-                )
-                .map_err(&err)?;
+            let mut chart = chart(
+                root,
+                &title,
+                24,
+                0.0..q_max * 1.02,
+                (t_min - 0.05 * span)..(t_max + 0.08 * span),
+                path,
+            )?;
             chart
                 .configure_mesh()
                 .x_desc("duty transferred from the warm end [kW]")
@@ -351,14 +343,7 @@ fn exchanger_curves(
                         PathElement::new([(x + 9, y - 6), (x + 9, y + 6)], BLACK.stroke_width(2))
                     });
             }
-            chart
-                .configure_series_labels()
-                .position(SeriesLabelPosition::UpperRight)
-                .label_font(("sans-serif", 16))
-                .background_style(WHITE.mix(0.9))
-                .border_style(BLACK)
-                .draw()
-                .map_err(&err)?;
+            legend(&mut chart, SeriesLabelPosition::UpperRight, path)?;
             Ok(())
         }};
     }

@@ -60,3 +60,49 @@ pub fn format_of(path: &Path) -> Result<Format> {
 pub(crate) fn drawing<E: std::fmt::Debug>(path: &Path) -> impl Fn(E) -> Error + '_ {
     move |e| Error::Input(format!("cannot draw {}: {e:?}", path.display()))
 }
+
+/// The chart type every plot here uses: f64 against f64.
+pub(crate) type Chart<'a, DB> = plotters::chart::ChartContext<
+    'a,
+    DB,
+    plotters::coord::cartesian::Cartesian2d<
+        plotters::coord::types::RangedCoordf64,
+        plotters::coord::types::RangedCoordf64,
+    >,
+>;
+
+/// A chart with a caption (`size` points) and the usual margins and label areas over
+/// the x and y ranges.
+pub(crate) fn chart<'a, DB: plotters::prelude::DrawingBackend>(
+    area: &'a plotters::prelude::DrawingArea<DB, plotters::coord::Shift>,
+    title: &str,
+    size: u32,
+    x: std::ops::Range<f64>,
+    y: std::ops::Range<f64>,
+    path: &Path,
+) -> Result<Chart<'a, DB>> {
+    plotters::prelude::ChartBuilder::on(area)
+        .caption(title, ("sans-serif", size))
+        .margin(18)
+        .x_label_area_size(56)
+        .y_label_area_size(76)
+        .build_cartesian_2d(x, y)
+        .map_err(drawing(path))
+}
+
+/// The series legend in a white box at `position`.
+pub(crate) fn legend<'a, DB: plotters::prelude::DrawingBackend + 'a>(
+    chart: &mut Chart<'a, DB>,
+    position: plotters::prelude::SeriesLabelPosition,
+    path: &Path,
+) -> Result<()> {
+    use plotters::prelude::*;
+    chart
+        .configure_series_labels()
+        .position(position)
+        .label_font(("sans-serif", 16))
+        .background_style(WHITE.mix(0.9))
+        .border_style(BLACK)
+        .draw()
+        .map_err(drawing(path))
+}

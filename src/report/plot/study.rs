@@ -1,7 +1,7 @@
 //! Plots of studies: a sweep's liquid yield against one parameter (line) or two
 //! (heat map), and a comparison of flowsheets as bars.
 
-use super::{drawing, ensure_font, format_of, Format};
+use super::{chart, drawing, ensure_font, format_of, legend, Format};
 use crate::error::Result;
 use crate::study::Sweep;
 use plotters::coord::Shift;
@@ -67,16 +67,14 @@ pub fn sweep(study: &Sweep, path: &Path) -> Result<()> {
             let err = drawing(path);
             root.fill(&WHITE).map_err(&err)?;
             if study.variables.len() == 1 {
-                let mut chart = ChartBuilder::on(root)
-                    .caption(
-                        format!("liquid yield against {}", v0.name()),
-                        ("sans-serif", 24),
-                    )
-                    .margin(18)
-                    .x_label_area_size(56)
-                    .y_label_area_size(80)
-                    .build_cartesian_2d(x0..x1, 0.0..y_max)
-                    .map_err(&err)?;
+                let mut chart = chart(
+                    root,
+                    &format!("liquid yield against {}", v0.name()),
+                    24,
+                    x0..x1,
+                    0.0..y_max,
+                    path,
+                )?;
                 chart
                     .configure_mesh()
                     .x_desc(label(v0))
@@ -104,14 +102,7 @@ pub fn sweep(study: &Sweep, path: &Path) -> Result<()> {
                     .map_err(&err)?
                     .label("failed cases")
                     .legend(|(x, y)| Cross::new((x + 9, y), 6, RED.stroke_width(2)));
-                chart
-                    .configure_series_labels()
-                    .position(SeriesLabelPosition::UpperRight)
-                    .label_font(("sans-serif", 16))
-                    .background_style(WHITE.mix(0.9))
-                    .border_style(BLACK)
-                    .draw()
-                    .map_err(&err)?;
+                legend(&mut chart, SeriesLabelPosition::UpperRight, path)?;
             } else {
                 let v1 = &study.variables[1];
                 let (a0, a1) = (
@@ -122,19 +113,14 @@ pub fn sweep(study: &Sweep, path: &Path) -> Result<()> {
                     (x1 - x0) / (v0.values.len().max(2) - 1) as f64,
                     (a1 - a0) / (v1.values.len().max(2) - 1) as f64,
                 );
-                let mut chart = ChartBuilder::on(root)
-                    .caption(
-                        format!("liquid yield over {} and {}", v0.name(), v1.name()),
-                        ("sans-serif", 22),
-                    )
-                    .margin(18)
-                    .x_label_area_size(56)
-                    .y_label_area_size(80)
-                    .build_cartesian_2d(
-                        (x0 - dx / 2.0)..(x1 + dx / 2.0),
-                        (a0 - dy / 2.0)..(a1 + dy / 2.0),
-                    )
-                    .map_err(&err)?;
+                let mut chart = chart(
+                    root,
+                    &format!("liquid yield over {} and {}", v0.name(), v1.name()),
+                    22,
+                    (x0 - dx / 2.0)..(x1 + dx / 2.0),
+                    (a0 - dy / 2.0)..(a1 + dy / 2.0),
+                    path,
+                )?;
                 chart
                     .configure_mesh()
                     .x_desc(label(v0))

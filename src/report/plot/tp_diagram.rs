@@ -1,7 +1,7 @@
 //! The temperature–pressure diagram: saturation line, inversion curve, isenthalps,
 //! and the regions where throttling cools and where it warms.
 
-use super::{drawing, ensure_font, format_of, Format};
+use super::{chart, drawing, ensure_font, format_of, legend, Format};
 use crate::error::Result;
 use crate::fluids::diagram::TpDiagram;
 use plotters::coord::Shift;
@@ -66,13 +66,7 @@ fn draw<DB: DrawingBackend>(
         "{}: Joule-Thomson inversion on the T–p plane ({})",
         d.fluid, d.source_key
     );
-    let mut chart = ChartBuilder::on(root)
-        .caption(title, ("sans-serif", 26))
-        .margin(18)
-        .x_label_area_size(56)
-        .y_label_area_size(72)
-        .build_cartesian_2d(0.0..p_max, t_min..t_max)
-        .map_err(&err)?;
+    let mut chart = chart(root, &title, 26, 0.0..p_max, t_min..t_max, path)?;
     chart
         .configure_mesh()
         .x_desc("pressure [bar]")
@@ -180,13 +174,6 @@ fn draw<DB: DrawingBackend>(
             ),
         ])
         .map_err(&err)?;
-    chart
-        .configure_series_labels()
-        .position(SeriesLabelPosition::UpperRight)
-        .label_font(("sans-serif", 16))
-        .background_style(WHITE.mix(0.9))
-        .border_style(BLACK)
-        .draw()
-        .map_err(&err)?;
+    legend(&mut chart, SeriesLabelPosition::UpperRight, path)?;
     Ok(())
 }
