@@ -468,6 +468,25 @@ impl Fluid {
         let start_t = self
             .ideal_gas_estimate(pressure, target, held)
             .clamp(coldest * (1.0 + 1e-6), self.temperature_max);
+        // First straight from the ideal-gas start: above the saturation range the
+        // stable root is unique, so a converged joint Newton is the answer.
+        if region == Region::AboveCritical && start_t > self.critical.temperature {
+            let guess = self.properties(
+                start_t,
+                self.ideal_gas_density(start_t, pressure)
+                    .min(0.2 * self.density_ceiling),
+            );
+            if let Some(found) = self.newton_in_temperature_and_density(
+                pressure,
+                target,
+                held,
+                region,
+                &guess,
+                (coldest, f64::INFINITY),
+            ) {
+                return found;
+            }
+        }
         let start = self.state_tp(start_t, pressure)?;
         let props = start.single_phase.ok_or_else(|| Error::ImpossibleState {
             fluid: self.name.clone(),
@@ -508,6 +527,27 @@ impl Fluid {
         let (_, slope) = equation.log_value_and_slope(temperature);
         // Four times the measured largest error of ln p, as a temperature.
         let uncertainty = self.ancillary_margin() / slope;
+        // Far into the gas (judged by the ideal-gas estimate), try the joint Newton
+        // from the ideal-gas start first: a converged state well above the saturation
+        // temperature and less dense than the critical density is the stable vapour
+        // (a superheated liquid there would be denser than critical).
+        let estimate = self.ideal_gas_estimate(pressure, target, held);
+        if estimate > 1.5 * temperature {
+            let t0 = estimate.min(self.temperature_max * 0.999);
+            let start = self.properties(t0, self.ideal_gas_density(t0, pressure));
+            if let Some(Ok(state)) = self.newton_in_temperature_and_density(
+                pressure,
+                target,
+                held,
+                Region::Vapour,
+                &start,
+                (temperature + 2.0 * uncertainty, f64::INFINITY),
+            ) {
+                if state.density < self.critical.density {
+                    return Ok(Some(state));
+                }
+            }
+        }
         let factors = self.tau_factors(temperature);
         let near = |branch: Branch| -> Option<Properties> {
             let rho = self
@@ -521,25 +561,6 @@ impl Fluid {
         };
         let margin = 2.0 * held.slope(&vapour) * uncertainty;
         if target > held.of(&vapour) + margin {
-            // Far into the gas, the ideal-gas estimate is a closer start than the
-            // saturated vapour; the answer must be less dense than that vapour.
-            let estimate = self.ideal_gas_estimate(pressure, target, held);
-            if estimate > 1.5 * temperature {
-                let t0 = estimate.min(self.temperature_max * 0.999);
-                let start = self.properties(t0, self.ideal_gas_density(t0, pressure));
-                if let Some(Ok(state)) = self.newton_in_temperature_and_density(
-                    pressure,
-                    target,
-                    held,
-                    Region::Vapour,
-                    &start,
-                    (temperature, f64::INFINITY),
-                ) {
-                    if state.density < vapour.density {
-                        return Ok(Some(state));
-                    }
-                }
-            }
             return self
                 .newton_in_temperature_and_density(
                     pressure,
