@@ -45,7 +45,7 @@ impl Fluid {
         }
         let scale = pressure.max(1e-300);
         let mut last_residual = f64::INFINITY;
-        for iteration in 0..DENSITY_ITERATION_CAP {
+        for _ in 0..DENSITY_ITERATION_CAP {
             let (p, slope) = self.pressure_and_slope(factors, temperature, x);
             let f = p - pressure;
             last_residual = f.abs() / scale;
@@ -78,7 +78,6 @@ impl Fluid {
                 if (p - pressure).abs() <= 1e-9 * pressure + 1e3 * noise {
                     return Ok(next);
                 }
-                let _ = iteration;
                 break;
             }
             x = next;

@@ -9,7 +9,7 @@ pub use results::{Solution, Summary, UnitResult};
 
 use crate::equipment::{self, Context, Flow, Performance};
 use crate::error::{Error, Result};
-use crate::flowsheet::plant::{flow_networks, static_pressures, FeedFlow, Method, ProductRole};
+use crate::flowsheet::plant::{flow_networks, static_pressures, FeedFlow, Method};
 use crate::flowsheet::{Plant, UnitSpec};
 use converge::FixedPoint;
 use order::Sequence;
@@ -317,7 +317,6 @@ pub fn solve(plant: &Plant, options: &Options) -> Result<Solution> {
             })
         })
         .collect::<Result<_>>()?;
-    let _ = ProductRole::Liquid;
     let mut solution = results::assemble(
         plant,
         &sequence,

@@ -146,8 +146,7 @@ pub fn assemble(
     let mut energy_out = 0.0;
     let mut energy_scale = 0.0;
     let mut feed_exergy = 0.0;
-    for (u, (unit, performance)) in plant.units.iter().zip(performances).enumerate() {
-        let _ = u;
+    for (unit, performance) in plant.units.iter().zip(performances) {
         let inflow: Vec<&Flow> = unit.inlets.iter().map(|&i| &streams[i]).collect();
         let outflow: Vec<&Flow> = unit.outlets.iter().map(|&i| &streams[i]).collect();
         let mut destroyed = 0.0;
