@@ -150,3 +150,18 @@ fn temperature_density_flash_agrees() {
         );
     }
 }
+
+/// A compressed liquid a hair above its saturation pressure (found by proptest): the
+/// density search must start at the saturated liquid, not far above it.
+#[test]
+fn liquid_just_above_saturation() {
+    let o2 = fluids::fluid("oxygen").unwrap();
+    let (t, p) = (76.93933967675495, 19535.2703707319);
+    let sat = o2.saturation_at_temperature(t).unwrap();
+    assert!(p > sat.liquid.pressure && p < sat.liquid.pressure * 1.001);
+    let s = o2.state_tp(t, p).unwrap();
+    assert_eq!(s.phase, cryochain::fluids::Phase::Liquid);
+    assert!((s.density - sat.liquid.density).abs() < 1e-3 * sat.liquid.density);
+    let back = o2.state_ph(p, s.enthalpy).unwrap();
+    assert!((back.temperature - t).abs() < 1e-7);
+}

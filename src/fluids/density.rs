@@ -40,7 +40,9 @@ impl Fluid {
             x = if high.is_finite() {
                 0.5 * (low + high)
             } else {
-                2.0 * low.max(1e-12)
+                // Just inside an open bracket: a saturated density as the lower end
+                // is itself the best seed for the compressed liquid.
+                low.max(1e-12) * (1.0 + 1e-6)
             };
         }
         let scale = pressure.max(1e-300);
