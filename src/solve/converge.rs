@@ -139,6 +139,55 @@ pub fn wegstein(
     })
 }
 
+/// Plain substitution with a constant damping x ← x + ω(G(x) − x): slow, but it
+/// walks through a kink (a separator switching between two-phase and vapour
+/// outlets) where the accelerated methods bounce.
+pub fn damped(
+    problem: &mut impl FixedPoint,
+    start: Vec<f64>,
+    damping: f64,
+    tolerance: f64,
+    cap: usize,
+    describe: &dyn Fn(usize) -> String,
+) -> Result<Converged> {
+    let mut x = start.clone();
+    let mut g = guarded_pass(problem, &mut x, &start)?;
+    let mut log = vec![largest(&x, &g).0];
+    for iteration in 1..=cap {
+        let (r, worst) = largest(&x, &g);
+        if r <= tolerance {
+            return Ok(Converged {
+                x,
+                iterations: iteration,
+                log,
+            });
+        }
+        let safe = x.clone();
+        x = x
+            .iter()
+            .zip(&g)
+            .map(|(xi, gi)| xi + damping * (gi - xi))
+            .collect();
+        g = guarded_pass(problem, &mut x, &safe).map_err(|e| Error::NoConvergence {
+            solver: "recycle convergence (damped substitution)",
+            iterations: iteration,
+            residual: r,
+            context: format!(
+                ": a pass failed ({e}); largest residual was {}",
+                describe(worst)
+            ),
+        })?;
+        log.push(largest(&x, &g).0);
+    }
+    let (r, worst) = largest(&x, &g);
+    Err(Error::NoConvergence {
+        solver: "recycle convergence (damped substitution)",
+        iterations: cap,
+        residual: r,
+        context: format!(" on {}", describe(worst)),
+    })
+}
+
 /// Broyden's good method on F(x) = G(x) − x, starting from J = −I (a plain
 /// substitution), with a backtracking step when the residual grows.
 pub fn broyden(

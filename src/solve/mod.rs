@@ -78,7 +78,19 @@ impl Problem<'_> {
         }
         for &(s, p, h, m) in &tear_values {
             let fluid = plant.streams[s].fluid;
-            let state = fluid.state_ph(p, h)?;
+            // An accelerated step may propose an enthalpy outside the fluid's range
+            // at this pressure: hold it at the range's edge instead of failing.
+            let state = match fluid.state_ph(p, h) {
+                Ok(state) => state,
+                Err(Error::OutOfRange { .. }) => {
+                    let warmest = fluid.state_tp(fluid.temperature_max * 0.999, p)?;
+                    let coldest = fluid
+                        .state_tp(fluid.temperature_min * 1.001, p)
+                        .or_else(|_| fluid.state_tp(fluid.temperature_min * 1.01, p))?;
+                    fluid.state_ph(p, h.clamp(coldest.enthalpy, warmest.enthalpy))?
+                }
+                Err(e) => return Err(e),
+            };
             flows[s] = Some(Flow { state, flow: m });
         }
         let mut computed: Vec<Option<Flow>> = vec![None; plant.streams.len()];
@@ -282,8 +294,8 @@ pub fn solve(plant: &Plant, options: &Options) -> Result<Solution> {
     } else {
         // The chosen method first; where it fails, the other from the same start
         // (Wegstein is quick on smooth loops, Broyden surer where a unit switches
-        // regime, as a coolant-limited precooler does). Both failing is the first
-        // method's error.
+        // regime, as a coolant-limited precooler does), then a damped substitution.
+        // All failing is the first method's error.
         let method = options.method.unwrap_or(plant.settings.method);
         let run = |problem: &mut Problem, method: Method, start: Vec<f64>| match method {
             Method::Wegstein => converge::wegstein(problem, start, tolerance, cap, &describe),
@@ -296,7 +308,14 @@ pub fn solve(plant: &Plant, options: &Options) -> Result<Solution> {
                     Method::Wegstein => Method::Broyden,
                     Method::Broyden => Method::Wegstein,
                 };
-                run(&mut problem, other, start).map_err(|_| first)?
+                match run(&mut problem, other, start.clone()) {
+                    Ok(c) => c,
+                    // Last, a damped substitution from the same start.
+                    Err(_) => {
+                        converge::damped(&mut problem, start, 0.3, tolerance, 2 * cap, &describe)
+                            .map_err(|_| first)?
+                    }
+                }
             }
             Err(e) => return Err(e),
         }
