@@ -515,7 +515,7 @@ impl Fluid {
         target: f64,
         held: Held,
     ) -> Result<Option<State>> {
-        if self.pseudo_pure || pressure > 0.7 * self.critical.pressure {
+        if self.pseudo_pure || pressure > 0.95 * self.critical.pressure {
             return Ok(None);
         }
         let equation = &self.ancillaries.bubble_pressure;
