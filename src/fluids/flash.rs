@@ -556,43 +556,36 @@ impl Fluid {
             let props = self.properties_with(&factors, temperature, rho);
             (props.dp_drho > 0.0 && props.cp > 0.0).then_some(props)
         };
-        let Some(vapour) = near(Branch::Vapour) else {
-            return Ok(None);
+        // Try the likelier side first: the liquid when the ideal-gas estimate lies
+        // below the saturation temperature, else the vapour.
+        let sides = if estimate < temperature {
+            [Region::Liquid, Region::Vapour]
+        } else {
+            [Region::Vapour, Region::Liquid]
         };
-        let margin = 2.0 * held.slope(&vapour) * uncertainty;
-        if target > held.of(&vapour) + margin {
-            return self
-                .newton_in_temperature_and_density(
-                    pressure,
-                    target,
-                    held,
-                    Region::Vapour,
-                    &vapour,
-                    (temperature, f64::INFINITY),
-                )
-                .unwrap_or_else(|| {
-                    self.search_temperature(pressure, target, held, Region::Vapour, vapour)
-                })
-                .map(Some);
-        }
-        let Some(liquid) = near(Branch::Liquid) else {
-            return Ok(None);
-        };
-        let margin = 2.0 * held.slope(&liquid) * uncertainty;
-        if target < held.of(&liquid) - margin {
-            return self
-                .newton_in_temperature_and_density(
-                    pressure,
-                    target,
-                    held,
-                    Region::Liquid,
-                    &liquid,
-                    (0.0, temperature),
-                )
-                .unwrap_or_else(|| {
-                    self.search_temperature(pressure, target, held, Region::Liquid, liquid)
-                })
-                .map(Some);
+        for region in sides {
+            let (branch, bounds) = match region {
+                Region::Liquid => (Branch::Liquid, (0.0, temperature)),
+                _ => (Branch::Vapour, (temperature, f64::INFINITY)),
+            };
+            let Some(saturated) = near(branch) else {
+                return Ok(None);
+            };
+            let margin = 2.0 * held.slope(&saturated) * uncertainty;
+            let clear = match region {
+                Region::Liquid => target < held.of(&saturated) - margin,
+                _ => target > held.of(&saturated) + margin,
+            };
+            if clear {
+                return self
+                    .newton_in_temperature_and_density(
+                        pressure, target, held, region, &saturated, bounds,
+                    )
+                    .unwrap_or_else(|| {
+                        self.search_temperature(pressure, target, held, region, saturated)
+                    })
+                    .map(Some);
+            }
         }
         Ok(None)
     }
