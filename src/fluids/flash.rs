@@ -64,6 +64,15 @@ impl Held {
     }
 }
 
+/// What the quick phase decision at fixed pressure found.
+enum Quick {
+    /// The single-phase state.
+    Found(State),
+    /// Too close to saturation to tell; the exact saturation must decide, seeded by
+    /// (T, ρ′, ρ″) when the approximate saturated states were found.
+    Unclear(Option<(f64, f64, f64)>),
+}
+
 /// The region searched at fixed pressure.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 enum Region {
@@ -433,10 +442,13 @@ impl Fluid {
         let (sat_low, sat_high) = self.saturation_pressure_range();
         // The triple-point pressure itself, within rounding, still has both phases.
         if pressure >= sat_low * (1.0 - 1e-9) && pressure < sat_high {
-            if let Some(state) = self.clearly_single_phase(pressure, target, held)? {
-                return Ok(state);
-            }
-            let saturation = self.saturation_at_pressure(pressure)?;
+            let saturation = match self.clearly_single_phase(pressure, target, held)? {
+                Quick::Found(state) => return Ok(state),
+                Quick::Unclear(Some(seeds)) => {
+                    self.saturation_at_pressure_seeded(pressure, seeds)?
+                }
+                Quick::Unclear(None) => self.saturation_at_pressure(pressure)?,
+            };
             let pair = self.pair(&saturation);
             let (at_liquid, at_vapour) = (held.of(&pair.liquid), held.of(&pair.vapour));
             // A target within rounding of a saturated state is that saturated state.
@@ -514,9 +526,9 @@ impl Fluid {
         pressure: f64,
         target: f64,
         held: Held,
-    ) -> Result<Option<State>> {
+    ) -> Result<Quick> {
         if self.pseudo_pure || pressure > 0.95 * self.critical.pressure {
-            return Ok(None);
+            return Ok(Quick::Unclear(None));
         }
         let equation = &self.ancillaries.bubble_pressure;
         let temperature = equation.temperature_at(
@@ -544,7 +556,7 @@ impl Fluid {
                 (temperature + 2.0 * uncertainty, f64::INFINITY),
             ) {
                 if state.density < self.critical.density {
-                    return Ok(Some(state));
+                    return Ok(Quick::Found(state));
                 }
             }
         }
@@ -563,14 +575,19 @@ impl Fluid {
         } else {
             [Region::Vapour, Region::Liquid]
         };
+        let mut densities = (None, None);
         for region in sides {
             let (branch, bounds) = match region {
                 Region::Liquid => (Branch::Liquid, (0.0, temperature)),
                 _ => (Branch::Vapour, (temperature, f64::INFINITY)),
             };
             let Some(saturated) = near(branch) else {
-                return Ok(None);
+                return Ok(Quick::Unclear(None));
             };
+            match region {
+                Region::Liquid => densities.0 = Some(saturated.density),
+                _ => densities.1 = Some(saturated.density),
+            }
             let margin = 2.0 * held.slope(&saturated) * uncertainty;
             let clear = match region {
                 Region::Liquid => target < held.of(&saturated) - margin,
@@ -584,10 +601,14 @@ impl Fluid {
                     .unwrap_or_else(|| {
                         self.search_temperature(pressure, target, held, region, saturated)
                     })
-                    .map(Some);
+                    .map(Quick::Found);
             }
         }
-        Ok(None)
+        // Too close to call: the approximate saturated densities seed the exact solve.
+        Ok(Quick::Unclear(match densities {
+            (Some(l), Some(v)) => Some((temperature, l, v)),
+            _ => None,
+        }))
     }
 
     /// Newton in (T, ρ) together on p(T, ρ) = p and h (or s)(T, ρ) = target, from a

@@ -247,23 +247,46 @@ impl Fluid {
             .ancillaries
             .bubble_pressure
             .temperature_at(pressure, t_low, t_high);
-        if let Some(found) = self.saturation_at_pressure_direct(pressure, start) {
+        let seeds = (
+            start,
+            self.ancillary_liquid_density(start),
+            self.ancillary_vapour_density(start),
+        );
+        if let Some(found) = self.saturation_at_pressure_direct(pressure, seeds) {
             return Ok(found);
         }
         self.saturation_at_pressure_nested(pressure, start)
     }
 
+    /// Saturation at pressure p from seeds (T, ρ′, ρ″) close to the answer, such as
+    /// the approximate saturated states a flash has already found; falls back to
+    /// [`Fluid::saturation_at_pressure`].
+    pub fn saturation_at_pressure_seeded(
+        &self,
+        pressure: f64,
+        seeds: (f64, f64, f64),
+    ) -> Result<Saturation> {
+        if !self.pseudo_pure {
+            if let Some(found) = self.saturation_at_pressure_direct(pressure, seeds) {
+                return Ok(found);
+            }
+        }
+        self.saturation_at_pressure(pressure)
+    }
+
     /// Newton in (T, ρ′, ρ″) together on p(T, ρ′) = p, p(T, ρ″) = p and
     /// g(T, ρ′) = g(T, ρ″), seeded by the ancillary equations. Fast; `None` when it
     /// does not settle (then the nested solve takes over).
-    fn saturation_at_pressure_direct(&self, pressure: f64, start: f64) -> Option<Saturation> {
+    fn saturation_at_pressure_direct(
+        &self,
+        pressure: f64,
+        seeds: (f64, f64, f64),
+    ) -> Option<Saturation> {
         let (t_low, t_high) = (
             self.triple_temperature * (1.0 - 1e-9),
             self.saturation_temperature_max(),
         );
-        let mut t = start;
-        let mut liquid = self.ancillary_liquid_density(t);
-        let mut vapour = self.ancillary_vapour_density(t);
+        let (mut t, mut liquid, mut vapour) = seeds;
         for _ in 0..20 {
             let factors = self.tau_factors(t);
             let l = self.properties_with(&factors, t, liquid);
