@@ -67,7 +67,7 @@ impl Held {
 /// What the quick phase decision at fixed pressure found.
 enum Quick {
     /// The single-phase state.
-    Found(State),
+    Found(Box<State>),
     /// Too close to saturation to tell; the exact saturation must decide, seeded by
     /// (T, ρ′, ρ″) when the approximate saturated states were found.
     Unclear(Option<(f64, f64, f64)>),
@@ -443,7 +443,7 @@ impl Fluid {
         // The triple-point pressure itself, within rounding, still has both phases.
         if pressure >= sat_low * (1.0 - 1e-9) && pressure < sat_high {
             let saturation = match self.clearly_single_phase(pressure, target, held)? {
-                Quick::Found(state) => return Ok(state),
+                Quick::Found(state) => return Ok(*state),
                 Quick::Unclear(Some(seeds)) => {
                     self.saturation_at_pressure_seeded(pressure, seeds)?
                 }
@@ -556,7 +556,7 @@ impl Fluid {
                 (temperature + 2.0 * uncertainty, f64::INFINITY),
             ) {
                 if state.density < self.critical.density {
-                    return Ok(Quick::Found(state));
+                    return Ok(Quick::Found(Box::new(state)));
                 }
             }
         }
@@ -601,7 +601,7 @@ impl Fluid {
                     .unwrap_or_else(|| {
                         self.search_temperature(pressure, target, held, region, saturated)
                     })
-                    .map(Quick::Found);
+                    .map(|state| Quick::Found(Box::new(state)));
             }
         }
         // Too close to call: the approximate saturated densities seed the exact solve.
