@@ -478,7 +478,7 @@ impl Fluid {
             .unwrap_or(self.temperature_min)
             .max(self.temperature_min);
         let start_t = self
-            .ideal_gas_estimate(pressure, target, held)
+            .ideal_gas_estimate(pressure, target, held, 2.0 * self.critical.temperature)
             .clamp(coldest * (1.0 + 1e-6), self.temperature_max);
         // First straight from the ideal-gas start: above the saturation range the
         // stable root is unique, so a converged joint Newton is the answer.
@@ -543,7 +543,7 @@ impl Fluid {
         // from the ideal-gas start first: a converged state well above the saturation
         // temperature and less dense than the critical density is the stable vapour
         // (a superheated liquid there would be denser than critical).
-        let estimate = self.ideal_gas_estimate(pressure, target, held);
+        let estimate = self.ideal_gas_estimate(pressure, target, held, temperature);
         if estimate > 1.5 * temperature {
             let t0 = estimate.min(self.temperature_max * 0.999);
             let start = self.properties(t0, self.ideal_gas_density(t0, pressure));
@@ -672,10 +672,11 @@ impl Fluid {
         None
     }
 
-    /// A starting temperature from the ideal-gas relations, clamped to the range.
-    fn ideal_gas_estimate(&self, pressure: f64, target: f64, held: Held) -> f64 {
+    /// A temperature from the ideal-gas relations (Newton from `start`), clamped to
+    /// the range.
+    fn ideal_gas_estimate(&self, pressure: f64, target: f64, held: Held, start: f64) -> f64 {
         let (low, high) = (self.temperature_min, self.temperature_max);
-        let mut t = (self.critical.temperature * 2.0).clamp(low, high);
+        let mut t = start.clamp(low, high);
         for _ in 0..30 {
             let tau = self.tau(t);
             let i = self.ideal.evaluate(tau);
