@@ -162,6 +162,11 @@ struct PowerTerm {
     d: i32,
     t: f64,
     l: i32,
+    /// t(t − 1), d, l and l² as floating-point numbers, computed once.
+    t_t1: f64,
+    d_f: f64,
+    l_f: f64,
+    l2_f: f64,
 }
 
 /// One Gaussian bell-shaped term n δ^d τ^t exp(−η(δ−ε)² − β(τ−γ)²).
@@ -244,11 +249,20 @@ impl ResidualPart {
                         part.largest_l = part.largest_l.max(l_whole as usize);
                         let d_whole = whole(d[i], "density")?;
                         part.largest_d = part.largest_d.max(d_whole as usize);
+                        if d_whole as usize >= D_TABLE || l_whole as usize >= L_TABLE {
+                            return Err(format!(
+                                "exponents d = {d_whole}, l = {l_whole} exceed this engine's tables (d < {D_TABLE}, l < {L_TABLE})"
+                            ));
+                        }
                         part.power.push(PowerTerm {
                             n: n[i],
                             d: d_whole,
                             t: t[i],
                             l: l_whole,
+                            t_t1: t[i] * (t[i] - 1.0),
+                            d_f: d_whole as f64,
+                            l_f: l_whole as f64,
+                            l2_f: (l_whole * l_whole) as f64,
                         });
                     }
                 }
@@ -373,32 +387,23 @@ impl ResidualPart {
         let inv_delta = 1.0 / delta;
         let mut out = ResidualDerivatives::default();
         let inv_tau = factors.inv_tau;
+        // Index 0 of the exponential tables stands for "no exponential": δ^0 → 0, e → 1.
+        delta_l[0] = 0.0;
+        let inv_tau2 = inv_tau * inv_tau;
         for (term, value) in self.power.iter().zip(&factors.power) {
-            let f = [
-                *value,
-                value * term.t * inv_tau,
-                value * term.t * (term.t - 1.0) * inv_tau * inv_tau,
-            ];
-            let (dl, el) = if term.l == 0 {
-                (0.0, 1.0)
-            } else if (term.l as usize) < L_TABLE {
-                (delta_l[term.l as usize], exp_l[term.l as usize])
-            } else {
-                let dl = delta.powi(term.l);
-                (dl, (-dl).exp())
-            };
-            let shape = power_of(term.d) * el;
-            let d = term.d as f64;
-            let l = term.l as f64;
-            let k = d - l * dl;
-            let second = k * (k - 1.0) - l * l * dl;
-            let base = f[0] * shape;
+            let li = term.l as usize;
+            let (dl, el) = (delta_l[li], exp_l[li]);
+            let shape = delta_d[term.d as usize] * el;
+            let k = term.d_f - term.l_f * dl;
+            let second = k * (k - 1.0) - term.l2_f * dl;
+            let base = value * shape;
+            let base_tau = base * term.t * inv_tau;
             out.alpha += base;
             out.alpha_delta += base * k * inv_delta;
             out.alpha_delta_delta += base * second * inv_delta * inv_delta;
-            out.alpha_tau += f[1] * shape;
-            out.alpha_tau_tau += f[2] * shape;
-            out.alpha_delta_tau += f[1] * shape * k * inv_delta;
+            out.alpha_tau += base_tau;
+            out.alpha_tau_tau += base * term.t_t1 * inv_tau2;
+            out.alpha_delta_tau += base_tau * k * inv_delta;
         }
         for ((term, value), b) in self
             .gaussian
