@@ -165,7 +165,9 @@ impl Fluid {
             let quality = ((temperature - tb) / (td - tb)).clamp(0.0, 1.0);
             return Ok(State::two_phase(self, self.pair(&saturation), quality));
         }
-        let estimate = self.ancillaries.bubble_pressure.value(temperature);
+        let estimate = self
+            .vapour_pressure
+            .value(&self.ancillaries.bubble_pressure, temperature);
         let margin = self.ancillary_margin();
         let (branch, saturated) = if pressure > estimate * (1.0 + margin) {
             (Branch::Liquid, None)
@@ -399,12 +401,13 @@ impl Fluid {
         let (sat_low, sat_high) = self.saturation_pressure_range();
         if pressure >= sat_low && pressure < sat_high {
             let equation = &self.ancillaries.bubble_pressure;
-            let t_sat = equation.temperature_at(
+            let t_sat = self.vapour_pressure.temperature_at(
+                equation,
                 pressure,
                 self.triple_temperature,
                 self.saturation_temperature_max(),
             );
-            let (_, slope) = equation.log_value_and_slope(t_sat);
+            let (_, slope) = self.vapour_pressure.log_value_and_slope(equation, t_sat);
             let margin = 2.0 * self.ancillary_margin() / slope + 1e-6 * t_sat;
             let clear = match region {
                 Region::Liquid => t < t_sat - margin,
@@ -531,12 +534,15 @@ impl Fluid {
             return Ok(Quick::Unclear(None));
         }
         let equation = &self.ancillaries.bubble_pressure;
-        let temperature = equation.temperature_at(
+        let temperature = self.vapour_pressure.temperature_at(
+            equation,
             pressure,
             self.triple_temperature,
             self.saturation_temperature_max(),
         );
-        let (_, slope) = equation.log_value_and_slope(temperature);
+        let (_, slope) = self
+            .vapour_pressure
+            .log_value_and_slope(equation, temperature);
         // Four times the measured largest error of ln p, as a temperature.
         let uncertainty = self.ancillary_margin() / slope;
         // Far into the gas (judged by the ideal-gas estimate), try the joint Newton

@@ -76,10 +76,11 @@ pub struct Fluid {
     pub density_ceiling: f64,
     /// The range of pressures over which saturation is solved, Pa.
     pub(crate) saturation_pressures: (f64, f64),
-    /// The largest |ln(p_ancillary/p_saturation)| found over 64 temperatures from
-    /// the triple point to the top of the saturation range, measured when the fluid
-    /// is built (the ancillaries' stated errors are not always met).
+    /// The largest |ln(p_estimate/p_saturation)| of the corrected vapour-pressure
+    /// estimate, measured halfway between its nodes when the fluid is built.
     pub ancillary_pressure_error: f64,
+    /// The vapour-pressure estimate used to decide phases quickly.
+    pub vapour_pressure: super::vapour_pressure::VapourPressureEstimate,
     /// Ancillary equations and melting line.
     pub ancillaries: Ancillaries,
     pub(crate) ideal: IdealPart,
@@ -171,6 +172,7 @@ impl Fluid {
                 * m,
             saturation_pressures: (0.0, 0.0),
             ancillary_pressure_error: 0.0,
+            vapour_pressure: Default::default(),
             ancillaries: Ancillaries {
                 bubble_pressure: data.ancillaries.bubble_pressure,
                 dew_pressure: data.ancillaries.dew_pressure,
@@ -186,9 +188,10 @@ impl Fluid {
         fluid.saturation_pressures = fluid
             .compute_saturation_pressure_range()
             .map_err(|e| bad(format!("cannot solve the saturation range: {e}")))?;
-        fluid.ancillary_pressure_error = fluid
+        let measured = fluid
             .measure_ancillary_error()
             .map_err(|e| bad(format!("cannot check the vapour-pressure ancillary: {e}")))?;
+        fluid.ancillary_pressure_error = measured;
         if fluid.reference_state == ReferenceStateName::NormalBoilingPoint {
             fluid.set_normal_boiling_point_reference().map_err(|e| {
                 bad(format!(
@@ -210,20 +213,30 @@ impl Fluid {
         Ok(())
     }
 
-    /// The largest deviation of the vapour-pressure ancillary from the equation's
-    /// own saturation, as |ln(p_ancillary/p)|, over 64 temperatures.
-    fn measure_ancillary_error(&self) -> Result<f64> {
+    /// Builds the corrected vapour-pressure estimate (65 nodes from the triple point
+    /// to the top of the saturation range) and measures its largest error halfway
+    /// between the nodes, as |ln(p_estimate/p)|.
+    fn measure_ancillary_error(&mut self) -> Result<f64> {
         if self.pseudo_pure {
             // The ancillaries are the bubble and dew lines themselves.
             return Ok(0.0);
         }
         let low = self.triple_temperature;
         let high = self.saturation_temperature_max();
+        let at = |i: f64| (low + (high - low) * i / 64.0).min(high);
+        let equation = self.ancillaries.bubble_pressure.clone();
+        let mut nodes = Vec::with_capacity(65);
+        for i in 0..=64 {
+            let t = at(i as f64);
+            let exact = self.saturation_at_temperature(t)?.vapour.pressure;
+            nodes.push((t, (exact / equation.value(t)).ln()));
+        }
+        self.vapour_pressure = super::vapour_pressure::VapourPressureEstimate::new(nodes);
         let mut worst: f64 = 0.0;
         for i in 0..64 {
-            let t = (low + (high - low) * i as f64 / 63.0).min(high);
+            let t = at(i as f64 + 0.5);
             let exact = self.saturation_at_temperature(t)?.vapour.pressure;
-            let estimate = self.ancillaries.bubble_pressure.value(t);
+            let estimate = self.vapour_pressure.value(&equation, t);
             worst = worst.max((estimate / exact).ln().abs());
         }
         Ok(worst)

@@ -17,6 +17,7 @@ pub mod saturation;
 pub mod spec;
 pub mod state;
 pub mod throttling;
+pub mod vapour_pressure;
 
 pub use density::Branch;
 pub use fluid::{Fluid, Point, Properties};
