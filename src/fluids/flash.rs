@@ -567,9 +567,18 @@ impl Fluid {
             }
         }
         let factors = self.tau_factors(temperature);
+        // Seeds from the saturated densities tabulated at load.
+        let seeds = self.vapour_pressure.saturated_densities(temperature);
         let near = |branch: Branch| -> Option<Properties> {
+            let guess = seeds.map(|(l, v)| {
+                if branch == Branch::Liquid {
+                    l
+                } else {
+                    v.min(self.ideal_gas_density(temperature, pressure) * 1.5)
+                }
+            });
             let rho = self
-                .density_on_branch(&factors, temperature, pressure, branch, None, None)
+                .density_on_branch(&factors, temperature, pressure, branch, guess, None)
                 .ok()?;
             let props = self.properties_with(&factors, temperature, rho);
             (props.dp_drho > 0.0 && props.cp > 0.0).then_some(props)

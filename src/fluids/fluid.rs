@@ -226,12 +226,15 @@ impl Fluid {
         let at = |i: f64| (low + (high - low) * i / 64.0).min(high);
         let equation = self.ancillaries.bubble_pressure.clone();
         let mut nodes = Vec::with_capacity(65);
+        let mut densities = Vec::with_capacity(65);
         for i in 0..=64 {
             let t = at(i as f64);
-            let exact = self.saturation_at_temperature(t)?.vapour.pressure;
-            nodes.push((t, (exact / equation.value(t)).ln()));
+            let saturation = self.saturation_at_temperature(t)?;
+            nodes.push((t, (saturation.vapour.pressure / equation.value(t)).ln()));
+            densities.push((saturation.liquid.density, saturation.vapour.density));
         }
-        self.vapour_pressure = super::vapour_pressure::VapourPressureEstimate::new(nodes);
+        self.vapour_pressure =
+            super::vapour_pressure::VapourPressureEstimate::new(nodes, densities);
         let mut worst: f64 = 0.0;
         for i in 0..64 {
             let t = at(i as f64 + 0.5);

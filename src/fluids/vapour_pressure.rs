@@ -10,12 +10,31 @@ use super::file::AncillaryEquation;
 pub struct VapourPressureEstimate {
     /// (temperature K, ln p_exact − ln p_ancillary), ascending in temperature.
     nodes: Vec<(f64, f64)>,
+    /// The saturated densities at the same temperatures (liquid, vapour), kg/m³.
+    densities: Vec<(f64, f64)>,
 }
 
 impl VapourPressureEstimate {
-    /// From correction nodes (temperature, ln p_exact − ln p_ancillary).
-    pub fn new(nodes: Vec<(f64, f64)>) -> Self {
-        VapourPressureEstimate { nodes }
+    /// From correction nodes (temperature, ln p_exact − ln p_ancillary) and the
+    /// saturated densities there.
+    pub fn new(nodes: Vec<(f64, f64)>, densities: Vec<(f64, f64)>) -> Self {
+        VapourPressureEstimate { nodes, densities }
+    }
+
+    /// The saturated liquid and vapour densities near T, interpolated between the
+    /// nodes (the vapour's logarithmically): seeds for density searches.
+    pub fn saturated_densities(&self, t: f64) -> Option<(f64, f64)> {
+        let n = &self.nodes;
+        if n.len() < 2 || self.densities.len() != n.len() || t < n[0].0 || t > n[n.len() - 1].0 {
+            return None;
+        }
+        let i = n.partition_point(|(x, _)| *x <= t).clamp(1, n.len() - 1);
+        let f = (t - n[i - 1].0) / (n[i].0 - n[i - 1].0);
+        let (a, b) = (self.densities[i - 1], self.densities[i]);
+        Some((
+            a.0 + f * (b.0 - a.0),
+            (a.1.ln() + f * (b.1.ln() - a.1.ln())).exp(),
+        ))
     }
 
     /// The correction and its temperature slope at T (held at the end values outside).
