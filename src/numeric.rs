@@ -67,6 +67,37 @@ pub fn bracketed_root(
     })
 }
 
+/// The root of an increasing `f` (returning value and slope) between `low` and
+/// `high`, by Newton from `start`, with bisection whenever a step leaves the bracket
+/// that the iterates keep. Stops when a step is below `relative` of the iterate.
+pub fn bracketed_newton(
+    f: impl Fn(f64) -> (f64, f64),
+    start: f64,
+    low: f64,
+    high: f64,
+    relative: f64,
+) -> f64 {
+    let (mut a, mut b) = (low, high);
+    let mut t = start;
+    for _ in 0..60 {
+        let (value, slope) = f(t);
+        if value < 0.0 {
+            a = t;
+        } else {
+            b = t;
+        }
+        let mut next = t - value / slope;
+        if !(next > a && next < b) {
+            next = 0.5 * (a + b);
+        }
+        if (next - t).abs() <= relative * t {
+            return next;
+        }
+        t = next;
+    }
+    t
+}
+
 /// The maximiser of a unimodal `f` on [a, b] by golden-section search, to an
 /// interval narrower than `tolerance`.
 pub fn golden_maximum(mut f: impl FnMut(f64) -> f64, a: f64, b: f64, tolerance: f64) -> f64 {

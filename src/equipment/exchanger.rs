@@ -306,19 +306,7 @@ pub fn run(
             duty: Some(duty),
             ..Performance::default()
         };
-        return Ok((
-            vec![
-                Flow {
-                    state: hot_out,
-                    flow: hot.flow,
-                },
-                Flow {
-                    state: cold_out,
-                    flow: cold.flow,
-                },
-            ],
-            performance,
-        ));
+        return Ok((outlets(hot, cold, hot_out, cold_out), performance));
     }
     let profile = sides
         .profile(if degenerate { 0.0 } else { duty })
@@ -389,17 +377,19 @@ pub fn run(
         details: Details::Exchanger(Box::new(report)),
         ..Performance::default()
     };
-    Ok((
-        vec![
-            Flow {
-                state: hot_out,
-                flow: hot.flow,
-            },
-            Flow {
-                state: cold_out,
-                flow: cold.flow,
-            },
-        ],
-        performance,
-    ))
+    Ok((outlets(hot, cold, hot_out, cold_out), performance))
+}
+
+/// The two outlet flows, each side keeping its mass flow.
+fn outlets(hot: &Flow, cold: &Flow, hot_out: State, cold_out: State) -> Vec<Flow> {
+    vec![
+        Flow {
+            state: hot_out,
+            flow: hot.flow,
+        },
+        Flow {
+            state: cold_out,
+            flow: cold.flow,
+        },
+    ]
 }

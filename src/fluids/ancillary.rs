@@ -57,27 +57,18 @@ impl AncillaryEquation {
         if target >= ln_high {
             return high;
         }
-        let (mut a, mut b) = (low, high);
         let fraction = (target - ln_low) / (ln_high - ln_low);
-        let mut t = 1.0 / (1.0 / low + fraction * (1.0 / high - 1.0 / low));
-        for _ in 0..60 {
-            let (ln_p, slope) = self.log_value_and_slope(t);
-            let f = ln_p - target;
-            if f < 0.0 {
-                a = t;
-            } else {
-                b = t;
-            }
-            let mut next = t - f / slope;
-            if !(next > a && next < b) {
-                next = 0.5 * (a + b);
-            }
-            if (next - t).abs() <= 1e-14 * t {
-                return next;
-            }
-            t = next;
-        }
-        t
+        let start = 1.0 / (1.0 / low + fraction * (1.0 / high - 1.0 / low));
+        crate::numeric::bracketed_newton(
+            |t| {
+                let (ln_p, slope) = self.log_value_and_slope(t);
+                (ln_p - target, slope)
+            },
+            start,
+            low,
+            high,
+            1e-14,
+        )
     }
 }
 

@@ -85,26 +85,17 @@ impl VapourPressureEstimate {
         if target >= ln_high {
             return high;
         }
-        let (mut a, mut b) = (low, high);
         // Start from the plain ancillary's answer.
-        let mut t = equation.temperature_at(pressure, low, high);
-        for _ in 0..60 {
-            let (ln_p, slope) = self.log_value_and_slope(equation, t);
-            let f = ln_p - target;
-            if f < 0.0 {
-                a = t;
-            } else {
-                b = t;
-            }
-            let mut next = t - f / slope;
-            if !(next > a && next < b) {
-                next = 0.5 * (a + b);
-            }
-            if (next - t).abs() <= 1e-13 * t {
-                return next;
-            }
-            t = next;
-        }
-        t
+        let start = equation.temperature_at(pressure, low, high);
+        crate::numeric::bracketed_newton(
+            |t| {
+                let (ln_p, slope) = self.log_value_and_slope(equation, t);
+                (ln_p - target, slope)
+            },
+            start,
+            low,
+            high,
+            1e-13,
+        )
     }
 }

@@ -36,6 +36,26 @@ fn largest(a: &[f64], b: &[f64]) -> (f64, usize) {
         })
 }
 
+/// The error of a recycle solver that stopped: after a failed pass (`failed`), or at
+/// its cap, naming the variable with the largest residual.
+fn stopped(
+    solver: &'static str,
+    iterations: usize,
+    residual: f64,
+    worst: String,
+    failed: Option<Error>,
+) -> Error {
+    Error::NoConvergence {
+        solver,
+        iterations,
+        residual,
+        context: match failed {
+            Some(e) => format!(": a pass failed ({e}); largest residual was {worst}"),
+            None => format!(" on {worst}"),
+        },
+    }
+}
+
 /// A pass at `x`; when it fails, steps back halfway towards `safe` up to ten times.
 fn guarded_pass(problem: &mut impl FixedPoint, x: &mut [f64], safe: &[f64]) -> Result<Vec<f64>> {
     let mut last_error = None;
@@ -117,26 +137,25 @@ pub fn wegstein(
         g = match guarded_pass(problem, &mut x, &safe) {
             Ok(g) => g,
             Err(e) => {
-                return Err(Error::NoConvergence {
-                    solver: "recycle convergence (Wegstein)",
-                    iterations: iteration,
-                    residual: r,
-                    context: format!(
-                        ": a pass failed ({e}); largest residual was {}",
-                        describe(worst)
-                    ),
-                })
+                return Err(stopped(
+                    "recycle convergence (Wegstein)",
+                    iteration,
+                    r,
+                    describe(worst),
+                    Some(e),
+                ))
             }
         };
         log.push(largest(&x, &g).0);
     }
     let (r, worst) = largest(&x, &g);
-    Err(Error::NoConvergence {
-        solver: "recycle convergence (Wegstein)",
-        iterations: cap,
-        residual: r,
-        context: format!(" on {}", describe(worst)),
-    })
+    Err(stopped(
+        "recycle convergence (Wegstein)",
+        cap,
+        r,
+        describe(worst),
+        None,
+    ))
 }
 
 /// Plain substitution with a constant damping x ← x + ω(G(x) − x): slow, but it
@@ -168,24 +187,25 @@ pub fn damped(
             .zip(&g)
             .map(|(xi, gi)| xi + damping * (gi - xi))
             .collect();
-        g = guarded_pass(problem, &mut x, &safe).map_err(|e| Error::NoConvergence {
-            solver: "recycle convergence (damped substitution)",
-            iterations: iteration,
-            residual: r,
-            context: format!(
-                ": a pass failed ({e}); largest residual was {}",
-                describe(worst)
-            ),
+        g = guarded_pass(problem, &mut x, &safe).map_err(|e| {
+            stopped(
+                "recycle convergence (damped substitution)",
+                iteration,
+                r,
+                describe(worst),
+                Some(e),
+            )
         })?;
         log.push(largest(&x, &g).0);
     }
     let (r, worst) = largest(&x, &g);
-    Err(Error::NoConvergence {
-        solver: "recycle convergence (damped substitution)",
-        iterations: cap,
-        residual: r,
-        context: format!(" on {}", describe(worst)),
-    })
+    Err(stopped(
+        "recycle convergence (damped substitution)",
+        cap,
+        r,
+        describe(worst),
+        None,
+    ))
 }
 
 /// Broyden's good method on F(x) = G(x) − x, starting from J = −I (a plain
