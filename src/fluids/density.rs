@@ -110,7 +110,47 @@ impl Fluid {
         self.ancillaries.vapour_density.value(temperature) * self.molar_mass
     }
 
-    /// Density at (T, p) on a branch, seeded from `guess` or from the ancillaries.
+    /// Approximate saturated densities (liquid, vapour) at T, kg/m³: from the
+    /// saturation table where it covers T closely, else from the ancillary equations.
+    pub fn approximate_saturated_densities(&self, temperature: f64) -> (f64, f64) {
+        match self.saturation_table.at_temperature(temperature) {
+            Some(line)
+                if line.error.density < super::saturation::SEED_DENSITY_ERROR
+                    && line.liquid_density > line.vapour_density =>
+            {
+                (line.liquid_density, line.vapour_density)
+            }
+            _ => (
+                self.ancillary_liquid_density(temperature),
+                self.ancillary_vapour_density(temperature),
+            ),
+        }
+    }
+
+    /// Saturated densities (liquid, vapour) at T that bound the liquid and vapour
+    /// branches: the table's where it is sharp; next to the critical point, where the
+    /// table's cell and the ancillary equations can miss by percents, the exact
+    /// saturation; the ancillaries only where neither serves (air, or T outside the
+    /// saturation range).
+    fn branch_bounds(&self, temperature: f64) -> (f64, f64) {
+        if let Some(line) = self.saturation_table.at_temperature(temperature) {
+            if line.error.density < super::saturation::SEED_DENSITY_ERROR
+                && line.liquid_density > line.vapour_density
+            {
+                return (line.liquid_density, line.vapour_density);
+            }
+            if let Ok(exact) = self.saturation_at_temperature(temperature) {
+                return (exact.liquid.density, exact.vapour.density);
+            }
+        }
+        (
+            self.ancillary_liquid_density(temperature),
+            self.ancillary_vapour_density(temperature),
+        )
+    }
+
+    /// Density at (T, p) on a branch, seeded from `guess` or from the saturated
+    /// densities at T.
     /// `saturated` gives the exact saturated densities (liquid, vapour) at T when the
     /// caller has them; they bound the liquid and vapour branches.
     pub fn density_on_branch(
@@ -126,7 +166,7 @@ impl Fluid {
             Branch::Vapour => {
                 let upper = match saturated {
                     Some((_, vapour)) => vapour,
-                    None => self.ancillary_vapour_density(temperature) * 1.02,
+                    None => self.branch_bounds(temperature).1 * 1.02,
                 };
                 let seed = guess.unwrap_or_else(|| {
                     self.ideal_gas_density(temperature, pressure)
@@ -138,8 +178,11 @@ impl Fluid {
                 let (lower, seed) = match saturated {
                     Some((liquid, _)) => (liquid, guess.unwrap_or(liquid)),
                     None => {
-                        let anc = self.ancillary_liquid_density(temperature);
-                        (0.8 * anc.max(self.critical.density), guess.unwrap_or(anc))
+                        let liquid = self.branch_bounds(temperature).0;
+                        (
+                            0.8 * liquid.max(self.critical.density),
+                            guess.unwrap_or(liquid),
+                        )
                     }
                 };
                 self.solve_density(factors, temperature, pressure, seed, lower, f64::INFINITY)

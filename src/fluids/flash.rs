@@ -8,12 +8,20 @@
 
 use super::density::Branch;
 use super::fluid::{Fluid, Properties};
-use super::saturation::Saturation;
+use super::saturation::{Saturation, SEED_DENSITY_ERROR};
 use super::state::{Phase, SaturatedPair, State};
 use crate::error::{Error, Result};
 
 /// Iteration cap of the temperature search at fixed pressure.
 pub const TEMPERATURE_ITERATION_CAP: usize = 100;
+
+/// Decisions made on the saturation table keep this many times the measured error of
+/// the table's cell between the target and the saturation line.
+pub const TABLE_MARGIN: f64 = 4.0;
+
+/// The quick phase decision at fixed pressure is made up to this fraction of the
+/// critical pressure; above it the exact saturation always decides.
+pub const QUICK_PRESSURE_LIMIT: f64 = 0.95;
 
 /// Which property is held at fixed pressure.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -69,7 +77,7 @@ enum Quick {
     /// The single-phase state.
     Found(Box<State>),
     /// Too close to saturation to tell; the exact saturation must decide, seeded by
-    /// (T, ρ′, ρ″) when the approximate saturated states were found.
+    /// the table's (T, ρ′, ρ″) where the table covers the pressure.
     Unclear(Option<(f64, f64, f64)>),
 }
 
@@ -108,22 +116,25 @@ fn finite(fluid: &Fluid, props: &Properties) -> Result<()> {
 }
 
 impl Fluid {
+    /// The saturated pair at a temperature (both phases share it for a pure fluid).
     fn pair(&self, saturation: &Saturation) -> SaturatedPair {
+        let (liquid, vapour) = (&saturation.liquid, &saturation.vapour);
+        let factors = self.tau_factors(liquid.temperature);
+        let vapour_factors = (vapour.temperature != liquid.temperature)
+            .then(|| self.tau_factors(vapour.temperature));
         SaturatedPair {
-            liquid: self.properties(saturation.liquid.temperature, saturation.liquid.density),
-            vapour: self.properties(saturation.vapour.temperature, saturation.vapour.density),
+            liquid: self.properties_with(&factors, liquid.temperature, liquid.density),
+            vapour: self.properties_with(
+                vapour_factors.as_ref().unwrap_or(&factors),
+                vapour.temperature,
+                vapour.density,
+            ),
         }
     }
 
     fn single_state(&'static self, props: Properties, liquid_side: bool) -> Result<State> {
         finite(self, &props)?;
         Ok(State::single(self, props, liquid_side))
-    }
-
-    /// Relative margin around the ancillary vapour pressure inside which the exact
-    /// saturation is solved before choosing the phase.
-    fn ancillary_margin(&self) -> f64 {
-        (4.0 * self.ancillary_pressure_error).max(2e-4)
     }
 
     /// The state at temperature T (K) and pressure p (Pa).
@@ -160,19 +171,31 @@ impl Fluid {
             }
             // Between the dew and bubble pressures: two-phase, quality from the
             // temperature's place between the bubble and dew temperatures at p.
-            let saturation = self.saturation_at_pressure(pressure)?;
-            let (tb, td) = (saturation.liquid.temperature, saturation.vapour.temperature);
+            let pair = self.saturated_pair_at_pressure(pressure)?;
+            let (tb, td) = (pair.liquid.temperature, pair.vapour.temperature);
             let quality = ((temperature - tb) / (td - tb)).clamp(0.0, 1.0);
-            return Ok(State::two_phase(self, self.pair(&saturation), quality));
+            return Ok(State::two_phase(self, pair, quality));
         }
-        let estimate = self
-            .vapour_pressure
-            .value(&self.ancillaries.bubble_pressure, temperature);
-        let margin = self.ancillary_margin();
-        let (branch, saturated) = if pressure > estimate * (1.0 + margin) {
-            (Branch::Liquid, None)
-        } else if pressure < estimate * (1.0 - margin) {
-            (Branch::Vapour, None)
+        // The table's vapour pressure decides unless p lies within a few times the
+        // cell's measured error of it, or the table's densities, which seed and bound
+        // the density search, are poor there (next to the critical point).
+        let clear = self
+            .saturation_table
+            .at_temperature(temperature)
+            .filter(|line| line.error.density < SEED_DENSITY_ERROR)
+            .and_then(|line| {
+                let margin = TABLE_MARGIN * line.error.ln_pressure + 1e-9;
+                let distance = (pressure / line.pressure).ln();
+                if distance > margin {
+                    Some(Branch::Liquid)
+                } else if distance < -margin {
+                    Some(Branch::Vapour)
+                } else {
+                    None
+                }
+            });
+        let (branch, saturated) = if let Some(branch) = clear {
+            (branch, None)
         } else {
             let saturation = self.saturation_at_temperature(temperature)?;
             let psat = saturation.vapour.pressure;
@@ -304,8 +327,8 @@ impl Fluid {
                 break;
             }
         }
-        let saturation = self.saturation_at_pressure((a * b).sqrt())?;
-        let state = State::two_phase(self, self.pair(&saturation), quality);
+        let pair = self.saturated_pair_at_pressure((a * b).sqrt())?;
+        let state = State::two_phase(self, pair, quality);
         if (state.temperature - temperature).abs() > 1e-9 * temperature {
             return Err(Error::OutOfRange {
                 fluid: self.name.clone(),
@@ -322,8 +345,8 @@ impl Fluid {
     /// The two-phase state at pressure p (Pa) and quality x.
     pub fn state_p_quality(&'static self, pressure: f64, quality: f64) -> Result<State> {
         self.check_quality(quality)?;
-        let saturation = self.saturation_at_pressure(pressure)?;
-        Ok(State::two_phase(self, self.pair(&saturation), quality))
+        let pair = self.saturated_pair_at_pressure(pressure)?;
+        Ok(State::two_phase(self, pair, quality))
     }
 
     /// The state at pressure p (Pa) and specific enthalpy h (J/kg).
@@ -396,19 +419,13 @@ impl Fluid {
             return None;
         }
         let t = current.temperature;
-        // Clearly away from saturation at this pressure (by four times the measured
-        // ancillary error, as a temperature), or above the critical point.
+        // Clearly away from saturation at this pressure (by a few times the table's
+        // measured error, as a temperature), or above the critical point.
         let (sat_low, sat_high) = self.saturation_pressure_range();
         if pressure >= sat_low && pressure < sat_high {
-            let equation = &self.ancillaries.bubble_pressure;
-            let t_sat = self.vapour_pressure.temperature_at(
-                equation,
-                pressure,
-                self.triple_temperature,
-                self.saturation_temperature_max(),
-            );
-            let (_, slope) = self.vapour_pressure.log_value_and_slope(equation, t_sat);
-            let margin = 2.0 * self.ancillary_margin() / slope + 1e-6 * t_sat;
+            let line = self.saturation_table.at_pressure(pressure)?;
+            let t_sat = line.temperature;
+            let margin = TABLE_MARGIN * line.error.temperature + 1e-6 * t_sat;
             let clear = match region {
                 Region::Liquid => t < t_sat - margin,
                 Region::Vapour => t > t_sat + margin,
@@ -445,14 +462,13 @@ impl Fluid {
         let (sat_low, sat_high) = self.saturation_pressure_range();
         // The triple-point pressure itself, within rounding, still has both phases.
         if pressure >= sat_low * (1.0 - 1e-9) && pressure < sat_high {
-            let saturation = match self.clearly_single_phase(pressure, target, held)? {
+            let pair = match self.clearly_single_phase(pressure, target, held)? {
                 Quick::Found(state) => return Ok(*state),
                 Quick::Unclear(Some(seeds)) => {
-                    self.saturation_at_pressure_seeded(pressure, seeds)?
+                    self.saturated_pair_at_pressure_seeded(pressure, seeds)?
                 }
-                Quick::Unclear(None) => self.saturation_at_pressure(pressure)?,
+                Quick::Unclear(None) => self.saturated_pair_at_pressure(pressure)?,
             };
-            let pair = self.pair(&saturation);
             let (at_liquid, at_vapour) = (held.of(&pair.liquid), held.of(&pair.vapour));
             // A target within rounding of a saturated state is that saturated state.
             let slack = 1e-11 * (at_vapour - at_liquid);
@@ -520,110 +536,93 @@ impl Fluid {
     }
 
     /// The state at (p, target) when it clearly lies away from saturation, judged by
-    /// the saturation temperature from the ancillary equation and its stated error:
-    /// the approximate saturated vapour (or liquid) at p bounds the target with room
-    /// for that error, so the exact saturation need not be solved. `None` when the
-    /// target is too close to call (and near the critical point, and for air).
+    /// the tabulated saturation line: the target must lie beyond the table's saturated
+    /// value at p by [`TABLE_MARGIN`] times the cell's measured error. Then a joint
+    /// Newton from the table's saturated state (or, far into the gas, from the
+    /// ideal-gas estimate) finds it. `Unclear` otherwise, with the table's saturated
+    /// states as seeds; `Unclear(None)` near the critical point and for air.
     fn clearly_single_phase(
         &'static self,
         pressure: f64,
         target: f64,
         held: Held,
     ) -> Result<Quick> {
-        if self.pseudo_pure || pressure > 0.95 * self.critical.pressure {
+        if self.pseudo_pure || pressure > QUICK_PRESSURE_LIMIT * self.critical.pressure {
             return Ok(Quick::Unclear(None));
         }
-        let equation = &self.ancillaries.bubble_pressure;
-        let temperature = self.vapour_pressure.temperature_at(
-            equation,
-            pressure,
-            self.triple_temperature,
-            self.saturation_temperature_max(),
-        );
-        let (_, slope) = self
-            .vapour_pressure
-            .log_value_and_slope(equation, temperature);
-        // Four times the measured largest error of ln p, as a temperature.
-        let uncertainty = self.ancillary_margin() / slope;
-        // Far into the gas (judged by the ideal-gas estimate), try the joint Newton
-        // from the ideal-gas start first: a converged state well above the saturation
-        // temperature and less dense than the critical density is the stable vapour
-        // (a superheated liquid there would be denser than critical).
-        let estimate = self.ideal_gas_estimate(pressure, target, held, temperature);
-        if estimate > 1.5 * temperature {
-            let t0 = estimate.min(self.temperature_max * 0.999);
-            let start = self.properties(t0, self.ideal_gas_density(t0, pressure));
-            if let Some(Ok(state)) = self.newton_in_temperature_and_density(
+        let Some(line) = self.saturation_table.at_pressure(pressure) else {
+            return Ok(Quick::Unclear(None));
+        };
+        let temperature = line.temperature;
+        let (at_liquid, at_vapour, error) = match held {
+            Held::Enthalpy => (
+                line.liquid_enthalpy,
+                line.vapour_enthalpy,
+                line.error.enthalpy,
+            ),
+            Held::Entropy => (line.liquid_entropy, line.vapour_entropy, line.error.entropy),
+        };
+        let margin = TABLE_MARGIN * error + 1e-9 * (at_vapour - at_liquid);
+        let slack = TABLE_MARGIN * line.error.temperature + 1e-9 * temperature;
+        // A single-phase state below the critical pressure is a vapour less dense than
+        // critical, or a liquid denser than critical; a converged Newton on the other
+        // side is a metastable root and is refused.
+        let critical_density = self.critical.density;
+        if target > at_vapour + margin {
+            // Far into the gas (judged by the ideal-gas estimate), start from the
+            // ideal gas.
+            let estimate = self.ideal_gas_estimate(pressure, target, held, temperature);
+            if estimate > 1.5 * temperature {
+                let t0 = estimate.min(self.temperature_max * 0.999);
+                let start = self.properties(t0, self.ideal_gas_density(t0, pressure));
+                if let Some(Ok(state)) = self.newton_in_temperature_and_density(
+                    pressure,
+                    target,
+                    held,
+                    Region::Vapour,
+                    &start,
+                    (temperature - slack, f64::INFINITY),
+                ) {
+                    if state.density < critical_density {
+                        return Ok(Quick::Found(Box::new(state)));
+                    }
+                }
+            }
+            let start = self.properties(temperature, line.vapour_density);
+            return match self.newton_in_temperature_and_density(
                 pressure,
                 target,
                 held,
                 Region::Vapour,
                 &start,
-                (temperature + 2.0 * uncertainty, f64::INFINITY),
+                (temperature - slack, f64::INFINITY),
             ) {
-                if state.density < self.critical.density {
-                    return Ok(Quick::Found(Box::new(state)));
-                }
+                Some(Ok(state)) if state.density < critical_density => Ok(state),
+                _ => self.search_temperature(pressure, target, held, Region::Vapour, start),
             }
+            .map(|state| Quick::Found(Box::new(state)));
         }
-        let factors = self.tau_factors(temperature);
-        // Seeds from the saturated densities tabulated at load.
-        let seeds = self.vapour_pressure.saturated_densities(temperature);
-        let near = |branch: Branch| -> Option<Properties> {
-            let guess = seeds.map(|(l, v)| {
-                if branch == Branch::Liquid {
-                    l
-                } else {
-                    v.min(self.ideal_gas_density(temperature, pressure) * 1.5)
-                }
-            });
-            let rho = self
-                .density_on_branch(&factors, temperature, pressure, branch, guess, None)
-                .ok()?;
-            let props = self.properties_with(&factors, temperature, rho);
-            (props.dp_drho > 0.0 && props.cp > 0.0).then_some(props)
-        };
-        // Try the likelier side first: the liquid when the ideal-gas estimate lies
-        // below the saturation temperature, else the vapour.
-        let sides = if estimate < temperature {
-            [Region::Liquid, Region::Vapour]
-        } else {
-            [Region::Vapour, Region::Liquid]
-        };
-        let mut densities = (None, None);
-        for region in sides {
-            let (branch, bounds) = match region {
-                Region::Liquid => (Branch::Liquid, (0.0, temperature)),
-                _ => (Branch::Vapour, (temperature, f64::INFINITY)),
-            };
-            let Some(saturated) = near(branch) else {
-                return Ok(Quick::Unclear(None));
-            };
-            match region {
-                Region::Liquid => densities.0 = Some(saturated.density),
-                _ => densities.1 = Some(saturated.density),
+        if target < at_liquid - margin {
+            let start = self.properties(temperature, line.liquid_density);
+            return match self.newton_in_temperature_and_density(
+                pressure,
+                target,
+                held,
+                Region::Liquid,
+                &start,
+                (0.0, temperature + slack),
+            ) {
+                Some(Ok(state)) if state.density > critical_density => Ok(state),
+                _ => self.search_temperature(pressure, target, held, Region::Liquid, start),
             }
-            let margin = 2.0 * held.slope(&saturated) * uncertainty;
-            let clear = match region {
-                Region::Liquid => target < held.of(&saturated) - margin,
-                _ => target > held.of(&saturated) + margin,
-            };
-            if clear {
-                return self
-                    .newton_in_temperature_and_density(
-                        pressure, target, held, region, &saturated, bounds,
-                    )
-                    .unwrap_or_else(|| {
-                        self.search_temperature(pressure, target, held, region, saturated)
-                    })
-                    .map(|state| Quick::Found(Box::new(state)));
-            }
+            .map(|state| Quick::Found(Box::new(state)));
         }
-        // Too close to call: the approximate saturated densities seed the exact solve.
-        Ok(Quick::Unclear(match densities {
-            (Some(l), Some(v)) => Some((temperature, l, v)),
-            _ => None,
-        }))
+        // Too close to call: the table's saturated states seed the exact solve.
+        Ok(Quick::Unclear(Some((
+            temperature,
+            line.liquid_density,
+            line.vapour_density,
+        ))))
     }
 
     /// Newton in (T, ρ) together on p(T, ρ) = p and h (or s)(T, ρ) = target, from a

@@ -4,6 +4,7 @@
 use super::ancillary::MeltingLine;
 use super::file::{AncillaryEquation, FluidFile, ReferenceStateName};
 use super::helmholtz::{IdealPart, ResidualDerivatives, ResidualPart, TauFactors};
+use super::saturation_table::SaturationTable;
 use crate::error::{Error, Result};
 
 /// A point given by temperature, pressure and density.
@@ -76,11 +77,9 @@ pub struct Fluid {
     pub density_ceiling: f64,
     /// The range of pressures over which saturation is solved, Pa.
     pub(crate) saturation_pressures: (f64, f64),
-    /// The largest |ln(p_estimate/p_saturation)| of the corrected vapour-pressure
-    /// estimate, measured halfway between its nodes when the fluid is built.
-    pub ancillary_pressure_error: f64,
-    /// The vapour-pressure estimate used to decide phases quickly.
-    pub vapour_pressure: super::vapour_pressure::VapourPressureEstimate,
+    /// The saturation line tabulated from this equation when the fluid is built, for
+    /// quick phase decisions and seeds (empty for a pseudo-pure fluid).
+    pub saturation_table: SaturationTable,
     /// Ancillary equations and melting line.
     pub ancillaries: Ancillaries,
     pub(crate) ideal: IdealPart,
@@ -171,8 +170,7 @@ impl Fluid {
                     .value(data.triple.temperature_k)
                 * m,
             saturation_pressures: (0.0, 0.0),
-            ancillary_pressure_error: 0.0,
-            vapour_pressure: Default::default(),
+            saturation_table: SaturationTable::default(),
             ancillaries: Ancillaries {
                 bubble_pressure: data.ancillaries.bubble_pressure,
                 dew_pressure: data.ancillaries.dew_pressure,
@@ -188,10 +186,6 @@ impl Fluid {
         fluid.saturation_pressures = fluid
             .compute_saturation_pressure_range()
             .map_err(|e| bad(format!("cannot solve the saturation range: {e}")))?;
-        let measured = fluid
-            .measure_ancillary_error()
-            .map_err(|e| bad(format!("cannot check the vapour-pressure ancillary: {e}")))?;
-        fluid.ancillary_pressure_error = measured;
         if fluid.reference_state == ReferenceStateName::NormalBoilingPoint {
             fluid.set_normal_boiling_point_reference().map_err(|e| {
                 bad(format!(
@@ -199,6 +193,10 @@ impl Fluid {
                 ))
             })?;
         }
+        // Last: the table keeps enthalpies and entropies in the final reference state.
+        fluid.saturation_table = fluid
+            .build_saturation_table()
+            .map_err(|e| bad(format!("cannot tabulate the saturation line: {e}")))?;
         Ok(fluid)
     }
 
@@ -211,38 +209,6 @@ impl Fluid {
         self.ideal.lead_tau -= liquid.enthalpy / (self.gas_constant * self.reducing_temperature);
         self.ideal.lead_constant += liquid.entropy / self.gas_constant;
         Ok(())
-    }
-
-    /// Builds the corrected vapour-pressure estimate (65 nodes from the triple point
-    /// to the top of the saturation range) and measures its largest error halfway
-    /// between the nodes, as |ln(p_estimate/p)|.
-    fn measure_ancillary_error(&mut self) -> Result<f64> {
-        if self.pseudo_pure {
-            // The ancillaries are the bubble and dew lines themselves.
-            return Ok(0.0);
-        }
-        let low = self.triple_temperature;
-        let high = self.saturation_temperature_max();
-        let at = |i: f64| (low + (high - low) * i / 64.0).min(high);
-        let equation = self.ancillaries.bubble_pressure.clone();
-        let mut nodes = Vec::with_capacity(65);
-        let mut densities = Vec::with_capacity(65);
-        for i in 0..=64 {
-            let t = at(i as f64);
-            let saturation = self.saturation_at_temperature(t)?;
-            nodes.push((t, (saturation.vapour.pressure / equation.value(t)).ln()));
-            densities.push((saturation.liquid.density, saturation.vapour.density));
-        }
-        self.vapour_pressure =
-            super::vapour_pressure::VapourPressureEstimate::new(nodes, densities);
-        let mut worst: f64 = 0.0;
-        for i in 0..64 {
-            let t = at(i as f64 + 0.5);
-            let exact = self.saturation_at_temperature(t)?.vapour.pressure;
-            let estimate = self.vapour_pressure.value(&equation, t);
-            worst = worst.max((estimate / exact).ln().abs());
-        }
-        Ok(worst)
     }
 
     /// τ = Tr/T.

@@ -14,10 +14,10 @@ mod fluid;
 pub mod helmholtz;
 pub mod inversion;
 pub mod saturation;
+pub mod saturation_table;
 pub mod spec;
 pub mod state;
 pub mod throttling;
-pub mod vapour_pressure;
 
 pub use density::Branch;
 pub use fluid::{Fluid, Point, Properties};

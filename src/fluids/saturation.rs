@@ -6,6 +6,7 @@
 
 use super::density::Branch;
 use super::fluid::{Fluid, Point, Properties};
+use super::state::SaturatedPair;
 use crate::error::{Error, Result};
 
 /// The two saturated states in equilibrium (for a pseudo-pure fluid, the bubble and
@@ -20,6 +21,11 @@ pub struct Saturation {
 
 /// Iteration cap of the saturation solvers.
 pub const SATURATION_ITERATION_CAP: usize = 60;
+
+/// The largest measured relative error of the saturation table's densities for which
+/// they seed the exact solvers; beyond it (next to the critical point) the ancillary
+/// equations do.
+pub(crate) const SEED_DENSITY_ERROR: f64 = 1e-3;
 
 impl Fluid {
     /// The highest temperature at which saturation is solved, K: 0.9999 Tc. Closer
@@ -51,10 +57,7 @@ impl Fluid {
         if self.pseudo_pure {
             return self.pseudo_pure_saturation_at_temperature(temperature);
         }
-        let seeds = (
-            self.ancillary_liquid_density(temperature),
-            self.ancillary_vapour_density(temperature),
-        );
+        let seeds = self.approximate_saturated_densities(temperature);
         self.pure_saturation_at_temperature(temperature, seeds)
     }
 
@@ -191,6 +194,20 @@ impl Fluid {
 
     /// Saturation at pressure p (Pa).
     pub fn saturation_at_pressure(&self, pressure: f64) -> Result<Saturation> {
+        let pair = self.saturated_pair_at_pressure(pressure)?;
+        let point = |x: &Properties| Point {
+            temperature: x.temperature,
+            pressure,
+            density: x.density,
+        };
+        Ok(Saturation {
+            liquid: point(&pair.liquid),
+            vapour: point(&pair.vapour),
+        })
+    }
+
+    /// The saturated liquid and vapour at pressure p (Pa) with all their properties.
+    pub fn saturated_pair_at_pressure(&self, pressure: f64) -> Result<SaturatedPair> {
         let (low, high) = self.saturation_pressure_range();
         if !(pressure >= low * (1.0 - 1e-6) && pressure < high) {
             return Err(Error::OutOfRange {
@@ -214,74 +231,70 @@ impl Fluid {
                 .ancillaries
                 .dew_pressure
                 .temperature_at(pressure, t_low, t_high);
-            let liquid = self.density_on_branch(
-                &self.tau_factors(bubble_t),
-                bubble_t,
-                pressure,
-                Branch::Liquid,
-                None,
-                None,
-            )?;
-            let vapour = self.density_on_branch(
-                &self.tau_factors(dew_t),
-                dew_t,
-                pressure,
-                Branch::Vapour,
-                None,
-                None,
-            )?;
-            return Ok(Saturation {
-                liquid: Point {
-                    temperature: bubble_t,
-                    pressure,
-                    density: liquid,
-                },
-                vapour: Point {
-                    temperature: dew_t,
-                    pressure,
-                    density: vapour,
-                },
+            let on_branch = |temperature: f64, branch: Branch| -> Result<Properties> {
+                let factors = self.tau_factors(temperature);
+                let density =
+                    self.density_on_branch(&factors, temperature, pressure, branch, None, None)?;
+                Ok(self.properties_with(&factors, temperature, density))
+            };
+            return Ok(SaturatedPair {
+                liquid: on_branch(bubble_t, Branch::Liquid)?,
+                vapour: on_branch(dew_t, Branch::Vapour)?,
             });
         }
-        let start = self
-            .ancillaries
-            .bubble_pressure
-            .temperature_at(pressure, t_low, t_high);
-        let seeds = (
-            start,
-            self.ancillary_liquid_density(start),
-            self.ancillary_vapour_density(start),
-        );
+        let seeds = match self.saturation_table.at_pressure(pressure) {
+            Some(line) if line.error.density < SEED_DENSITY_ERROR => {
+                (line.temperature, line.liquid_density, line.vapour_density)
+            }
+            _ => {
+                let start = self
+                    .ancillaries
+                    .bubble_pressure
+                    .temperature_at(pressure, t_low, t_high);
+                (
+                    start,
+                    self.ancillary_liquid_density(start),
+                    self.ancillary_vapour_density(start),
+                )
+            }
+        };
         if let Some(found) = self.saturation_at_pressure_direct(pressure, seeds) {
             return Ok(found);
         }
-        self.saturation_at_pressure_nested(pressure, start)
+        let saturation = self.saturation_at_pressure_nested(pressure, seeds.0)?;
+        let factors = self.tau_factors(saturation.liquid.temperature);
+        let at = |point: &Point| self.properties_with(&factors, point.temperature, point.density);
+        Ok(SaturatedPair {
+            liquid: at(&saturation.liquid),
+            vapour: at(&saturation.vapour),
+        })
     }
 
-    /// Saturation at pressure p from seeds (T, ρ′, ρ″) close to the answer, such as
-    /// the approximate saturated states a flash has already found; falls back to
-    /// [`Fluid::saturation_at_pressure`].
-    pub fn saturation_at_pressure_seeded(
+    /// The saturated pair at pressure p from seeds (T, ρ′, ρ″) close to the answer,
+    /// such as a flash's approximate saturated states; falls back to
+    /// [`Fluid::saturated_pair_at_pressure`].
+    pub fn saturated_pair_at_pressure_seeded(
         &self,
         pressure: f64,
         seeds: (f64, f64, f64),
-    ) -> Result<Saturation> {
+    ) -> Result<SaturatedPair> {
         if !self.pseudo_pure {
             if let Some(found) = self.saturation_at_pressure_direct(pressure, seeds) {
                 return Ok(found);
             }
         }
-        self.saturation_at_pressure(pressure)
+        self.saturated_pair_at_pressure(pressure)
     }
 
     /// Newton in (T, ρ′, ρ″) together on p(T, ρ′) = p, p(T, ρ″) = p and
-    /// g(T, ρ′) = g(T, ρ″), seeded by the ancillary equations. Fast; `None` when it
-    /// does not settle (then the nested solve takes over).
+    /// g(T, ρ′) = g(T, ρ″), from seeds (T, ρ′, ρ″). Fast; `None` when it does not
+    /// settle (then the nested solve takes over). The properties it returns are those
+    /// evaluated at the converged point.
     fn saturation_at_pressure_direct(
         &self,
         pressure: f64,
         seeds: (f64, f64, f64),
-    ) -> Option<Saturation> {
+    ) -> Option<SaturatedPair> {
         let (t_low, t_high) = (
             self.triple_temperature * (1.0 - 1e-9),
             self.saturation_temperature_max(),
@@ -314,14 +327,9 @@ impl Fluid {
             let converged =
                 f[0].abs() < 1e-12 + liquid_noise && f[1].abs() < 1e-12 && f[2].abs() < 1e-12;
             if converged {
-                let point = |density: f64| Point {
-                    temperature: t,
-                    pressure: v.pressure,
-                    density,
-                };
-                return Some(Saturation {
-                    liquid: point(liquid),
-                    vapour: point(vapour),
+                return Some(SaturatedPair {
+                    liquid: l,
+                    vapour: v,
                 });
             }
             // Damp steps that would cross the phases or leave the range.

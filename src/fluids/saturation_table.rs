@@ -1,0 +1,344 @@
+//! The saturation line tabulated from the fluid's own equation of state, for quick
+//! phase decisions and close seeds.
+//!
+//! When a fluid is loaded, the exact saturated states are solved at
+//! [`SATURATION_TABLE_NODES`] temperatures evenly spaced from the triple point to the
+//! top of the saturation range. Each node keeps ln p, ρ′, ln ρ″, h′, h″, s′ and s″ and
+//! their exact slopes along the saturation line (Clausius–Clapeyron for ln p, the chain
+//! rule through (∂/∂T)_ρ and (∂/∂ρ)_T for the rest), and cubic Hermite interpolation
+//! joins the nodes. A lookup costs a few dozen multiplications and no transcendental
+//! function beyond one `ln` or `exp`.
+//!
+//! The error of every cell is measured halfway between its nodes, where the Hermite
+//! error peaks, against the exact saturation there; lookups report their cell's
+//! measured error, and every decision made on the table keeps a margin of several
+//! times it. Close calls go to the exact saturation.
+
+use super::fluid::{Fluid, Properties};
+use crate::error::Result;
+
+/// Number of nodes of the table.
+pub const SATURATION_TABLE_NODES: usize = 129;
+
+/// Columns kept at every node.
+const LN_PRESSURE: usize = 0;
+const LIQUID_DENSITY: usize = 1;
+const LN_VAPOUR_DENSITY: usize = 2;
+const LIQUID_ENTHALPY: usize = 3;
+const VAPOUR_ENTHALPY: usize = 4;
+const LIQUID_ENTROPY: usize = 5;
+const VAPOUR_ENTROPY: usize = 6;
+const COLUMNS: usize = 7;
+
+/// Iteration cap of the inversion of ln p inside one cell.
+const INVERSION_CAP: usize = 40;
+
+/// One exact saturated state and its slopes along the saturation line.
+#[derive(Debug, Clone, Copy)]
+struct Node {
+    temperature: f64,
+    values: [f64; COLUMNS],
+    /// d(value)/dT along the saturation line.
+    slopes: [f64; COLUMNS],
+}
+
+/// The measured error of one cell of the table (absolute, in SI units), halfway
+/// between its nodes.
+#[derive(Debug, Clone, Copy, Default, PartialEq)]
+pub struct TableError {
+    /// |ln p_table(T) − ln p(T)|.
+    pub ln_pressure: f64,
+    /// |T_table(p) − T(p)|, K.
+    pub temperature: f64,
+    /// Relative error of the saturated densities at T (the larger of the two).
+    pub density: f64,
+    /// Error of h′ and h″ at p (the larger), J/kg.
+    pub enthalpy: f64,
+    /// Error of s′ and s″ at p (the larger), J/(kg·K).
+    pub entropy: f64,
+}
+
+impl TableError {
+    fn max(self, other: TableError) -> TableError {
+        TableError {
+            ln_pressure: self.ln_pressure.max(other.ln_pressure),
+            temperature: self.temperature.max(other.temperature),
+            density: self.density.max(other.density),
+            enthalpy: self.enthalpy.max(other.enthalpy),
+            entropy: self.entropy.max(other.entropy),
+        }
+    }
+}
+
+/// The table's approximate saturated states at one temperature or pressure.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct ApproximateSaturation {
+    /// Saturation temperature, K.
+    pub temperature: f64,
+    /// Saturation pressure, Pa.
+    pub pressure: f64,
+    /// d ln p/dT along the saturation line, 1/K.
+    pub ln_pressure_slope: f64,
+    /// Saturated-liquid density, kg/m³.
+    pub liquid_density: f64,
+    /// Saturated-vapour density, kg/m³.
+    pub vapour_density: f64,
+    /// Saturated-liquid enthalpy, J/kg.
+    pub liquid_enthalpy: f64,
+    /// Saturated-vapour enthalpy, J/kg.
+    pub vapour_enthalpy: f64,
+    /// Saturated-liquid entropy, J/(kg·K).
+    pub liquid_entropy: f64,
+    /// Saturated-vapour entropy, J/(kg·K).
+    pub vapour_entropy: f64,
+    /// The measured error of the cell the lookup fell in.
+    pub error: TableError,
+}
+
+/// The tabulated saturation line of one pure fluid (empty for a pseudo-pure fluid and
+/// while the fluid is being built).
+#[derive(Debug, Clone, Default)]
+pub struct SaturationTable {
+    nodes: Vec<Node>,
+    /// Per cell (between node i and i + 1), its measured error.
+    errors: Vec<TableError>,
+    /// Temperature step between nodes, K.
+    step: f64,
+}
+
+/// The cubic Hermite basis at t ∈ [0, 1] for a cell of width `width`: weights of
+/// (f₀, f₀′, f₁, f₁′) for the value, and for the slope.
+fn hermite_basis(t: f64, width: f64) -> ([f64; 4], [f64; 4]) {
+    let t2 = t * t;
+    let t3 = t2 * t;
+    let value = [
+        2.0 * t3 - 3.0 * t2 + 1.0,
+        (t3 - 2.0 * t2 + t) * width,
+        -2.0 * t3 + 3.0 * t2,
+        (t3 - t2) * width,
+    ];
+    let slope = [
+        (6.0 * t2 - 6.0 * t) / width,
+        3.0 * t2 - 4.0 * t + 1.0,
+        (-6.0 * t2 + 6.0 * t) / width,
+        3.0 * t2 - 2.0 * t,
+    ];
+    (value, slope)
+}
+
+impl SaturationTable {
+    /// True when the table holds no nodes.
+    pub fn is_empty(&self) -> bool {
+        self.nodes.len() < 2
+    }
+
+    /// The temperature range the table covers, K.
+    pub fn temperature_range(&self) -> Option<(f64, f64)> {
+        (!self.is_empty()).then(|| (self.nodes[0].temperature, self.last().temperature))
+    }
+
+    /// The largest measured error over the cells whose saturation pressure lies below
+    /// `pressure`.
+    pub fn largest_error_below(&self, pressure: f64) -> TableError {
+        let limit = pressure.ln();
+        self.errors
+            .iter()
+            .zip(&self.nodes)
+            .filter(|(_, node)| node.values[LN_PRESSURE] < limit)
+            .fold(TableError::default(), |worst, (error, _)| worst.max(*error))
+    }
+
+    fn last(&self) -> &Node {
+        &self.nodes[self.nodes.len() - 1]
+    }
+
+    /// Interpolates every column in cell `cell` at temperature T.
+    fn interpolate(&self, cell: usize, temperature: f64) -> ApproximateSaturation {
+        let (a, b) = (&self.nodes[cell], &self.nodes[cell + 1]);
+        let t = (temperature - a.temperature) / self.step;
+        let (weights, slope_weights) = hermite_basis(t, self.step);
+        let column = |c: usize, w: &[f64; 4]| {
+            w[0] * a.values[c] + w[1] * a.slopes[c] + w[2] * b.values[c] + w[3] * b.slopes[c]
+        };
+        ApproximateSaturation {
+            temperature,
+            pressure: column(LN_PRESSURE, &weights).exp(),
+            ln_pressure_slope: column(LN_PRESSURE, &slope_weights),
+            liquid_density: column(LIQUID_DENSITY, &weights),
+            vapour_density: column(LN_VAPOUR_DENSITY, &weights).exp(),
+            liquid_enthalpy: column(LIQUID_ENTHALPY, &weights),
+            vapour_enthalpy: column(VAPOUR_ENTHALPY, &weights),
+            liquid_entropy: column(LIQUID_ENTROPY, &weights),
+            vapour_entropy: column(VAPOUR_ENTROPY, &weights),
+            error: self.errors.get(cell).copied().unwrap_or_default(),
+        }
+    }
+
+    /// The approximate saturated states at temperature T (K); `None` outside the
+    /// table.
+    pub fn at_temperature(&self, temperature: f64) -> Option<ApproximateSaturation> {
+        if self.is_empty()
+            || !(temperature >= self.nodes[0].temperature && temperature <= self.last().temperature)
+        {
+            return None;
+        }
+        let cell = (((temperature - self.nodes[0].temperature) / self.step) as usize)
+            .min(self.nodes.len() - 2);
+        Some(self.interpolate(cell, temperature))
+    }
+
+    /// The approximate saturated states at pressure p (Pa); `None` outside the table.
+    /// The temperature solves the cell's cubic for ln p by Newton's method kept inside
+    /// the cell (bisection when a step leaves it).
+    pub fn at_pressure(&self, pressure: f64) -> Option<ApproximateSaturation> {
+        if self.is_empty() || !(pressure > 0.0) {
+            return None;
+        }
+        let target = pressure.ln();
+        let first = self.nodes[0].values[LN_PRESSURE];
+        if !(target >= first && target <= self.last().values[LN_PRESSURE]) {
+            return None;
+        }
+        let cell = self
+            .nodes
+            .partition_point(|node| node.values[LN_PRESSURE] <= target)
+            .clamp(1, self.nodes.len() - 1)
+            - 1;
+        let (a, b) = (&self.nodes[cell], &self.nodes[cell + 1]);
+        let (y0, y1) = (a.values[LN_PRESSURE], b.values[LN_PRESSURE]);
+        let (m0, m1) = (a.slopes[LN_PRESSURE], b.slopes[LN_PRESSURE]);
+        let (mut low, mut high) = (0.0f64, 1.0f64);
+        let mut t = ((target - y0) / (y1 - y0)).clamp(0.0, 1.0);
+        for _ in 0..INVERSION_CAP {
+            let (w, ws) = hermite_basis(t, self.step);
+            let f = w[0] * y0 + w[1] * m0 + w[2] * y1 + w[3] * m1 - target;
+            let slope = (ws[0] * y0 + ws[1] * m0 + ws[2] * y1 + ws[3] * m1) * self.step;
+            if f < 0.0 {
+                low = t;
+            } else {
+                high = t;
+            }
+            let mut next = t - f / slope;
+            if !(next > low && next < high) {
+                next = 0.5 * (low + high);
+            }
+            let done = (next - t).abs() <= 1e-15;
+            t = next;
+            if done || f == 0.0 {
+                break;
+            }
+        }
+        // The loop ends within rounding of the cubic's root or on the cap with the
+        // root bracketed in [low, high]; the measured cell error covers either.
+        let temperature = a.temperature + t * self.step;
+        Some(self.interpolate(cell, temperature))
+    }
+}
+
+impl Fluid {
+    /// One node: the exact saturation at T and its slopes along the line.
+    fn saturation_node(&self, temperature: f64) -> Result<Node> {
+        let saturation = self.saturation_at_temperature(temperature)?;
+        let factors = self.tau_factors(temperature);
+        let liquid = self.properties_with(&factors, temperature, saturation.liquid.density);
+        let vapour = self.properties_with(&factors, temperature, saturation.vapour.density);
+        let pressure = saturation.vapour.pressure;
+        // Clausius–Clapeyron: dp/dT = Δs/Δv along the line.
+        let dp_dt =
+            (vapour.entropy - liquid.entropy) / (1.0 / vapour.density - 1.0 / liquid.density);
+        // Along the line each phase's density moves so that p follows dp/dT:
+        // dρ/dT = (dp/dT − (∂p/∂T)_ρ)/(∂p/∂ρ)_T; h and s follow by the chain rule.
+        let along = |x: &Properties| {
+            let rho = x.density;
+            let drho = (dp_dt - x.dp_dt) / x.dp_drho;
+            let dh = x.cv
+                + x.dp_dt / rho
+                + (x.dp_drho / rho - temperature * x.dp_dt / (rho * rho)) * drho;
+            let ds = x.cv / temperature - x.dp_dt / (rho * rho) * drho;
+            (drho, dh, ds)
+        };
+        let (liquid_drho, liquid_dh, liquid_ds) = along(&liquid);
+        let (vapour_drho, vapour_dh, vapour_ds) = along(&vapour);
+        let mut values = [0.0; COLUMNS];
+        let mut slopes = [0.0; COLUMNS];
+        values[LN_PRESSURE] = pressure.ln();
+        slopes[LN_PRESSURE] = dp_dt / pressure;
+        values[LIQUID_DENSITY] = liquid.density;
+        slopes[LIQUID_DENSITY] = liquid_drho;
+        values[LN_VAPOUR_DENSITY] = vapour.density.ln();
+        slopes[LN_VAPOUR_DENSITY] = vapour_drho / vapour.density;
+        values[LIQUID_ENTHALPY] = liquid.enthalpy;
+        slopes[LIQUID_ENTHALPY] = liquid_dh;
+        values[VAPOUR_ENTHALPY] = vapour.enthalpy;
+        slopes[VAPOUR_ENTHALPY] = vapour_dh;
+        values[LIQUID_ENTROPY] = liquid.entropy;
+        slopes[LIQUID_ENTROPY] = liquid_ds;
+        values[VAPOUR_ENTROPY] = vapour.entropy;
+        slopes[VAPOUR_ENTROPY] = vapour_ds;
+        Ok(Node {
+            temperature,
+            values,
+            slopes,
+        })
+    }
+
+    /// Builds the saturation table from the triple point to the top of the saturation
+    /// range, then measures each cell's error halfway between its nodes against the
+    /// exact saturation there. Empty for a pseudo-pure fluid.
+    pub(crate) fn build_saturation_table(&self) -> Result<SaturationTable> {
+        if self.pseudo_pure {
+            return Ok(SaturationTable::default());
+        }
+        let low = self.triple_temperature;
+        let high = self.saturation_temperature_max();
+        let intervals = (SATURATION_TABLE_NODES - 1) as f64;
+        let step = (high - low) / intervals;
+        let at = |i: f64| (low + step * i).min(high);
+        let mut nodes = Vec::with_capacity(SATURATION_TABLE_NODES);
+        for i in 0..SATURATION_TABLE_NODES {
+            nodes.push(self.saturation_node(at(i as f64))?);
+        }
+        let mut table = SaturationTable {
+            nodes,
+            errors: Vec::new(),
+            step,
+        };
+        let mut errors = Vec::with_capacity(SATURATION_TABLE_NODES - 1);
+        for i in 0..SATURATION_TABLE_NODES - 1 {
+            let middle = at(i as f64 + 0.5);
+            let exact = self.saturation_node(middle)?;
+            let value = |c: usize| exact.values[c];
+            let mut error = TableError::default();
+            if let Some(by_temperature) = table.at_temperature(middle) {
+                error.ln_pressure = (by_temperature.pressure.ln() - value(LN_PRESSURE)).abs();
+                error.density = ((by_temperature.liquid_density / value(LIQUID_DENSITY) - 1.0)
+                    .abs())
+                .max((by_temperature.vapour_density.ln() - value(LN_VAPOUR_DENSITY)).abs());
+            }
+            if let Some(by_pressure) = table.at_pressure(value(LN_PRESSURE).exp()) {
+                error.temperature = (by_pressure.temperature - middle).abs();
+                error.enthalpy = (by_pressure.liquid_enthalpy - value(LIQUID_ENTHALPY))
+                    .abs()
+                    .max((by_pressure.vapour_enthalpy - value(VAPOUR_ENTHALPY)).abs());
+                error.entropy = (by_pressure.liquid_entropy - value(LIQUID_ENTROPY))
+                    .abs()
+                    .max((by_pressure.vapour_entropy - value(VAPOUR_ENTROPY)).abs());
+            }
+            // No cell is sharper than the exact saturation it is compared with (solved
+            // to about 1e-12): the errors are floored at 1e-10 of each quantity.
+            let floor = 1e-10;
+            error.ln_pressure = error.ln_pressure.max(floor);
+            error.temperature = error.temperature.max(floor * middle);
+            error.density = error.density.max(floor);
+            error.enthalpy = error
+                .enthalpy
+                .max(floor * (value(VAPOUR_ENTHALPY) - value(LIQUID_ENTHALPY)).abs());
+            error.entropy = error
+                .entropy
+                .max(floor * (value(VAPOUR_ENTROPY) - value(LIQUID_ENTROPY)).abs());
+            errors.push(error);
+        }
+        table.errors = errors;
+        Ok(table)
+    }
+}
