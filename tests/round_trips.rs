@@ -224,3 +224,32 @@ fn vapour_next_to_the_critical_point() {
         from_s.temperature
     );
 }
+
+/// The melting temperature inverts the melting line: T_melt(p_melt(T)) = T within
+/// 1e-10 relative (the line is steep, so this is the sharp statement), at 40
+/// temperatures spaced quadratically from just above the triple point to three times
+/// it (or to the line's data or the equation's pressure limit), for every fluid.
+#[test]
+fn melting_line_round_trip() {
+    for name in fluids::names() {
+        let fluid = fluids::fluid(name).unwrap();
+        let low = fluid.triple_temperature;
+        let mut checked = 0;
+        for k in 1..=40 {
+            let t = low * (1.0 + 2.0 * (k as f64 / 40.0).powi(2));
+            let Some(pressure) = fluid.melting_pressure(t) else {
+                continue;
+            };
+            if pressure > fluid.pressure_max {
+                break;
+            }
+            let back = fluid.melting_temperature(pressure).unwrap();
+            assert!(
+                (back / t - 1.0).abs() < 1e-10,
+                "{name}: T = {t} K → p = {pressure} Pa → T = {back} K"
+            );
+            checked += 1;
+        }
+        assert!(checked >= 5, "{name}: only {checked} temperatures checked");
+    }
+}

@@ -411,18 +411,15 @@ impl Fluid {
         if fh < 0.0 {
             return Some(high);
         }
-        let (mut a, mut b) = (low, high);
-        for _ in 0..200 {
-            let c = 0.5 * (a + b);
-            match f(c) {
-                Some(v) if v < 0.0 => a = c,
-                Some(_) => b = c,
-                None => return None,
-            }
-            if b - a < 1e-12 * b {
-                break;
-            }
-        }
-        Some(0.5 * (a + b))
+        // A gap between the line's parts gives a non-finite value, which ends the
+        // search without a result.
+        crate::numeric::bracketed_root(
+            "melting temperature from pressure",
+            |t| f(t).unwrap_or(f64::NAN),
+            low,
+            high,
+            1e-12 * high,
+        )
+        .ok()
     }
 }

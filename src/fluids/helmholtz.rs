@@ -159,11 +159,18 @@ impl IdealPart {
 #[derive(Debug, Clone, Copy)]
 struct PowerTerm {
     n: f64,
-    d: i32,
     t: f64,
-    l: i32,
-    /// t(t − 1), d, l and l² as floating-point numbers, computed once.
+    /// t(t − 1), computed once.
     t_t1: f64,
+}
+
+/// The power terms that share the density exponents (d, l): their density factor
+/// δ^d exp(−δ^l) is common, so their τ parts are summed once per temperature.
+#[derive(Debug, Clone, Copy)]
+struct PowerGroup {
+    d: i32,
+    l: i32,
+    /// d, l and l² as floating-point numbers, computed once.
     d_f: f64,
     l_f: f64,
     l2_f: f64,
@@ -185,6 +192,9 @@ struct GaussianTerm {
 #[derive(Debug, Clone, Default)]
 pub struct ResidualPart {
     power: Vec<PowerTerm>,
+    /// The (d, l) groups of the power terms, and for each power term its group.
+    groups: Vec<PowerGroup>,
+    group_of: Vec<usize>,
     gaussian: Vec<GaussianTerm>,
     largest_l: usize,
     largest_d: usize,
@@ -198,6 +208,8 @@ pub struct ResidualPart {
 
 /// The most power terms a fluid may have.
 pub const MAX_TERMS: usize = 64;
+/// The most distinct (d, l) pairs among a fluid's power terms.
+pub const MAX_GROUPS: usize = 32;
 /// The most Gaussian terms a fluid may have.
 pub const MAX_GAUSSIAN: usize = 24;
 
@@ -206,8 +218,9 @@ pub const MAX_GAUSSIAN: usize = 24;
 pub struct TauFactors {
     tau: f64,
     inv_tau: f64,
-    /// Per power term: n τ^t.
-    power: [f64; MAX_TERMS],
+    /// Per (d, l) group of power terms: Σ n τ^t, Σ n t τ^t and Σ n t(t − 1) τ^t, so
+    /// that τ ∂/∂τ and τ² ∂²/∂τ² of the group's τ part are the second and third.
+    group: [[f64; 3]; MAX_GROUPS],
     /// Per Gaussian term: n τ^t exp(−β(τ−γ)²).
     gaussian: [f64; MAX_GAUSSIAN],
     /// Per Gaussian term: its logarithmic τ derivative B = t/τ − 2β(τ−γ).
@@ -256,14 +269,27 @@ impl ResidualPart {
                         }
                         part.power.push(PowerTerm {
                             n: n[i],
-                            d: d_whole,
                             t: t[i],
-                            l: l_whole,
                             t_t1: t[i] * (t[i] - 1.0),
-                            d_f: d_whole as f64,
-                            l_f: l_whole as f64,
-                            l2_f: (l_whole * l_whole) as f64,
                         });
+                        let group = match part
+                            .groups
+                            .iter()
+                            .position(|g| g.d == d_whole && g.l == l_whole)
+                        {
+                            Some(index) => index,
+                            None => {
+                                part.groups.push(PowerGroup {
+                                    d: d_whole,
+                                    l: l_whole,
+                                    d_f: d_whole as f64,
+                                    l_f: l_whole as f64,
+                                    l2_f: (l_whole * l_whole) as f64,
+                                });
+                                part.groups.len() - 1
+                            }
+                        };
+                        part.group_of.push(group);
                     }
                 }
                 ResidualTerm::Gaussian {
@@ -300,9 +326,12 @@ impl ResidualPart {
                 }
             }
         }
-        if part.power.len() > MAX_TERMS || part.gaussian.len() > MAX_GAUSSIAN {
+        if part.power.len() > MAX_TERMS
+            || part.groups.len() > MAX_GROUPS
+            || part.gaussian.len() > MAX_GAUSSIAN
+        {
             return Err(format!(
-                "more than {MAX_TERMS} power or {MAX_GAUSSIAN} Gaussian terms"
+                "more than {MAX_TERMS} power terms, {MAX_GROUPS} distinct (d, l) pairs or {MAX_GAUSSIAN} Gaussian terms"
             ));
         }
         for term in &part.power {
@@ -340,12 +369,16 @@ impl ResidualPart {
         let mut out = TauFactors {
             tau,
             inv_tau: 1.0 / tau,
-            power: [0.0; MAX_TERMS],
+            group: [[0.0; 3]; MAX_GROUPS],
             gaussian: [0.0; MAX_GAUSSIAN],
             gaussian_b: [0.0; MAX_GAUSSIAN],
         };
-        for ((slot, term), index) in out.power.iter_mut().zip(&self.power).zip(&self.exponent_of) {
-            *slot = term.n * powers[*index];
+        for ((term, index), group) in self.power.iter().zip(&self.exponent_of).zip(&self.group_of) {
+            let value = term.n * powers[*index];
+            let sums = &mut out.group[*group];
+            sums[0] += value;
+            sums[1] += value * term.t;
+            sums[2] += value * term.t_t1;
         }
         for (i, (term, e)) in self
             .gaussian
@@ -389,22 +422,30 @@ impl ResidualPart {
         let inv_tau = factors.inv_tau;
         // Index 0 of the exponential tables stands for "no exponential": δ^0 → 0, e → 1.
         delta_l[0] = 0.0;
-        let inv_tau2 = inv_tau * inv_tau;
-        for (term, value) in self.power.iter().zip(&factors.power) {
-            let li = term.l as usize;
+        // Per group, with k = d − l δ^l: δ ∂/∂δ of δ^d exp(−δ^l) is k times it, and
+        // δ² ∂²/∂δ² is k(k − 1) − l² δ^l times it. The 1/δ and 1/τ factors are applied
+        // once, after the sums.
+        let (mut sum_delta, mut sum_delta_delta, mut sum_delta_tau) = (0.0, 0.0, 0.0);
+        for (group, sums) in self.groups.iter().zip(&factors.group) {
+            let li = group.l as usize;
             let (dl, el) = (delta_l[li], exp_l[li]);
-            let shape = delta_d[term.d as usize] * el;
-            let k = term.d_f - term.l_f * dl;
-            let second = k * (k - 1.0) - term.l2_f * dl;
-            let base = value * shape;
-            let base_tau = base * term.t * inv_tau;
+            let shape = delta_d[group.d as usize] * el;
+            let k = group.d_f - group.l_f * dl;
+            let second = k * (k - 1.0) - group.l2_f * dl;
+            let base = sums[0] * shape;
+            let base_tau = sums[1] * shape;
             out.alpha += base;
-            out.alpha_delta += base * k * inv_delta;
-            out.alpha_delta_delta += base * second * inv_delta * inv_delta;
+            sum_delta += base * k;
+            sum_delta_delta += base * second;
             out.alpha_tau += base_tau;
-            out.alpha_tau_tau += base * term.t_t1 * inv_tau2;
-            out.alpha_delta_tau += base_tau * k * inv_delta;
+            out.alpha_tau_tau += sums[2] * shape;
+            sum_delta_tau += base_tau * k;
         }
+        out.alpha_delta = sum_delta * inv_delta;
+        out.alpha_delta_delta = sum_delta_delta * inv_delta * inv_delta;
+        out.alpha_tau *= inv_tau;
+        out.alpha_tau_tau *= inv_tau * inv_tau;
+        out.alpha_delta_tau = sum_delta_tau * inv_delta * inv_tau;
         for ((term, value), b) in self
             .gaussian
             .iter()
@@ -442,13 +483,9 @@ impl ResidualPart {
         let inv_tau = 1.0 / tau;
         let mut out = [0.0; 3];
         // lim δ→0 ∂(δ^d g(δ))/∂δ is g(0) for d = 1, g′(0) for d = 0 and 0 for d ≥ 2.
-        for (term, value) in self.power.iter().zip(&factors.power) {
-            let f = [
-                *value,
-                value * term.t * inv_tau,
-                value * term.t * (term.t - 1.0) * inv_tau * inv_tau,
-            ];
-            let weight = match (term.d, term.l) {
+        for (group, sums) in self.groups.iter().zip(&factors.group) {
+            let f = [sums[0], sums[1] * inv_tau, sums[2] * inv_tau * inv_tau];
+            let weight = match (group.d, group.l) {
                 (1, _) => 1.0,
                 (0, 1) => -1.0,
                 _ => 0.0,
