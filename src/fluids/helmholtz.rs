@@ -51,32 +51,81 @@ pub struct IdealPart {
     general: Vec<(f64, f64, f64, f64)>,
 }
 
-/// How τ^t is computed for one exponent: by repeated multiplication for whole t, a
-/// square root for half-whole t, exp(t ln τ) otherwise.
+/// How τ^t is computed for one exponent: t = k/8 with 0 ≤ k < 8·[`WHOLE_TABLE`]
+/// from the tables of [`TauPowers`], exp(t ln τ) otherwise.
 #[derive(Debug, Clone, Copy)]
 enum Exponent {
-    Whole(i32),
-    Half(i32),
+    Eighths(usize),
     Real(f64),
 }
 
+/// Whole powers τ^0 … τ^(WHOLE_TABLE − 1) are tabulated.
+const WHOLE_TABLE: usize = 33;
+
 impl Exponent {
     fn of(t: f64) -> Exponent {
-        if t.fract() == 0.0 && t.abs() <= 32.0 {
-            Exponent::Whole(t as i32)
-        } else if (2.0 * t).fract() == 0.0 && t.abs() <= 32.0 {
-            Exponent::Half((2.0 * t) as i32)
+        let eighths = 8.0 * t;
+        if eighths.fract() == 0.0 && (0.0..8.0 * WHOLE_TABLE as f64).contains(&eighths) {
+            Exponent::Eighths(eighths as usize)
         } else {
             Exponent::Real(t)
         }
     }
 
+    /// τ^t by the general route: repeated multiplication for whole t, exp(t ln τ)
+    /// otherwise.
+    fn value(t: f64, tau: f64, ln_tau: f64) -> f64 {
+        if t.fract() == 0.0 && t.abs() <= 32.0 {
+            tau.powi(t as i32)
+        } else {
+            (t * ln_tau).exp()
+        }
+    }
+}
+
+/// The powers of τ one equation needs at one τ: whole powers by repeated
+/// multiplication, τ^(j/8) for j < 8 from three square roots, and ln τ. Each
+/// tabulated τ^(k/8) is then one product, within a few ulps.
+struct TauPowers {
+    whole: [f64; WHOLE_TABLE],
+    eighths: [f64; 8],
+    ln_tau: f64,
+}
+
+impl TauPowers {
+    /// Tables up to τ^(largest_whole) and, when `eighths` is set, the eighth roots.
+    fn new(tau: f64, largest_whole: usize, eighths: bool) -> TauPowers {
+        let mut out = TauPowers {
+            whole: [1.0; WHOLE_TABLE],
+            eighths: [1.0; 8],
+            ln_tau: tau.ln(),
+        };
+        for k in 1..=largest_whole.min(WHOLE_TABLE - 1) {
+            out.whole[k] = out.whole[k - 1] * tau;
+        }
+        if eighths {
+            let half = tau.sqrt();
+            let quarter = half.sqrt();
+            let eighth = quarter.sqrt();
+            out.eighths = [
+                1.0,
+                eighth,
+                quarter,
+                quarter * eighth,
+                half,
+                half * eighth,
+                half * quarter,
+                half * quarter * eighth,
+            ];
+        }
+        out
+    }
+
     #[inline]
-    fn power(self, tau: f64, sqrt_tau: f64, ln_tau: f64) -> f64 {
-        match self {
-            Exponent::Whole(k) => tau.powi(k),
-            Exponent::Half(k) => sqrt_tau.powi(k),
-            Exponent::Real(t) => (t * ln_tau).exp(),
+    fn power(&self, exponent: Exponent) -> f64 {
+        match exponent {
+            Exponent::Eighths(k) => self.whole[k / 8] * self.eighths[k % 8],
+            Exponent::Real(t) => (t * self.ln_tau).exp(),
         }
     }
 }
@@ -128,9 +177,9 @@ impl IdealPart {
             alpha_tau: self.lead_tau + self.log_tau / tau,
             alpha_tau_tau: -self.log_tau / (tau * tau),
         };
-        let (sqrt_tau, ln_tau) = (tau.sqrt(), tau.ln());
+        let ln_tau = tau.ln();
         for &(n, t) in &self.power {
-            let value = n * Exponent::of(t).power(tau, sqrt_tau, ln_tau);
+            let value = n * Exponent::value(t, tau, ln_tau);
             out.alpha += value;
             out.alpha_tau += value * t / tau;
             out.alpha_tau_tau += value * t * (t - 1.0) / (tau * tau);
@@ -202,6 +251,9 @@ pub struct ResidualPart {
     /// the index of its exponent, so that each τ^t is computed once.
     exponents: Vec<Exponent>,
     exponent_values: Vec<f64>,
+    /// The largest whole power of τ and whether eighth roots are needed.
+    largest_whole: usize,
+    needs_eighths: bool,
     exponent_of: Vec<usize>,
     gaussian_exponents: Vec<Exponent>,
 }
@@ -346,6 +398,12 @@ impl ResidualPart {
             part.exponent_of.push(index);
         }
         part.gaussian_exponents = part.gaussian.iter().map(|g| Exponent::of(g.t)).collect();
+        for exponent in part.exponents.iter().chain(&part.gaussian_exponents) {
+            if let Exponent::Eighths(k) = *exponent {
+                part.largest_whole = part.largest_whole.max(k / 8);
+                part.needs_eighths |= k % 8 != 0;
+            }
+        }
         Ok(part)
     }
 
@@ -361,10 +419,10 @@ impl ResidualPart {
 
     /// The τ-dependent factors at τ.
     pub fn at_tau(&self, tau: f64) -> TauFactors {
-        let (sqrt_tau, ln_tau) = (tau.sqrt(), tau.ln());
+        let table = TauPowers::new(tau, self.largest_whole, self.needs_eighths);
         let mut powers = [0.0f64; MAX_TERMS];
         for (slot, e) in powers.iter_mut().zip(&self.exponents) {
-            *slot = e.power(tau, sqrt_tau, ln_tau);
+            *slot = table.power(*e);
         }
         let mut out = TauFactors {
             tau,
@@ -387,8 +445,7 @@ impl ResidualPart {
             .enumerate()
         {
             let offset = tau - term.gamma;
-            out.gaussian[i] =
-                term.n * e.power(tau, sqrt_tau, ln_tau) * (-term.beta * offset * offset).exp();
+            out.gaussian[i] = term.n * table.power(*e) * (-term.beta * offset * offset).exp();
             out.gaussian_b[i] = term.t * out.inv_tau - 2.0 * term.beta * offset;
         }
         out
