@@ -253,3 +253,25 @@ fn melting_line_round_trip() {
         assert!(checked >= 5, "{name}: only {checked} temperatures checked");
     }
 }
+
+/// Compressed liquid helium 0.72 % above its vapour pressure at 4.879 K (found by
+/// proptest at a million cases): the saturation temperature at this pressure lies on
+/// a node of the saturation table, where the table's lookup once returned the middle
+/// of the cell below (4.8765 K instead of 4.8882 K), so the flash started on the wrong
+/// side of saturation and returned a liquid 36 J/kg off the target.
+#[test]
+fn liquid_whose_saturation_lies_on_a_table_node() {
+    let helium = fluids::fluid("helium").unwrap();
+    let (t, p) = (4.879209811922618, 179639.4531999784);
+    let state = helium.state_tp(t, p).unwrap();
+    assert_eq!(state.phase, cryochain::fluids::Phase::Liquid);
+    let exact = helium.saturation_at_pressure(p).unwrap();
+    let table = helium.saturation_table.at_pressure(p).unwrap();
+    assert!((table.temperature - exact.liquid.temperature).abs() < 1e-6);
+    for back in [
+        helium.state_ph(p, state.enthalpy).unwrap(),
+        helium.state_ps(p, state.entropy).unwrap(),
+    ] {
+        assert!((back.temperature - t).abs() < 1e-7, "{}", back.temperature);
+    }
+}

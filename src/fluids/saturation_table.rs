@@ -194,11 +194,14 @@ impl SaturationTable {
         if self.is_empty() || !(pressure > 0.0) {
             return None;
         }
-        let target = pressure.ln();
         let first = self.nodes[0].values[LN_PRESSURE];
-        if !(target >= first && target <= self.last().values[LN_PRESSURE]) {
+        let last = self.last().values[LN_PRESSURE];
+        // Within rounding (1e-9 in ln p) of an end is that end.
+        let target = pressure.ln();
+        if !(target >= first - 1e-9 && target <= last + 1e-9) {
             return None;
         }
+        let target = target.clamp(first, last);
         let cell = self
             .nodes
             .partition_point(|node| node.values[LN_PRESSURE] <= target)
@@ -212,19 +215,24 @@ impl SaturationTable {
         for _ in 0..INVERSION_CAP {
             let (w, ws) = hermite_basis(t, self.step);
             let f = w[0] * y0 + w[1] * m0 + w[2] * y1 + w[3] * m1 - target;
+            if f == 0.0 {
+                break;
+            }
             let slope = (ws[0] * y0 + ws[1] * m0 + ws[2] * y1 + ws[3] * m1) * self.step;
             if f < 0.0 {
                 low = t;
             } else {
                 high = t;
             }
+            // A Newton step may land on the bracket's end it just set (a step that
+            // rounds to nothing); only a step outside the bracket is replaced.
             let mut next = t - f / slope;
-            if !(next > low && next < high) {
+            if !(next >= low && next <= high) {
                 next = 0.5 * (low + high);
             }
             let done = (next - t).abs() <= 1e-15;
             t = next;
-            if done || f == 0.0 {
+            if done {
                 break;
             }
         }
