@@ -1,7 +1,7 @@
 //! A solved flowsheet as tables people read (fitting 100 columns) and as JSON with
 //! the documented schema (docs/output.md).
 
-use super::table::{Align, TextTable};
+use super::table::{fixed, Align, TextTable};
 use crate::equipment::Details;
 use crate::rules::Finding;
 use crate::solve::Solution;
@@ -385,11 +385,11 @@ pub fn text(solution: &Solution) -> String {
     out.push_str(&line(
         "exergy",
         format!(
-            "supplied {:.3} kW = minimum {:.3} + destroyed {:.3} + lost {:.3} kW",
+            "supplied {:.3} kW = minimum {:.3} + destroyed {:.3} + lost {} kW",
             s.exergy_supplied / 1e3,
             s.minimum_work / 1e3,
             s.exergy_destroyed / 1e3,
-            s.exergy_lost / 1e3
+            fixed(s.exergy_lost / 1e3, 3)
         ),
     ));
     out.push_str(&line(
@@ -453,8 +453,8 @@ pub fn text(solution: &Solution) -> String {
             },
             p.duty.map_or(String::new(), |d| format!("{:.3}", d / 1e3)),
             approach,
-            format!("{:.3}", u.exergy_destroyed / 1e3),
-            format!("{:.1} %", 100.0 * u.exergy_destroyed / total),
+            fixed(u.exergy_destroyed / 1e3, 3),
+            format!("{} %", fixed(100.0 * u.exergy_destroyed / total, 1)),
         ]);
     }
     out.push_str(&table.render());

@@ -80,6 +80,16 @@ impl TextTable {
     }
 }
 
+/// `value` with `decimals` decimals; a value that prints as zero prints without a
+/// sign (rounding leaves tiny negatives, such as −1e-12, that would show as −0.000).
+pub fn fixed(value: f64, decimals: usize) -> String {
+    let text = format!("{value:.decimals$}");
+    match text.strip_prefix('-') {
+        Some(rest) if rest.chars().all(|c| c == '0' || c == '.') => rest.to_string(),
+        _ => text,
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -94,5 +104,13 @@ mod tests {
         assert_eq!(lines[0], "name     T [K]");
         assert_eq!(lines[2], "a          1.0");
         assert_eq!(lines[3], "longer  300.25");
+    }
+
+    #[test]
+    fn zero_prints_without_a_sign_and_negatives_keep_theirs() {
+        assert_eq!(fixed(-1e-12, 3), "0.000");
+        assert_eq!(fixed(-0.0, 1), "0.0");
+        assert_eq!(fixed(-0.0006, 3), "-0.001");
+        assert_eq!(fixed(2.5, 1), "2.5");
     }
 }
