@@ -567,55 +567,42 @@ impl Fluid {
         // A single-phase state below the critical pressure is a vapour less dense than
         // critical, or a liquid denser than critical; a converged Newton on the other
         // side is a metastable root and is refused.
-        let critical_density = self.critical.density;
+        let newton_on_side = |region: Region, start: &Properties, bounds: (f64, f64)| match self
+            .newton_in_temperature_and_density(pressure, target, held, region, start, bounds)
+        {
+            Some(Ok(state))
+                if (state.density < self.critical.density) == (region == Region::Vapour) =>
+            {
+                Some(state)
+            }
+            _ => None,
+        };
+        // The joint Newton from the table's saturated state, else the bracketed search.
+        let settle = |region: Region, start: Properties, bounds: (f64, f64)| {
+            match newton_on_side(region, &start, bounds) {
+                Some(state) => Ok(state),
+                None => self.search_temperature(pressure, target, held, region, start),
+            }
+            .map(|state| Quick::Found(Box::new(state)))
+        };
         if target > at_vapour + margin {
+            let bounds = (temperature - slack, f64::INFINITY);
             // Far into the gas (judged by the ideal-gas estimate), start from the
             // ideal gas.
             let estimate = self.ideal_gas_estimate(pressure, target, held, temperature);
             if estimate > 1.5 * temperature {
                 let t0 = estimate.min(self.temperature_max * 0.999);
                 let start = self.properties(t0, self.ideal_gas_density(t0, pressure));
-                if let Some(Ok(state)) = self.newton_in_temperature_and_density(
-                    pressure,
-                    target,
-                    held,
-                    Region::Vapour,
-                    &start,
-                    (temperature - slack, f64::INFINITY),
-                ) {
-                    if state.density < critical_density {
-                        return Ok(Quick::Found(Box::new(state)));
-                    }
+                if let Some(state) = newton_on_side(Region::Vapour, &start, bounds) {
+                    return Ok(Quick::Found(Box::new(state)));
                 }
             }
             let start = self.properties(temperature, line.vapour_density);
-            return match self.newton_in_temperature_and_density(
-                pressure,
-                target,
-                held,
-                Region::Vapour,
-                &start,
-                (temperature - slack, f64::INFINITY),
-            ) {
-                Some(Ok(state)) if state.density < critical_density => Ok(state),
-                _ => self.search_temperature(pressure, target, held, Region::Vapour, start),
-            }
-            .map(|state| Quick::Found(Box::new(state)));
+            return settle(Region::Vapour, start, bounds);
         }
         if target < at_liquid - margin {
             let start = self.properties(temperature, line.liquid_density);
-            return match self.newton_in_temperature_and_density(
-                pressure,
-                target,
-                held,
-                Region::Liquid,
-                &start,
-                (0.0, temperature + slack),
-            ) {
-                Some(Ok(state)) if state.density > critical_density => Ok(state),
-                _ => self.search_temperature(pressure, target, held, Region::Liquid, start),
-            }
-            .map(|state| Quick::Found(Box::new(state)));
+            return settle(Region::Liquid, start, (0.0, temperature + slack));
         }
         // Too close to call: the table's saturated states seed the exact solve.
         Ok(Quick::Unclear(Some((
