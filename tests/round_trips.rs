@@ -277,3 +277,27 @@ fn liquid_whose_saturation_lies_on_a_table_node() {
         assert!((back.temperature - t).abs() < 1e-7, "{}", back.temperature);
     }
 }
+
+/// Air at 155.49 K and 37.52 bar (found by proptest at a million cases): the (p, s)
+/// flash seeds itself with the state at its ideal-gas estimate, 132.49997 K, which
+/// lies in a sliver next to air's critical point, above the top of its two-phase
+/// range (the dew pressure at 0.9999 Tc) but below its bubble pressure. There the
+/// (T, p) flash forced the liquid branch, which has no root, and failed; the one root
+/// of that isotherm is now taken.
+#[test]
+fn air_next_to_its_critical_point() {
+    let air = fluids::fluid("air").unwrap();
+    let p = 3751999.8096171333;
+    assert!(p > air.saturation_pressure_range().1 && p < air.critical.pressure);
+    let sliver = air.state_tp(132.4999716974151, p).unwrap();
+    let back = air.state_t_rho(132.4999716974151, sliver.density).unwrap();
+    assert!((back.pressure / p - 1.0).abs() < 1e-9, "{}", back.pressure);
+    let t = 155.49101080328822;
+    let gas = air.state_tp(t, p).unwrap();
+    for back in [
+        air.state_ph(p, gas.enthalpy).unwrap(),
+        air.state_ps(p, gas.entropy).unwrap(),
+    ] {
+        assert!((back.temperature - t).abs() < 1e-7, "{}", back.temperature);
+    }
+}

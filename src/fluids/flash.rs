@@ -162,11 +162,31 @@ impl Fluid {
                 } else {
                     Branch::Vapour
                 };
-                let rho =
-                    self.density_on_branch(&factors, temperature, pressure, branch, None, None)?;
+                let rho = match self.density_on_branch(
+                    &factors,
+                    temperature,
+                    pressure,
+                    branch,
+                    None,
+                    None,
+                ) {
+                    Ok(rho) => rho,
+                    // Above the top of the two-phase range but below the bubble
+                    // pressure (a sliver next to the critical point), the isotherm
+                    // may have no liquid root: its one root is found from the ideal gas.
+                    Err(_) if pressure < bubble => self.density_on_branch(
+                        &factors,
+                        temperature,
+                        pressure,
+                        Branch::Supercritical,
+                        None,
+                        None,
+                    )?,
+                    Err(e) => return Err(e),
+                };
                 return self.single_state(
                     self.properties_with(&factors, temperature, rho),
-                    branch == Branch::Liquid,
+                    rho > self.critical.density,
                 );
             }
             // Between the dew and bubble pressures: two-phase, quality from the
@@ -237,7 +257,13 @@ impl Fluid {
         {
             let saturation = self.saturation_at_temperature(temperature)?;
             let (rl, rv) = (saturation.liquid.density, saturation.vapour.density);
-            if density > rv && density < rl {
+            let props = self.properties(temperature, density);
+            // Air above the top of its two-phase range (a sliver next to the critical
+            // point, between its bubble and dew densities) is single-phase, as the
+            // (T, p) flash takes it.
+            let above_two_phase =
+                self.pseudo_pure && props.pressure >= self.saturation_pressure_range().1;
+            if density > rv && density < rl && !above_two_phase {
                 if self.pseudo_pure {
                     return self.pseudo_pure_two_phase_t_rho(temperature, density);
                 }
@@ -245,9 +271,13 @@ impl Fluid {
                 let quality = (volume - 1.0 / rl) / (1.0 / rv - 1.0 / rl);
                 return Ok(State::two_phase(self, self.pair(&saturation), quality));
             }
-            let props = self.properties(temperature, density);
             self.check_range(temperature, props.pressure)?;
-            return self.single_state(props, density >= rl);
+            let liquid_side = if above_two_phase {
+                density > self.critical.density
+            } else {
+                density >= rl
+            };
+            return self.single_state(props, liquid_side);
         }
         let props = self.properties(temperature, density);
         self.check_range(temperature, props.pressure)?;

@@ -214,9 +214,10 @@ impl Fluid {
                 fluid: self.name.clone(),
                 what: format!("saturation at p = {} kPa", pressure / 1e3),
                 detail: format!(
-                    "saturation exists from the triple-point pressure {:.4} kPa up to the critical pressure {:.4} kPa",
+                    "saturation is solved from the triple-point pressure {:.4} kPa up to {:.4} kPa, its pressure at 0.9999 of the critical temperature (the critical pressure is {:.4} kPa)",
                     low / 1e3,
-                    high / 1e3
+                    high / 1e3,
+                    self.critical.pressure / 1e3
                 ),
             });
         }
