@@ -257,13 +257,14 @@ impl Fluid {
         {
             let saturation = self.saturation_at_temperature(temperature)?;
             let (rl, rv) = (saturation.liquid.density, saturation.vapour.density);
-            let props = self.properties(temperature, density);
+            let inside = density > rv && density < rl;
             // Air above the top of its two-phase range (a sliver next to the critical
             // point, between its bubble and dew densities) is single-phase, as the
             // (T, p) flash takes it.
-            let above_two_phase =
-                self.pseudo_pure && props.pressure >= self.saturation_pressure_range().1;
-            if density > rv && density < rl && !above_two_phase {
+            let above_two_phase = inside
+                && self.pseudo_pure
+                && self.pressure(temperature, density) >= self.saturation_pressure_range().1;
+            if inside && !above_two_phase {
                 if self.pseudo_pure {
                     return self.pseudo_pure_two_phase_t_rho(temperature, density);
                 }
@@ -271,6 +272,7 @@ impl Fluid {
                 let quality = (volume - 1.0 / rl) / (1.0 / rv - 1.0 / rl);
                 return Ok(State::two_phase(self, self.pair(&saturation), quality));
             }
+            let props = self.properties(temperature, density);
             self.check_range(temperature, props.pressure)?;
             let liquid_side = if above_two_phase {
                 density > self.critical.density
