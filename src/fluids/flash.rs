@@ -141,15 +141,12 @@ impl Fluid {
     pub fn state_tp(&'static self, temperature: f64, pressure: f64) -> Result<State> {
         self.check_range(temperature, pressure)?;
         let factors = self.tau_factors(temperature);
+        // The density on a branch, seeded and bounded by the saturated densities at T.
+        let on_branch = |branch: Branch| {
+            self.density_on_branch(&factors, temperature, pressure, branch, None, None)
+        };
         if temperature >= self.saturation_temperature_max() {
-            let rho = self.density_on_branch(
-                &factors,
-                temperature,
-                pressure,
-                Branch::Supercritical,
-                None,
-                None,
-            )?;
+            let rho = on_branch(Branch::Supercritical)?;
             return self.single_state(self.properties_with(&factors, temperature, rho), false);
         }
         if self.pseudo_pure {
@@ -162,26 +159,12 @@ impl Fluid {
                 } else {
                     Branch::Vapour
                 };
-                let rho = match self.density_on_branch(
-                    &factors,
-                    temperature,
-                    pressure,
-                    branch,
-                    None,
-                    None,
-                ) {
+                let rho = match on_branch(branch) {
                     Ok(rho) => rho,
                     // Above the top of the two-phase range but below the bubble
                     // pressure (a sliver next to the critical point), the isotherm
                     // may have no liquid root: its one root is found from the ideal gas.
-                    Err(_) if pressure < bubble => self.density_on_branch(
-                        &factors,
-                        temperature,
-                        pressure,
-                        Branch::Supercritical,
-                        None,
-                        None,
-                    )?,
+                    Err(_) if pressure < bubble => on_branch(Branch::Supercritical)?,
                     Err(e) => return Err(e),
                 };
                 return self.single_state(
