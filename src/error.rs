@@ -66,7 +66,40 @@ pub enum Error {
     /// Input that is malformed in some other way (command-line specs, CSV rows).
     #[error("{0}")]
     Input(String),
+
+    /// A flowsheet that cannot be read or resolved, with the place of the fault.
+    #[error("{0}")]
+    Flowsheet(#[from] FlowsheetError),
 }
+
+/// A flowsheet error with its place: file, line, column, equipment id.
+#[derive(Debug, Clone, PartialEq)]
+pub struct FlowsheetError {
+    /// The file (or `--set` override) the error is in.
+    pub file: String,
+    /// 1-based line and column, when known.
+    pub position: Option<(usize, usize)>,
+    /// The equipment concerned, when there is one.
+    pub equipment: Option<String>,
+    /// What is wrong and what was expected.
+    pub message: String,
+}
+
+impl std::fmt::Display for FlowsheetError {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(f, "{}", self.file)?;
+        if let Some((line, column)) = self.position {
+            write!(f, ":{line}:{column}")?;
+        }
+        write!(f, ": ")?;
+        if let Some(id) = &self.equipment {
+            write!(f, "equipment '{id}': ")?;
+        }
+        write!(f, "{}", self.message)
+    }
+}
+
+impl std::error::Error for FlowsheetError {}
 
 /// Shorthand for results in this crate.
 pub type Result<T> = std::result::Result<T, Error>;

@@ -14,6 +14,7 @@ pub mod flowsheet;
 pub mod fluids;
 pub mod numeric;
 pub mod quantity;
+pub mod reading;
 pub mod report;
 pub mod rules;
 pub mod solve;

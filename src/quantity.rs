@@ -7,6 +7,9 @@
 
 use std::fmt;
 
+/// One standard atmosphere, Pa (exact by definition).
+pub const STANDARD_ATMOSPHERE: f64 = 101_325.0;
+
 /// The kind of physical quantity a value must have.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
 pub enum Dimension {
@@ -148,9 +151,9 @@ fn lookup(unit: &str, expected: Dimension) -> Option<UnitRule> {
         "GPa" => rule(Pressure, 1e9, 0.0),
         "bar" | "bara" => rule(Pressure, 1e5, 0.0),
         "mbar" => rule(Pressure, 1e2, 0.0),
-        "atm" => rule(Pressure, 101_325.0, 0.0),
+        "atm" => rule(Pressure, STANDARD_ATMOSPHERE, 0.0),
         "psi" | "psia" => rule(Pressure, 6_894.757_293_168_361, 0.0),
-        "torr" | "Torr" | "mmHg" => rule(Pressure, 101_325.0 / 760.0, 0.0),
+        "torr" | "Torr" | "mmHg" => rule(Pressure, STANDARD_ATMOSPHERE / 760.0, 0.0),
         "kg/s" => rule(MassFlow, 1.0, 0.0),
         "g/s" => rule(MassFlow, 1e-3, 0.0),
         "kg/min" => rule(MassFlow, 1.0 / 60.0, 0.0),

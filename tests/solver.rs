@@ -2,8 +2,8 @@
 //! Linde-Hampson cycle, its balances on every demo flowsheet, its convergence from
 //! poor starting guesses, its diagnostics, and the exchanger's internal pinch.
 
-use cryochain::equipment::{exchanger, Context, Details, Flow};
-use cryochain::flowsheet::plant::ExchangerSpec;
+use cryochain::equipment::exchanger::{self, ExchangerSpec};
+use cryochain::equipment::{Context, Details, Flow};
 use cryochain::flowsheet::{load, load_str, Override};
 use cryochain::fluids;
 use cryochain::solve::{solve, Options};
@@ -277,7 +277,7 @@ fn exchanger_finds_an_internal_pinch() {
         state: n2.state_tp(90.0, 1.5e5).unwrap(),
         flow: 1.25,
     };
-    let design = exchanger::Design {
+    let design = exchanger::Exchanger {
         spec: ExchangerSpec::MinimumApproach(2.0),
         hot_pressure_drop: 0.0,
         cold_pressure_drop: 0.0,
@@ -285,10 +285,10 @@ fn exchanger_finds_an_internal_pinch() {
         segments: 50,
     };
     let context = Context {
-        ambient: 300.0,
         detailed: true,
+        ..Context::new(300.0)
     };
-    let (outlets, performance) = exchanger::run(&hot, &cold, &design, &context, None).unwrap();
+    let (outlets, performance) = exchanger::exchange(&hot, &cold, &design, &context).unwrap();
     let Details::Exchanger(report) = performance.details else {
         panic!("no report")
     };

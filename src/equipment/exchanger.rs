@@ -5,15 +5,34 @@
 //! hot stream enters and the cold stream leaves). Pressures fall linearly along each
 //! side; a heat leak from ambient warms the cold stream evenly along its length.
 
-use super::{Context, Details, Flow, Performance};
-use crate::error::{Error, Result};
-use crate::flowsheet::plant::ExchangerSpec;
+use super::kind::{less_drop, Coupling, EquipmentKind, Ports, Reader};
+use super::{Context, Details, Equipment, Flow, Performance};
+use crate::error::{Error, FlowsheetError, Result};
 use crate::fluids::State;
 use crate::numeric::bracketed_root;
+use crate::quantity::Dimension;
 
-/// The exchanger's design inputs.
+/// How an exchanger's duty is fixed.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum ExchangerSpec {
+    /// The smallest temperature difference anywhere along the exchanger, K.
+    MinimumApproach(f64),
+    /// Hot inlet minus cold outlet temperature, K.
+    WarmEndApproach(f64),
+    /// Hot outlet minus cold inlet temperature, K.
+    ColdEndApproach(f64),
+    /// Duty over the largest duty the two streams allow.
+    Effectiveness(f64),
+    /// Conductance UA, W/K.
+    Conductance(f64),
+}
+
+/// Secant steps tried from the previous pass's duty before the bracketed search.
+const SECANT_STEPS: usize = 8;
+
+/// A two-stream exchanger's parameters.
 #[derive(Debug, Clone, Copy)]
-pub struct Design {
+pub struct Exchanger {
     /// Duty specification.
     pub spec: ExchangerSpec,
     /// Pa.
@@ -24,6 +43,89 @@ pub struct Design {
     pub heat_leak: f64,
     /// Number of segments.
     pub segments: usize,
+}
+
+impl EquipmentKind for Exchanger {
+    const NAME: &'static str = "exchanger";
+    const KEYS: &'static [&'static str] = &[
+        "hot",
+        "cold",
+        "minimum_approach",
+        "warm_end_approach",
+        "cold_end_approach",
+        "effectiveness",
+        "ua",
+        "hot_pressure_drop",
+        "cold_pressure_drop",
+        "heat_leak",
+        "segments",
+    ];
+
+    fn read(r: &mut Reader) -> std::result::Result<Self, FlowsheetError> {
+        use Dimension::*;
+        let approach = |key| r.quantity_opt(key, TemperatureDifference, 0.0, 500.0);
+        let options = [
+            ("minimum_approach", approach("minimum_approach")?.map(ExchangerSpec::MinimumApproach)),
+            ("warm_end_approach", approach("warm_end_approach")?.map(ExchangerSpec::WarmEndApproach)),
+            ("cold_end_approach", approach("cold_end_approach")?.map(ExchangerSpec::ColdEndApproach)),
+            ("effectiveness", r.quantity_opt("effectiveness", Fraction, 0.0, 1.0)?.map(ExchangerSpec::Effectiveness)),
+            ("ua", r.quantity_opt("ua", Conductance, 0.0, 1e12)?.map(ExchangerSpec::Conductance)),
+        ];
+        let given: Vec<(&str, ExchangerSpec)> = options
+            .iter()
+            .filter_map(|(key, spec)| spec.map(|s| (*key, s)))
+            .collect();
+        let spec = match given.as_slice() {
+            [(_, spec)] => *spec,
+            [] => return Err(r.error("kind", NO_SPECIFICATION)),
+            many => {
+                let keys: Vec<&str> = many.iter().map(|(k, _)| *k).collect();
+                return Err(r.error(
+                    many[1].0,
+                    format!(
+                        "an exchanger takes one duty specification, but {} are given: {}",
+                        many.len(),
+                        keys.join(", ")
+                    ),
+                ));
+            }
+        };
+        r.inlet("hot-in", "hot")?;
+        r.inlet("cold-in", "cold")?;
+        Ok(Exchanger {
+            spec,
+            hot_pressure_drop: r.pressure_drop("hot_pressure_drop")?,
+            cold_pressure_drop: r.pressure_drop("cold_pressure_drop")?,
+            heat_leak: r.heat_leak()?,
+            segments: r.whole_opt("segments", 10, 5000)?.unwrap_or(r.default_segments),
+        })
+    }
+}
+
+const NO_SPECIFICATION: &str = "an exchanger needs exactly one of minimum_approach, warm_end_approach, cold_end_approach, effectiveness or ua ";
+
+impl Equipment for Exchanger {
+    fn ports(&self) -> Ports {
+        Ports {
+            inlets: vec!["hot-in", "cold-in"],
+            outlets: vec!["hot-out", "cold-out"],
+        }
+    }
+
+    fn coupling(&self) -> Coupling {
+        Coupling::Sides
+    }
+
+    fn outlet_pressures(&self, inlets: &[Option<f64>]) -> Vec<Option<f64>> {
+        vec![
+            less_drop(inlets[0], self.hot_pressure_drop),
+            less_drop(inlets[1], self.cold_pressure_drop),
+        ]
+    }
+
+    fn run(&self, inlets: &[Flow], context: &Context) -> Result<(Vec<Flow>, Performance)> {
+        exchange(&inlets[0], &inlets[1], self, context)
+    }
 }
 
 /// One point of the temperature–duty profile.
@@ -61,7 +163,7 @@ pub struct ExchangerReport {
 struct Sides<'a> {
     hot: &'a Flow,
     cold: &'a Flow,
-    design: &'a Design,
+    design: &'a Exchanger,
 }
 
 impl Sides<'_> {
@@ -196,7 +298,7 @@ fn secant_from(g: &dyn Fn(f64) -> f64, hint: f64, upper: f64) -> Option<f64> {
         return None;
     }
     let (mut fa, mut fb) = (g(a), g(b));
-    for _ in 0..8 {
+    for _ in 0..SECANT_STEPS {
         if !(fa.is_finite() && fb.is_finite()) || fa == fb {
             return None;
         }
@@ -222,14 +324,15 @@ fn state_at(fluid: &'static crate::fluids::Fluid, t: f64, p: f64) -> Result<Stat
         .or_else(|_| fluid.state_tp(t * (1.0 + 1e-9), p))
 }
 
-/// Solves the exchanger; `duty_hint` (the last pass's duty) starts a duty search.
-pub fn run(
+/// Solves the exchanger for its hot and cold inlets; the context's duty hint (the
+/// last pass's duty) starts a duty search.
+pub fn exchange(
     hot: &Flow,
     cold: &Flow,
-    design: &Design,
+    design: &Exchanger,
     context: &Context,
-    duty_hint: Option<f64>,
 ) -> Result<(Vec<Flow>, Performance)> {
+    let duty_hint = context.duty_hint;
     let sides = Sides { hot, cold, design };
     let (hot_fluid, cold_fluid) = (hot.state.fluid(), cold.state.fluid());
     let degenerate = !(hot.flow > 0.0 && cold.flow > 0.0);

@@ -1,31 +1,84 @@
 //! An adiabatic mixer: the outlet at the lowest inlet pressure with the
 //! flow-weighted enthalpy.
 
-use super::{Flow, Performance};
-use crate::error::Result;
+use super::kind::{EquipmentKind, Ports, Reader};
+use super::{Context, Equipment, Flow, Performance};
+use crate::error::{FlowsheetError, Result};
 
-/// Mixes the inlets.
-pub fn run(inlets: &[Flow]) -> Result<(Vec<Flow>, Performance)> {
-    let flow: f64 = inlets.iter().map(|f| f.flow).sum();
-    let pressure = inlets
-        .iter()
-        .map(|f| f.state.pressure)
-        .fold(f64::INFINITY, f64::min);
-    let first = &inlets[0];
-    if !(flow > 0.0) {
-        return Ok((
-            vec![Flow {
-                state: first.state.clone(),
-                flow: 0.0,
-            }],
-            Performance::default(),
-        ));
+/// The mixer's inlet ports, as many as it has inlets.
+const INLET_PORTS: [&str; 8] = [
+    "in-1", "in-2", "in-3", "in-4", "in-5", "in-6", "in-7", "in-8",
+];
+
+/// A mixer's parameters.
+#[derive(Debug, Clone)]
+pub struct Mixer {
+    /// How many inlets it has (2 to 8).
+    pub inlet_count: usize,
+}
+
+impl EquipmentKind for Mixer {
+    const NAME: &'static str = "mixer";
+    const KEYS: &'static [&'static str] = &["inlets"];
+
+    fn read(r: &mut Reader) -> std::result::Result<Self, FlowsheetError> {
+        let list = r
+            .text_list("inlets")?
+            .ok_or_else(|| r.error("inlets", MISSING_INLETS))?;
+        if !(2..=INLET_PORTS.len()).contains(&list.len()) {
+            return Err(r.error(
+                "inlets",
+                format!("a mixer takes 2 to 8 inlets, not {}", list.len()),
+            ));
+        }
+        let inlet_count = list.len();
+        for (port, reference) in INLET_PORTS.iter().zip(list) {
+            r.add_inlet(port, "inlets", reference);
+        }
+        Ok(Mixer { inlet_count })
     }
-    let enthalpy = inlets
-        .iter()
-        .map(|f| f.flow * f.state.enthalpy)
-        .sum::<f64>()
-        / flow;
-    let state = first.state.fluid().state_ph(pressure, enthalpy)?;
-    Ok((vec![Flow { state, flow }], Performance::default()))
+}
+
+const MISSING_INLETS: &str =
+    "'inlets' is required for a mixer: a list such as [makeup, hx.cold-out]";
+
+impl Equipment for Mixer {
+    fn ports(&self) -> Ports {
+        Ports {
+            inlets: INLET_PORTS[..self.inlet_count].to_vec(),
+            outlets: vec!["out"],
+        }
+    }
+
+    /// The lowest inlet pressure, once every inlet's is known.
+    fn outlet_pressures(&self, inlets: &[Option<f64>]) -> Vec<Option<f64>> {
+        let all: Option<Vec<f64>> = inlets.iter().copied().collect();
+        vec![all.and_then(|v| v.into_iter().reduce(f64::min))]
+    }
+
+    /// Mixes the inlets.
+    fn run(&self, inlets: &[Flow], _context: &Context) -> Result<(Vec<Flow>, Performance)> {
+        let flow: f64 = inlets.iter().map(|f| f.flow).sum();
+        let pressure = inlets
+            .iter()
+            .map(|f| f.state.pressure)
+            .fold(f64::INFINITY, f64::min);
+        let first = &inlets[0];
+        if !(flow > 0.0) {
+            return Ok((
+                vec![Flow {
+                    state: first.state.clone(),
+                    flow: 0.0,
+                }],
+                Performance::default(),
+            ));
+        }
+        let enthalpy = inlets
+            .iter()
+            .map(|f| f.flow * f.state.enthalpy)
+            .sum::<f64>()
+            / flow;
+        let state = first.state.fluid().state_ph(pressure, enthalpy)?;
+        Ok((vec![Flow { state, flow }], Performance::default()))
+    }
 }

@@ -1,20 +1,119 @@
-//! Equipment models, one file per kind. Each takes its inlet flows and returns its
-//! outlet flows with what it did (work, heat, duty). None parses files or prints.
+//! Equipment, one module per kind. Each module owns everything about its kind: the
+//! parameters read from the flowsheet, its keys, its ports, how it joins its
+//! streams, its static pressure rule, its model and the details it reports (see
+//! [`kind`] for the traits). The kinds are registered once, below; adding one is a
+//! new module plus one registration line (docs/architecture.md shows how). None of
+//! the models parses files or prints.
 
-pub mod compressor;
-pub mod cooler;
-pub mod exchanger;
-pub mod expander;
-pub mod feed;
-pub mod mixer;
-pub mod precooler;
-pub mod separator;
-pub mod splitter;
-pub mod valve;
+pub mod kind;
 
-use crate::error::Result;
-use crate::flowsheet::UnitSpec;
+pub use kind::{
+    Coupling, Equipment, EquipmentKind, FeedFlow, Ports, PressureConflict, ProductRole, Reader,
+    Reading, Role, WrittenInlet,
+};
+
+use crate::error::FlowsheetError;
 use crate::fluids::State;
+
+/// Registers the kinds: declares each module and makes [`UnitSpec`] (one variant per
+/// kind, wrapping the kind's parameters), its dispatch to [`Equipment`], and the
+/// table of kinds the reader looks names up in.
+macro_rules! register_kinds {
+    ($($variant:ident($module:ident::$parameters:ident)),* $(,)?) => {
+        $(pub mod $module;)*
+
+        /// Equipment parameters in SI units: one variant per kind, wrapping that
+        /// kind's parameters. It dereferences to the kind's [`Equipment`] behaviour.
+        #[derive(Debug, Clone)]
+        pub enum UnitSpec {
+            $(
+                #[doc = concat!("A `", stringify!($module), "` unit.")]
+                $variant($module::$parameters),
+            )*
+        }
+
+        impl UnitSpec {
+            /// The kind's name as written in files.
+            pub fn kind(&self) -> &'static str {
+                match self {
+                    $(UnitSpec::$variant(_) => <$module::$parameters as EquipmentKind>::NAME,)*
+                }
+            }
+
+            /// The kind's behaviour.
+            pub fn equipment(&self) -> &(dyn Equipment + 'static) {
+                match self {
+                    $(UnitSpec::$variant(parameters) => parameters,)*
+                }
+            }
+        }
+
+        /// Every registered kind, in registration order.
+        pub const KINDS: &[KindEntry] = &[
+            $(KindEntry {
+                name: <$module::$parameters as EquipmentKind>::NAME,
+                keys: <$module::$parameters as EquipmentKind>::KEYS,
+                read: |reader| {
+                    <$module::$parameters as EquipmentKind>::read(reader).map(UnitSpec::$variant)
+                },
+            },)*
+        ];
+    };
+}
+
+register_kinds! {
+    Feed(feed::Feed),
+    Product(product::Product),
+    Compressor(compressor::Compressor),
+    Cooler(cooler::Cooler),
+    Exchanger(exchanger::Exchanger),
+    Precooler(precooler::Precooler),
+    Valve(valve::Valve),
+    Separator(separator::Separator),
+    Mixer(mixer::Mixer),
+    Splitter(splitter::Splitter),
+    Expander(expander::Expander),
+}
+
+/// One registered kind: its name, its keys and its reader.
+#[derive(Clone, Copy)]
+pub struct KindEntry {
+    /// The name written in files.
+    pub name: &'static str,
+    /// Its keys besides `id` and `kind`.
+    pub keys: &'static [&'static str],
+    /// Reads an item of this kind.
+    pub read: fn(&mut Reader) -> Result<UnitSpec, FlowsheetError>,
+}
+
+impl std::fmt::Debug for KindEntry {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("KindEntry")
+            .field("name", &self.name)
+            .finish()
+    }
+}
+
+/// The registered kind called `name`.
+pub fn kind_named(name: &str) -> Option<&'static KindEntry> {
+    KINDS.iter().find(|k| k.name == name)
+}
+
+/// The registered kinds' names in words: `feed, product, … and expander`.
+pub fn kind_names() -> String {
+    let names: Vec<&str> = KINDS.iter().map(|k| k.name).collect();
+    match names.split_last() {
+        Some((last, rest)) if !rest.is_empty() => format!("{} and {last}", rest.join(", ")),
+        _ => names.join(""),
+    }
+}
+
+impl std::ops::Deref for UnitSpec {
+    type Target = dyn Equipment;
+    fn deref(&self) -> &(dyn Equipment + 'static) {
+        self.equipment()
+    }
+}
 
 /// A stream's state and mass flow.
 #[derive(Debug, Clone)]
@@ -33,6 +132,23 @@ pub struct Context {
     /// Work out everything reported (exchanger profiles, conductance, largest duty),
     /// not only what the outlets need; the solver asks for it on its final pass.
     pub detailed: bool,
+    /// The flow the solver gives a feed, kg/s (fixed, or the make-up iterate).
+    pub feed_flow: f64,
+    /// The unit's duty on the previous pass, W, which exchangers solved for their
+    /// duty start from.
+    pub duty_hint: Option<f64>,
+}
+
+impl Context {
+    /// A context at `ambient` K for a quick pass: no details, no feed flow, no hint.
+    pub fn new(ambient: f64) -> Context {
+        Context {
+            ambient,
+            detailed: false,
+            feed_flow: 0.0,
+            duty_hint: None,
+        }
+    }
 }
 
 /// Kind-specific results.
@@ -80,76 +196,4 @@ pub struct Performance {
     pub extra_destroyed: f64,
     /// Kind-specific figures.
     pub details: Details,
-}
-
-/// Runs the model of `spec` on its inlets. `feed_flow` is the flow the solver gives
-/// a feed; `duty_hint` is the unit's duty on the previous pass, which exchangers
-/// solved for their duty start from.
-pub fn run(
-    spec: &UnitSpec,
-    inlets: &[Flow],
-    feed_flow: f64,
-    context: &Context,
-    duty_hint: Option<f64>,
-) -> Result<(Vec<Flow>, Performance)> {
-    match spec {
-        UnitSpec::Feed {
-            fluid,
-            temperature,
-            pressure,
-            ..
-        } => feed::run(fluid, *temperature, *pressure, feed_flow),
-        UnitSpec::Product { .. } => Ok((vec![], Performance::default())),
-        UnitSpec::Compressor {
-            outlet_pressure,
-            model,
-        } => compressor::run(&inlets[0], *outlet_pressure, model, context),
-        UnitSpec::Cooler {
-            outlet_temperature,
-            pressure_drop,
-        } => cooler::run(&inlets[0], *outlet_temperature, *pressure_drop, context),
-        UnitSpec::Exchanger {
-            spec,
-            hot_pressure_drop,
-            cold_pressure_drop,
-            heat_leak,
-            segments,
-        } => exchanger::run(
-            &inlets[0],
-            &inlets[1],
-            &exchanger::Design {
-                spec: *spec,
-                hot_pressure_drop: *hot_pressure_drop,
-                cold_pressure_drop: *cold_pressure_drop,
-                heat_leak: *heat_leak,
-                segments: *segments,
-            },
-            context,
-            duty_hint,
-        ),
-        UnitSpec::Precooler {
-            outlet_temperature,
-            pressure_drop,
-            source,
-            ..
-        } => precooler::run(inlets, *outlet_temperature, *pressure_drop, source, context),
-        UnitSpec::Valve {
-            outlet_pressure,
-            heat_leak,
-        } => valve::run(&inlets[0], *outlet_pressure, *heat_leak, context),
-        UnitSpec::Separator => separator::run(&inlets[0]),
-        UnitSpec::Mixer => mixer::run(inlets),
-        UnitSpec::Splitter { fraction } => splitter::run(&inlets[0], *fraction),
-        UnitSpec::Expander {
-            outlet_pressure,
-            isentropic_efficiency,
-            work,
-        } => expander::run(
-            &inlets[0],
-            *outlet_pressure,
-            *isentropic_efficiency,
-            *work,
-            context,
-        ),
-    }
 }

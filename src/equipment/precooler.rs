@@ -1,13 +1,182 @@
 //! A precooler: takes a stream down to a temperature against a bath of boiling
 //! cryogen, a refrigerator, or a coolant stream of the flowsheet.
 
-use super::{Context, Details, Flow, Performance};
-use crate::error::Result;
-use crate::flowsheet::plant::PrecoolerSource;
+use super::kind::{less_drop, Coupling, EquipmentKind, Ports, Reader, Role};
+use super::{Context, Details, Equipment, Flow, Performance};
+use crate::error::{FlowsheetError, Result};
+use crate::fluids::{self, DeadState, Fluid};
+use crate::quantity::Dimension;
+
+/// Where a precooler puts its heat.
+#[derive(Debug, Clone, Copy)]
+pub enum PrecoolerSource {
+    /// A bath of boiling cryogen supplied from outside the flowsheet.
+    Bath {
+        /// The cryogen.
+        fluid: &'static Fluid,
+        /// Bath pressure, Pa.
+        pressure: f64,
+        /// Work equivalent of one kilogram of the cryogen's liquid, J/kg.
+        liquid_work: f64,
+    },
+    /// A refrigerator that rejects heat to ambient, at a fraction of Carnot.
+    Refrigerator {
+        /// Coefficient of performance over the Carnot value.
+        fraction_of_carnot: f64,
+    },
+    /// A coolant stream of the flowsheet (its `coolant` inlet), boiled or warmed.
+    Coolant,
+}
+
+/// A precooler's parameters.
+#[derive(Debug, Clone)]
+pub struct Precooler {
+    /// Outlet temperature, K.
+    pub outlet_temperature: f64,
+    /// Pressure drop on the process side, Pa.
+    pub pressure_drop: f64,
+    /// Smallest allowed difference between outlet and bath or coolant, K.
+    pub approach: f64,
+    /// Heat sink.
+    pub source: PrecoolerSource,
+}
+
+/// The figure of merit assumed for the plant that makes a bath's cryogen, when the
+/// flowsheet gives no `liquid_work` (common practice for industrial liquefiers,
+/// from memory).
+pub const ASSUMED_CRYOGEN_PLANT_FIGURE_OF_MERIT: f64 = 0.25;
+
+/// The default approach between a precooler's outlet and its sink, K (common
+/// practice).
+pub const DEFAULT_APPROACH: f64 = 1.0;
+
+impl EquipmentKind for Precooler {
+    const NAME: &'static str = "precooler";
+    const KEYS: &'static [&'static str] = &[
+        "inlet",
+        "outlet_temperature",
+        "pressure_drop",
+        "approach",
+        "bath",
+        "bath_pressure",
+        "liquid_work",
+        "refrigerator",
+        "coolant",
+        "flow",
+    ];
+
+    fn read(r: &mut Reader) -> std::result::Result<Self, FlowsheetError> {
+        use Dimension::*;
+        let outlet_temperature = r.quantity("outlet_temperature", Temperature, 1.0, 2000.0)?;
+        let approach = r
+            .quantity_opt("approach", TemperatureDifference, 0.0, 100.0)?
+            .unwrap_or(DEFAULT_APPROACH);
+        r.inlet("in", "inlet")?;
+        let bath = r.text_opt("bath")?;
+        let refrigerator = r.quantity_opt("refrigerator", Fraction, 1e-3, 1.0)?;
+        let coolant = r.text_opt("coolant")?;
+        let bath_pressure = r.quantity_opt("bath_pressure", Pressure, 1.0, 1e8)?;
+        let liquid_work = r.quantity_opt("liquid_work", SpecificEnergy, 0.0, 1e8)?;
+        let sinks = [bath.is_some(), refrigerator.is_some(), coolant.is_some()];
+        if sinks.iter().filter(|given| **given).count() != 1 {
+            return Err(r.error("kind", ONE_SINK));
+        }
+        let source = if let Some(name) = bath {
+            let fluid = fluids::fluid(&name).map_err(|e| r.error("bath", e.to_string()))?;
+            let pressure = bath_pressure.ok_or_else(|| r.error("bath_pressure", MISSING_BATH_PRESSURE))?;
+            let liquid_work = match liquid_work {
+                Some(work) => work,
+                None => default_liquid_work(fluid, pressure, r.ambient)
+                    .map_err(|e| r.error("bath_pressure", e.to_string()))?
+                    .0,
+            };
+            PrecoolerSource::Bath {
+                fluid,
+                pressure,
+                liquid_work,
+            }
+        } else if let Some(fraction) = refrigerator {
+            PrecoolerSource::Refrigerator {
+                fraction_of_carnot: fraction,
+            }
+        } else {
+            r.add_inlet("coolant-in", "coolant", coolant.unwrap_or_default());
+            PrecoolerSource::Coolant
+        };
+        if bath_pressure.is_some() && !matches!(source, PrecoolerSource::Bath { .. }) {
+            return Err(r.error("bath_pressure", "'bath_pressure' goes with 'bath'"));
+        }
+        let pressure_drop = r.pressure_drop("pressure_drop")?;
+        r.flow_basis()?;
+        Ok(Precooler {
+            outlet_temperature,
+            pressure_drop,
+            approach,
+            source,
+        })
+    }
+}
+
+const ONE_SINK: &str = "a precooler needs exactly one heat sink: 'bath' (a cryogen name, with bath_pressure), 'refrigerator' (its fraction of Carnot) or 'coolant' (a stream of the flowsheet)";
+const MISSING_BATH_PRESSURE: &str =
+    "'bath_pressure' is required with a bath: the pressure the cryogen boils at, such as 1.2 bar";
+
+/// The default work equivalent of a cryogen's liquid: the ideal (minimum) work of
+/// liquefying it from the dead state (ambient, 1 atm) to saturated liquid at the bath
+/// pressure, over [`ASSUMED_CRYOGEN_PLANT_FIGURE_OF_MERIT`] (state your own with
+/// `liquid_work`). Returns (work J/kg, ideal work J/kg).
+pub fn default_liquid_work(
+    fluid: &'static Fluid,
+    bath_pressure: f64,
+    ambient: f64,
+) -> Result<(f64, f64)> {
+    let liquid = fluid.state_p_quality(bath_pressure, 0.0)?;
+    let ideal = DeadState::of(fluid, ambient)?.exergy(&liquid);
+    Ok((ideal / ASSUMED_CRYOGEN_PLANT_FIGURE_OF_MERIT, ideal))
+}
+
+impl Equipment for Precooler {
+    fn ports(&self) -> Ports {
+        match self.source {
+            PrecoolerSource::Coolant => Ports {
+                inlets: vec!["in", "coolant-in"],
+                outlets: vec!["out", "coolant-out"],
+            },
+            _ => Ports::through(),
+        }
+    }
+
+    fn coupling(&self) -> Coupling {
+        match self.source {
+            PrecoolerSource::Coolant => Coupling::Sides,
+            _ => Coupling::Joined,
+        }
+    }
+
+    fn role(&self) -> Role {
+        Role::Precooling
+    }
+
+    fn outlet_pressures(&self, inlets: &[Option<f64>]) -> Vec<Option<f64>> {
+        let mut out = vec![less_drop(inlets[0], self.pressure_drop)];
+        out.extend(inlets.get(1).copied());
+        out
+    }
+
+    fn run(&self, inlets: &[Flow], context: &Context) -> Result<(Vec<Flow>, Performance)> {
+        precool(
+            inlets,
+            self.outlet_temperature,
+            self.pressure_drop,
+            &self.source,
+            context,
+        )
+    }
+}
 
 /// Cools `inlets[0]` to `outlet_temperature`; `inlets[1]` is the coolant stream,
 /// when there is one.
-pub fn run(
+pub fn precool(
     inlets: &[Flow],
     outlet_temperature: f64,
     pressure_drop: f64,
@@ -24,7 +193,6 @@ pub fn run(
             fluid: cryogen,
             pressure,
             liquid_work,
-            ..
         } => {
             let duty = m * (process.state.enthalpy - target.enthalpy);
             let saturation = cryogen.saturation_at_pressure(pressure)?;

@@ -1,33 +1,81 @@
 //! A throttling (Joule-Thomson) valve: isenthalpic to the outlet pressure, with an
 //! optional heat in-leak; the outlet may be two-phase.
 
-use super::{Context, Flow, Performance};
-use crate::error::Result;
+use super::kind::{EquipmentKind, Ports, PressureConflict, Reader};
+use super::{Context, Equipment, Flow, Performance};
+use crate::error::{FlowsheetError, Result};
 
-/// Throttles `inlet` to `outlet_pressure`.
-pub fn run(
-    inlet: &Flow,
-    outlet_pressure: f64,
-    heat_leak: f64,
-    context: &Context,
-) -> Result<(Vec<Flow>, Performance)> {
-    let fluid = inlet.state.fluid();
-    let h = inlet.state.enthalpy
-        + if inlet.flow > 0.0 {
-            heat_leak / inlet.flow
-        } else {
-            0.0
+/// A valve's parameters.
+#[derive(Debug, Clone)]
+pub struct Valve {
+    /// Outlet pressure, Pa.
+    pub outlet_pressure: f64,
+    /// Heat leaking in from ambient, W.
+    pub heat_leak: f64,
+}
+
+impl EquipmentKind for Valve {
+    const NAME: &'static str = "valve";
+    const KEYS: &'static [&'static str] = &["inlet", "outlet_pressure", "heat_leak", "flow"];
+
+    fn read(r: &mut Reader) -> std::result::Result<Self, FlowsheetError> {
+        let valve = Valve {
+            outlet_pressure: r.pressure("outlet_pressure")?,
+            heat_leak: r.heat_leak()?,
         };
-    let out = fluid.state_ph(outlet_pressure, h)?;
-    let performance = Performance {
-        heat_in: vec![(heat_leak, context.ambient)],
-        ..Performance::default()
-    };
-    Ok((
-        vec![Flow {
-            state: out,
-            flow: inlet.flow,
-        }],
-        performance,
-    ))
+        r.inlet("in", "inlet")?;
+        r.flow_basis()?;
+        Ok(valve)
+    }
+}
+
+/// The rule shared by the units that only lower the pressure (valves, expanders).
+pub fn only_lowers(kind: &str, outlet: f64, inlet: f64) -> Option<PressureConflict> {
+    (outlet >= inlet).then(|| PressureConflict {
+        key: "outlet_pressure",
+        message: format!(
+            "the outlet pressure {:.4} bar is not below the inlet pressure {:.4} bar: a {kind} only lowers the pressure",
+            outlet / 1e5,
+            inlet / 1e5
+        ),
+    })
+}
+
+impl Equipment for Valve {
+    fn ports(&self) -> Ports {
+        Ports::through()
+    }
+
+    fn outlet_pressures(&self, _inlets: &[Option<f64>]) -> Vec<Option<f64>> {
+        vec![Some(self.outlet_pressure)]
+    }
+
+    fn pressure_conflict(&self, inlet: f64) -> Option<PressureConflict> {
+        only_lowers(Self::NAME, self.outlet_pressure, inlet)
+    }
+
+    /// Throttles the inlet to the outlet pressure at constant enthalpy plus the
+    /// heat leak per unit of flow.
+    fn run(&self, inlets: &[Flow], context: &Context) -> Result<(Vec<Flow>, Performance)> {
+        let inlet = &inlets[0];
+        let fluid = inlet.state.fluid();
+        let h = inlet.state.enthalpy
+            + if inlet.flow > 0.0 {
+                self.heat_leak / inlet.flow
+            } else {
+                0.0
+            };
+        let out = fluid.state_ph(self.outlet_pressure, h)?;
+        let performance = Performance {
+            heat_in: vec![(self.heat_leak, context.ambient)],
+            ..Performance::default()
+        };
+        Ok((
+            vec![Flow {
+                state: out,
+                flow: inlet.flow,
+            }],
+            performance,
+        ))
+    }
 }

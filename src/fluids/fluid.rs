@@ -204,7 +204,7 @@ impl Fluid {
     /// h = 0 and s = 0. A constant a₁ and a τ coefficient a₂ in α⁰ change h by R·Tr·Δa₂
     /// and s by −R·Δa₁, and nothing else.
     fn set_normal_boiling_point_reference(&mut self) -> Result<()> {
-        let saturation = self.saturation_at_pressure(101_325.0)?;
+        let saturation = self.saturation_at_pressure(crate::quantity::STANDARD_ATMOSPHERE)?;
         let liquid = self.properties(saturation.liquid.temperature, saturation.liquid.density);
         self.ideal.lead_tau -= liquid.enthalpy / (self.gas_constant * self.reducing_temperature);
         self.ideal.lead_constant += liquid.entropy / self.gas_constant;

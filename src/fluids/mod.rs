@@ -8,6 +8,7 @@
 pub mod ancillary;
 pub mod density;
 pub mod diagram;
+pub mod exergy;
 pub mod file;
 pub mod flash;
 mod fluid;
@@ -20,6 +21,7 @@ pub mod state;
 pub mod throttling;
 
 pub use density::Branch;
+pub use exergy::DeadState;
 pub use fluid::{Fluid, Point, Properties};
 pub use saturation::Saturation;
 pub use spec::{Property, Spec};

@@ -1,8 +1,9 @@
 //! The checks themselves, one function each, run over a solved plant.
 
 use super::{Finding, Severity};
-use crate::equipment::Details;
-use crate::flowsheet::plant::{CompressorModel, PrecoolerSource, ProductRole};
+use crate::equipment::compressor::CompressorModel;
+use crate::equipment::precooler::{Precooler, PrecoolerSource};
+use crate::equipment::{Details, Flow, Performance};
 use crate::flowsheet::{Plant, UnitSpec};
 use crate::fluids::inversion::InversionCurve;
 use crate::fluids::{Fluid, Phase};
@@ -49,7 +50,7 @@ fn precooling_advice(fluid: &Fluid) -> &'static str {
 
 fn valves(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
     for unit in &plant.units {
-        let UnitSpec::Valve { .. } = unit.spec else {
+        let UnitSpec::Valve(_) = unit.spec else {
             continue;
         };
         let inlet = &solution.streams[unit.inlets[0]];
@@ -105,18 +106,7 @@ fn valves(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
 }
 
 fn no_liquid(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
-    let liquid_products: Vec<_> = plant
-        .units
-        .iter()
-        .filter(|u| {
-            matches!(
-                u.spec,
-                UnitSpec::Product {
-                    role: ProductRole::Liquid
-                }
-            )
-        })
-        .collect();
+    let liquid_products: Vec<_> = plant.liquid_products().collect();
     if liquid_products.is_empty()
         || solution.summary.liquid_flow > 1e-12 * solution.summary.compressed_flow.max(1e-300)
     {
@@ -126,7 +116,7 @@ fn no_liquid(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
     let above: Vec<&str> = plant
         .units
         .iter()
-        .filter(|u| matches!(u.spec, UnitSpec::Valve { .. }))
+        .filter(|u| matches!(u.spec, UnitSpec::Valve(_)))
         .filter(|u| {
             let s = &solution.streams[u.inlets[0]];
             s.state
@@ -142,7 +132,7 @@ fn no_liquid(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
         let vapour_valves: Vec<String> = plant
             .units
             .iter()
-            .filter(|u| matches!(u.spec, UnitSpec::Valve { .. }))
+            .filter(|u| matches!(u.spec, UnitSpec::Valve(_)))
             .map(|u| &solution.streams[u.outlets[0]])
             .filter(|s| s.state.phase != Phase::TwoPhase)
             .map(|s| format!("{:.2} K", s.state.temperature))
@@ -208,7 +198,7 @@ fn exchangers(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
 
 fn compressors(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
     for (unit, result) in plant.units.iter().zip(&solution.units) {
-        let UnitSpec::Compressor { model, .. } = &unit.spec else {
+        let UnitSpec::Compressor(compressor) = &unit.spec else {
             continue;
         };
         let inlet = &solution.streams[unit.inlets[0]];
@@ -229,7 +219,7 @@ fn compressors(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
             Details::Compressor {
                 discharge_temperatures,
             },
-        ) = (model, &result.performance.details)
+        ) = (&compressor.model, &result.performance.details)
         {
             let hottest = discharge_temperatures
                 .iter()
@@ -264,70 +254,106 @@ fn coolers_and_precoolers(plant: &Plant, solution: &Solution, out: &mut Vec<Find
             continue;
         };
         match &unit.spec {
-            UnitSpec::Cooler { outlet_temperature, .. } if *outlet_temperature < plant.ambient => out.push(
-                Finding::new(
-                    "cooler-below-ambient",
-                    Severity::Error,
-                    Some(&unit.id),
-                    format!("a cooler against ambient air or cooling water cannot reach {outlet_temperature:.2} K, below the ambient {:.2} K", plant.ambient),
-                    "use a precooler (bath or refrigerator) for temperatures below ambient".to_string(),
-                )
-                .value("outlet_temperature_K", *outlet_temperature)
-                .value("ambient_K", plant.ambient),
+            UnitSpec::Cooler(cooler) if cooler.outlet_temperature < plant.ambient => out.push(
+                cooler_below_ambient(&unit.id, cooler.outlet_temperature, plant.ambient),
             ),
-            UnitSpec::Precooler { outlet_temperature, approach, source, .. } => {
-                if outlet.state.temperature > inlet.state.temperature + 1e-9 || result.performance.duty.unwrap_or(0.0) < 0.0 {
-                    out.push(
-                        Finding::new(
-                            "precooler-heats",
-                            Severity::Error,
-                            Some(&unit.id),
-                            format!("the stream arrives at {:.2} K, colder than the target {:.2} K: the precooler would heat it", inlet.state.temperature, outlet_temperature),
-                            "remove the precooler or lower its target".to_string(),
-                        )
-                        .value("inlet_temperature_K", inlet.state.temperature)
-                        .value("outlet_temperature_K", outlet.state.temperature),
-                    );
-                }
-                let sink = match (source, &result.performance.details) {
-                    (PrecoolerSource::Refrigerator { .. }, _) => None,
-                    (_, Details::Precooler { sink_temperature, .. }) => Some(*sink_temperature),
-                    _ => None,
-                };
-                if let Some(sink) = sink {
-                    if *outlet_temperature < sink + approach - 1e-9 {
-                        out.push(
-                            Finding::new(
-                                "precooler-colder-than-bath",
-                                Severity::Error,
-                                Some(&unit.id),
-                                format!(
-                                    "the target {outlet_temperature:.2} K is colder than the bath or coolant at {sink:.2} K plus the approach {approach:.2} K allows"
-                                ),
-                                format!("raise the target to at least {:.2} K, or lower the bath pressure", sink + approach),
-                            )
-                            .value("outlet_temperature_K", *outlet_temperature)
-                            .value("sink_temperature_K", sink)
-                            .value("approach_K", *approach),
-                        );
-                    }
-                }
-                if matches!(source, PrecoolerSource::Coolant) && outlet.state.temperature > outlet_temperature + 1e-6 {
-                    out.push(
-                        Finding::new(
-                            "precooler-short-of-target",
-                            Severity::Warning,
-                            Some(&unit.id),
-                            format!("the coolant can take only part of the duty: the stream leaves at {:.2} K instead of {outlet_temperature:.2} K", outlet.state.temperature),
-                            "send more coolant (a larger flow in the coolant's loop) or accept the warmer outlet".to_string(),
-                        )
-                        .value("outlet_temperature_K", outlet.state.temperature)
-                        .value("target_K", *outlet_temperature),
-                    );
-                }
+            UnitSpec::Precooler(precooler) => {
+                precooler_findings(&unit.id, precooler, inlet, outlet, &result.performance, out)
             }
             _ => {}
         }
+    }
+}
+
+fn cooler_below_ambient(id: &str, target: f64, ambient: f64) -> Finding {
+    Finding::new(
+        "cooler-below-ambient",
+        Severity::Error,
+        Some(id),
+        format!(
+            "a cooler against ambient air or cooling water cannot reach {target:.2} K, below the ambient {ambient:.2} K"
+        ),
+        "use a precooler (bath or refrigerator) for temperatures below ambient".to_string(),
+    )
+    .value("outlet_temperature_K", target)
+    .value("ambient_K", ambient)
+}
+
+fn precooler_findings(
+    id: &str,
+    precooler: &Precooler,
+    inlet: &Flow,
+    outlet: &Flow,
+    performance: &Performance,
+    out: &mut Vec<Finding>,
+) {
+    let target = precooler.outlet_temperature;
+    let approach = precooler.approach;
+    let heats = outlet.state.temperature > inlet.state.temperature + 1e-9
+        || performance.duty.unwrap_or(0.0) < 0.0;
+    if heats {
+        out.push(
+            Finding::new(
+                "precooler-heats",
+                Severity::Error,
+                Some(id),
+                format!(
+                    "the stream arrives at {:.2} K, colder than the target {target:.2} K: the precooler would heat it",
+                    inlet.state.temperature
+                ),
+                "remove the precooler or lower its target".to_string(),
+            )
+            .value("inlet_temperature_K", inlet.state.temperature)
+            .value("outlet_temperature_K", outlet.state.temperature),
+        );
+    }
+    let sink = match (&precooler.source, &performance.details) {
+        (PrecoolerSource::Refrigerator { .. }, _) => None,
+        (
+            _,
+            Details::Precooler {
+                sink_temperature, ..
+            },
+        ) => Some(*sink_temperature),
+        _ => None,
+    };
+    if let Some(sink) = sink.filter(|sink| target < sink + approach - 1e-9) {
+        out.push(
+            Finding::new(
+                "precooler-colder-than-bath",
+                Severity::Error,
+                Some(id),
+                format!(
+                    "the target {target:.2} K is colder than the bath or coolant at {sink:.2} K plus the approach {approach:.2} K allows"
+                ),
+                format!(
+                    "raise the target to at least {:.2} K, or lower the bath pressure",
+                    sink + approach
+                ),
+            )
+            .value("outlet_temperature_K", target)
+            .value("sink_temperature_K", sink)
+            .value("approach_K", approach),
+        );
+    }
+    let short = matches!(precooler.source, PrecoolerSource::Coolant)
+        && outlet.state.temperature > target + 1e-6;
+    if short {
+        out.push(
+            Finding::new(
+                "precooler-short-of-target",
+                Severity::Warning,
+                Some(id),
+                format!(
+                    "the coolant can take only part of the duty: the stream leaves at {:.2} K instead of {target:.2} K",
+                    outlet.state.temperature
+                ),
+                "send more coolant (a larger flow in the coolant's loop) or accept the warmer outlet"
+                    .to_string(),
+            )
+            .value("outlet_temperature_K", outlet.state.temperature)
+            .value("target_K", target),
+        );
     }
 }
 

@@ -7,10 +7,11 @@ pub mod results;
 
 pub use results::{Solution, Summary, UnitResult};
 
-use crate::equipment::{self, Context, Flow, Performance};
+use crate::equipment::{Context, FeedFlow, Flow, Performance, Role};
 use crate::error::{Error, Result};
-use crate::flowsheet::plant::{flow_networks, static_pressures, FeedFlow, Method};
-use crate::flowsheet::{Plant, UnitSpec};
+use crate::flowsheet::plant::{flow_networks, static_pressures, Method};
+use crate::flowsheet::Plant;
+use crate::quantity::STANDARD_ATMOSPHERE;
 use converge::FixedPoint;
 use order::Sequence;
 
@@ -106,24 +107,23 @@ impl Problem<'_> {
                     })
                 })
                 .collect::<Result<_>>()?;
-            let feed_flow = match unit.spec {
-                UnitSpec::Feed {
-                    flow: FeedFlow::Fixed(f),
-                    ..
-                } => f,
-                UnitSpec::Feed {
-                    flow: FeedFlow::Balance,
-                    ..
-                } => make_up[u],
-                _ => 0.0,
+            let role = unit.spec.role();
+            let context = Context {
+                feed_flow: match role {
+                    Role::Feed(FeedFlow::Fixed(f)) => f,
+                    Role::Feed(FeedFlow::Balance) => make_up[u],
+                    _ => 0.0,
+                },
+                duty_hint: self.duty_hints.borrow()[u],
+                ..self.context
             };
-            let hint = self.duty_hints.borrow()[u];
-            let (mut outlets, performance) =
-                equipment::run(&unit.spec, &inlets, feed_flow, &self.context, hint)
-                    .map_err(|e| Error::Input(format!("equipment '{}': {e}", unit.id)))?;
+            let (mut outlets, performance) = unit
+                .spec
+                .run(&inlets, &context)
+                .map_err(|e| Error::Input(format!("equipment '{}': {e}", unit.id)))?;
             self.duty_hints.borrow_mut()[u] = performance.duty;
             if let (Some(basis), Some(first)) = (unit.flow_basis, outlets.first_mut()) {
-                if !matches!(unit.spec, UnitSpec::Feed { .. }) {
+                if !matches!(role, Role::Feed(_)) {
                     first.flow = basis;
                 }
             }
@@ -158,17 +158,16 @@ impl Problem<'_> {
         let network = self.networks[plant.units[feed].outlets[0]];
         let mut out = 0.0;
         for unit in &plant.units {
-            match unit.spec {
-                UnitSpec::Product { .. } => {
+            match unit.spec.role() {
+                Role::Product(_) => {
                     let s = unit.inlets[0];
                     if self.networks[s] == network {
                         out += computed[s].as_ref().map_or(0.0, |f| f.flow);
                     }
                 }
-                UnitSpec::Feed {
-                    flow: FeedFlow::Fixed(f),
-                    ..
-                } if self.networks[unit.outlets[0]] == network => out -= f,
+                Role::Feed(FeedFlow::Fixed(f)) if self.networks[unit.outlets[0]] == network => {
+                    out -= f
+                }
                 _ => {}
             }
         }
@@ -176,13 +175,8 @@ impl Problem<'_> {
             .units
             .iter()
             .filter(|u| {
-                matches!(
-                    u.spec,
-                    UnitSpec::Feed {
-                        flow: FeedFlow::Balance,
-                        ..
-                    }
-                ) && self.networks[u.outlets[0]] == network
+                u.spec.role() == Role::Feed(FeedFlow::Balance)
+                    && self.networks[u.outlets[0]] == network
             })
             .count()
             .max(1);
@@ -220,7 +214,7 @@ pub fn solve(plant: &Plant, options: &Options) -> Result<Solution> {
     for &s in &sequence.tears {
         let stream = &plant.streams[s];
         let fluid = stream.fluid;
-        let p = pressures[s].unwrap_or(101_325.0);
+        let p = pressures[s].unwrap_or(STANDARD_ATMOSPHERE);
         let t = initial_t.clamp(fluid.temperature_min * 1.001, fluid.temperature_max);
         let guess = fluid
             .state_tp(t, p)
@@ -236,13 +230,7 @@ pub fn solve(plant: &Plant, options: &Options) -> Result<Solution> {
         start.extend([1.0, guess.enthalpy / h_scale, fraction]);
     }
     for (u, unit) in plant.units.iter().enumerate() {
-        if matches!(
-            unit.spec,
-            UnitSpec::Feed {
-                flow: FeedFlow::Balance,
-                ..
-            }
-        ) {
+        if unit.spec.role() == Role::Feed(FeedFlow::Balance) {
             variables.push(Variable::MakeUp(u));
             scales.push(basis);
             start.push(0.1);
@@ -254,10 +242,7 @@ pub fn solve(plant: &Plant, options: &Options) -> Result<Solution> {
         variables: variables.clone(),
         scales,
         networks,
-        context: Context {
-            ambient: plant.ambient,
-            detailed: false,
-        },
+        context: Context::new(plant.ambient),
         last: None,
         duty_hints: std::cell::RefCell::new(vec![None; plant.units.len()]),
     };

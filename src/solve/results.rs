@@ -11,11 +11,11 @@
 //! destroyed, which the exergy balance checks.
 
 use super::order::Sequence;
-use crate::equipment::{Details, Flow, Performance};
+use crate::equipment::{Details, Flow, Performance, ProductRole, Role};
 use crate::error::Result;
-use crate::flowsheet::plant::{flow_networks, ProductRole};
-use crate::flowsheet::{Plant, UnitSpec};
-use crate::fluids::Fluid;
+use crate::flowsheet::plant::flow_networks;
+use crate::flowsheet::Plant;
+use crate::fluids::{DeadState, Fluid};
 use std::collections::HashMap;
 
 /// One unit's results.
@@ -101,25 +101,24 @@ pub struct Solution {
     pub tear_vector: Vec<f64>,
 }
 
-/// Dead-state (h₀, s₀) per fluid.
+/// The dead state of each fluid met, found once.
 struct DeadStates {
     ambient: f64,
-    cache: HashMap<String, (f64, f64)>,
+    cache: HashMap<String, DeadState>,
 }
 
 impl DeadStates {
     fn exergy(&mut self, flow: &Flow) -> Result<f64> {
         let fluid: &'static Fluid = flow.state.fluid();
-        let (h0, s0) = match self.cache.get(&fluid.name) {
-            Some(v) => *v,
+        let dead = match self.cache.get(&fluid.name) {
+            Some(dead) => *dead,
             None => {
-                let dead = fluid.state_tp(self.ambient.min(fluid.temperature_max), 101_325.0)?;
-                self.cache
-                    .insert(fluid.name.clone(), (dead.enthalpy, dead.entropy));
-                (dead.enthalpy, dead.entropy)
+                let dead = DeadState::of(fluid, self.ambient)?;
+                self.cache.insert(fluid.name.clone(), dead);
+                dead
             }
         };
-        Ok((flow.state.enthalpy - h0) - self.ambient * (flow.state.entropy - s0))
+        Ok(dead.exergy(&flow.state))
     }
 }
 
@@ -150,15 +149,15 @@ pub fn assemble(
         let inflow: Vec<&Flow> = unit.inlets.iter().map(|&i| &streams[i]).collect();
         let outflow: Vec<&Flow> = unit.outlets.iter().map(|&i| &streams[i]).collect();
         let mut destroyed = 0.0;
-        match unit.spec {
-            UnitSpec::Feed { .. } => {
+        match unit.spec.role() {
+            Role::Feed(_) => {
                 for f in &outflow {
                     feed_mass += f.flow;
                     energy_in += f.flow * f.state.enthalpy;
                     feed_exergy += f.flow * dead.exergy(f)?;
                 }
             }
-            UnitSpec::Product { role } => {
+            Role::Product(role) => {
                 for f in &inflow {
                     product_mass += f.flow;
                     energy_out += f.flow * f.state.enthalpy;
@@ -190,7 +189,7 @@ pub fn assemble(
                 .sum::<f64>();
         s.shaft_power += performance.work_in;
         s.precooling_work += performance.precooling_work;
-        if matches!(unit.spec, UnitSpec::Precooler { .. }) {
+        if unit.spec.role() == Role::Precooling {
             s.precooling_duty += performance.duty.unwrap_or(0.0);
         }
         if let Details::Precooler {
@@ -217,25 +216,14 @@ pub fn assemble(
     s.exergy_supplied += feed_exergy;
     // Compressed flow of the networks that make liquid.
     let liquid_networks: Vec<usize> = plant
-        .units
-        .iter()
-        .filter(|u| {
-            matches!(
-                u.spec,
-                UnitSpec::Product {
-                    role: ProductRole::Liquid
-                }
-            )
-        })
+        .liquid_products()
         .map(|u| networks[u.inlets[0]])
         .collect();
     for network in dedup(liquid_networks) {
         let compressed = plant
             .units
             .iter()
-            .filter(|u| {
-                matches!(u.spec, UnitSpec::Compressor { .. }) && networks[u.inlets[0]] == network
-            })
+            .filter(|u| u.spec.role() == Role::Compression && networks[u.inlets[0]] == network)
             .map(|u| streams[u.inlets[0]].flow)
             .fold(0.0f64, f64::max);
         s.compressed_flow += compressed;

@@ -3,7 +3,7 @@
 
 use super::locate::Locator;
 use super::schema::EquipmentEntry;
-use super::FlowsheetError;
+use crate::error::FlowsheetError;
 use crate::quantity::{self, Dimension};
 use std::cell::RefCell;
 use std::collections::BTreeSet;
@@ -190,7 +190,41 @@ impl<'a> Params<'a> {
         Ok(Some(value))
     }
 
-    /// Checks that every key written was read: unknown keys are errors.
+    /// The kind written for this item.
+    pub fn kind(&self) -> &str {
+        &self.entry.kind
+    }
+
+    /// The item's id.
+    pub fn id(&self) -> &str {
+        &self.entry.id
+    }
+
+    /// Refuses the first key written that is not in `known` (the kind's keys), listing
+    /// them; done before anything is read, so that a misspelt key is reported as such
+    /// and not as a missing one.
+    pub fn check_known(&self, known: &[&str]) -> Result<(), FlowsheetError> {
+        match self
+            .entry
+            .params
+            .keys()
+            .find(|k| !known.contains(&k.as_str()))
+        {
+            None => Ok(()),
+            Some(key) => Err(self.error(
+                key,
+                format!(
+                    "unknown key '{key}' for a {}; its keys are: id, kind, {}",
+                    self.entry.kind,
+                    known.join(", ")
+                ),
+            )),
+        }
+    }
+
+    /// Checks that every key written was read: a key of the kind that does not apply
+    /// to the variant written (a staged compressor's `stages` on an isothermal one)
+    /// is an error too.
     pub fn finish(&self) -> Result<(), FlowsheetError> {
         let used = self.used.borrow();
         for key in self.entry.params.keys() {
