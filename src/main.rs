@@ -1,4 +1,6 @@
-//! The `cryochain` binary: parses arguments, runs the command, prints the result.
+//! The `cryochain` binary: parses arguments, runs the command, and is the one place
+//! that writes: notes to stderr, results to stdout, then any error to stderr with
+//! its exit code.
 
 mod cli;
 
@@ -6,12 +8,17 @@ use clap::Parser;
 
 fn main() {
     let parsed = cli::Cli::parse();
-    match cli::run(parsed) {
-        Ok(output) => {
-            print!("{output}");
-            std::process::exit(cli::exit::OK);
-        }
-        Err(failure) => {
+    let (output, failure) = match cli::run(parsed) {
+        Ok(output) => (output, None),
+        Err(mut failure) => (std::mem::take(&mut failure.partial), Some(failure)),
+    };
+    for note in &output.notes {
+        eprintln!("{note}");
+    }
+    print!("{}", output.stdout);
+    match failure {
+        None => std::process::exit(cli::exit::OK),
+        Some(failure) => {
             eprintln!("error: {}", failure.message);
             std::process::exit(failure.code);
         }

@@ -53,12 +53,13 @@ impl EquipmentKind for Compressor {
     ];
 
     fn read(r: &mut Reader) -> std::result::Result<Self, FlowsheetError> {
+        use Dimension::Temperature;
         let outlet_pressure = r.pressure("outlet_pressure")?;
         let model = match r.choice("model", "model", &["isothermal", "staged"])? {
             0 => CompressorModel::Isothermal {
                 efficiency: r.efficiency("isothermal_efficiency", Some(1.0))?,
                 temperature: r
-                    .quantity_opt("temperature", Dimension::Temperature, 1.0, 2000.0)?
+                    .quantity_opt("temperature", Temperature, 1.0, 2000.0)?
                     .unwrap_or(r.ambient),
             },
             _ => {
@@ -69,7 +70,7 @@ impl EquipmentKind for Compressor {
                     stages,
                     isentropic_efficiency: r.efficiency("isentropic_efficiency", None)?,
                     intercooler_temperature: r
-                        .quantity_opt("intercooler_temperature", Dimension::Temperature, 150.0, 500.0)?
+                        .quantity_opt("intercooler_temperature", Temperature, 150.0, 500.0)?
                         .unwrap_or(r.ambient),
                 }
             }

@@ -63,13 +63,15 @@ impl EquipmentKind for Exchanger {
 
     fn read(r: &mut Reader) -> std::result::Result<Self, FlowsheetError> {
         use Dimension::*;
+        use ExchangerSpec as Spec;
         let approach = |key| r.quantity_opt(key, TemperatureDifference, 0.0, 500.0);
+        let effectiveness = r.quantity_opt("effectiveness", Fraction, 0.0, 1.0);
         let options = [
-            ("minimum_approach", approach("minimum_approach")?.map(ExchangerSpec::MinimumApproach)),
-            ("warm_end_approach", approach("warm_end_approach")?.map(ExchangerSpec::WarmEndApproach)),
-            ("cold_end_approach", approach("cold_end_approach")?.map(ExchangerSpec::ColdEndApproach)),
-            ("effectiveness", r.quantity_opt("effectiveness", Fraction, 0.0, 1.0)?.map(ExchangerSpec::Effectiveness)),
-            ("ua", r.quantity_opt("ua", Conductance, 0.0, 1e12)?.map(ExchangerSpec::Conductance)),
+            ("minimum_approach", approach("minimum_approach")?.map(Spec::MinimumApproach)),
+            ("warm_end_approach", approach("warm_end_approach")?.map(Spec::WarmEndApproach)),
+            ("cold_end_approach", approach("cold_end_approach")?.map(Spec::ColdEndApproach)),
+            ("effectiveness", effectiveness?.map(Spec::Effectiveness)),
+            ("ua", r.quantity_opt("ua", Conductance, 0.0, 1e12)?.map(Spec::Conductance)),
         ];
         let given: Vec<(&str, ExchangerSpec)> = options
             .iter()

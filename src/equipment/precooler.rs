@@ -83,7 +83,8 @@ impl EquipmentKind for Precooler {
         }
         let source = if let Some(name) = bath {
             let fluid = fluids::fluid(&name).map_err(|e| r.error("bath", e.to_string()))?;
-            let pressure = bath_pressure.ok_or_else(|| r.error("bath_pressure", MISSING_BATH_PRESSURE))?;
+            let pressure =
+                bath_pressure.ok_or_else(|| r.error("bath_pressure", MISSING_BATH_PRESSURE))?;
             let liquid_work = match liquid_work {
                 Some(work) => work,
                 None => default_liquid_work(fluid, pressure, r.ambient)

@@ -92,7 +92,11 @@ impl Resolver<'_> {
                 }
             };
             if let Some(first) = used.insert((source, port), unit) {
-                return Err(params.error(inlet.key, format!("the outlet {id}.{port} already feeds '{}'; use a splitter to send a stream to two places", units[first].id)));
+                let message = format!(
+                    "the outlet {id}.{port} already feeds '{}'; use a splitter to send a stream to two places",
+                    units[first].id
+                );
+                return Err(params.error(inlet.key, message));
             }
             streams.push((
                 PortRef { unit: source, port },
@@ -180,7 +184,11 @@ impl Resolver<'_> {
                     if let Some(f) = candidate {
                         for other in &from_inlets {
                             if !std::ptr::eq(*other, f) {
-                                return Err(self.item_error(ui, format!("{} and {} meet here; a stream carries one fluid (use an exchanger or a coolant precooler to couple two fluids)", other.name, f.name)));
+                                let message = format!(
+                                    "{} and {} meet here; a stream carries one fluid (use an exchanger or a coolant precooler to couple two fluids)",
+                                    other.name, f.name
+                                );
+                                return Err(self.item_error(ui, message));
                             }
                         }
                         if fluid[out].is_none() {
@@ -205,7 +213,11 @@ impl Resolver<'_> {
                             && unit.inlets.first() != Some(&i);
                         if !std::ptr::eq(have, want) && !other_side {
                             let params = Params::new(&self.raw.equipment[ui], ui, self.place);
-                            return Err(params.error(key, format!("the stream arriving here carries {}, not {}: a fluid cannot change across a stream", have.name, want.name)));
+                            let message = format!(
+                                "the stream arriving here carries {}, not {}: a fluid cannot change across a stream",
+                                have.name, want.name
+                            );
+                            return Err(params.error(key, message));
                         }
                     }
                 }

@@ -38,11 +38,13 @@ impl Resolver<'_> {
                 }
                 Some([_]) => {}
                 Some(many) => {
-                    let names: Vec<&str> = many.iter().map(|&u| plant.units[u].id.as_str()).collect();
-                    return Err(self.item_error(many[1], format!(
+                    let names: Vec<&str> =
+                        many.iter().map(|&u| plant.units[u].id.as_str()).collect();
+                    let message = format!(
                         "the flow is over-specified: {} all fix the flow of the same network; keep one and make feeds 'flow: balance'",
                         names.join(", ")
-                    )));
+                    );
+                    return Err(self.item_error(many[1], message));
                 }
             }
         }

@@ -6,6 +6,7 @@ pub mod inversion;
 pub mod plot;
 pub mod solution;
 pub mod state;
+pub mod study;
 pub mod table;
 pub mod tables_csv;
 

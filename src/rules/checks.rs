@@ -24,6 +24,8 @@ pub fn check(plant: &Plant, solution: &Solution) -> Vec<Finding> {
     findings
 }
 
+const OUTSIDE_CURVE_HINT: &str = "lower the high pressure towards the inversion pressure at the inlet temperature, or precool further: a Linde-Hampson loop's yield peaks when the high pressure equals the inversion pressure at the warm end of the last recuperator";
+
 /// The pressure of the inversion curve at temperature T, where the curve reaches it.
 fn inversion_pressure_at(curve: &InversionCurve, t: f64) -> Option<f64> {
     curve.curve.windows(2).find_map(|w| {
@@ -82,17 +84,30 @@ fn valves(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
         let outside = inlet.state.joule_thomson().is_some_and(|mu| mu < 0.0);
         if warms || outside {
             let p_inv = inversion_pressure_at(curve, t_in);
+            let at_this_temperature = p_inv.map_or(String::new(), |p| {
+                format!(", whose pressure at this temperature is {:.1} bar", p / 1e5)
+            });
+            let warming = if warms {
+                format!(
+                    "; the expansion warms the stream by {:.3} K",
+                    outlet.state.temperature - t_in
+                )
+            } else {
+                String::new()
+            };
             let mut finding = Finding::new(
-                if warms { "valve-warms" } else { "valve-outside-inversion-curve" },
+                if warms {
+                    "valve-warms"
+                } else {
+                    "valve-outside-inversion-curve"
+                },
                 Severity::Warning,
                 Some(id),
                 format!(
-                    "the valve inlet ({t_in:.2} K, {:.2} bar) lies outside the inversion curve{}{}",
+                    "the valve inlet ({t_in:.2} K, {:.2} bar) lies outside the inversion curve{at_this_temperature}{warming}",
                     inlet.state.pressure / 1e5,
-                    p_inv.map_or(String::new(), |p| format!(", whose pressure at this temperature is {:.1} bar", p / 1e5)),
-                    if warms { format!("; the expansion warms the stream by {:.3} K", outlet.state.temperature - t_in) } else { String::new() }
                 ),
-                "lower the high pressure towards the inversion pressure at the inlet temperature, or precool further: a Linde-Hampson loop's yield peaks when the high pressure equals the inversion pressure at the warm end of the last recuperator".to_string(),
+                OUTSIDE_CURVE_HINT.to_string(),
             )
             .value("inlet_temperature_K", t_in)
             .value("inlet_pressure_Pa", inlet.state.pressure)
@@ -395,6 +410,14 @@ fn ranges(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
         let near_triple = t < f.temperature_min * 1.01;
         let near_pressure = flow.state.pressure > 0.99 * f.pressure_max;
         if near_triple || near_pressure {
+            let limit = if near_triple {
+                format!(
+                    "lowest temperature {:.3} K (solid may form)",
+                    f.temperature_min
+                )
+            } else {
+                format!("highest pressure {:.0} MPa", f.pressure_max / 1e6)
+            };
             out.push(
                 Finding::new(
                     "state-near-range-limit",
@@ -405,7 +428,7 @@ fn ranges(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
                         solution.stream_names[s],
                         flow.state.pressure / 1e5,
                         f.name,
-                        if near_triple { format!("lowest temperature {:.3} K (solid may form)", f.temperature_min) } else { format!("highest pressure {:.0} MPa", f.pressure_max / 1e6) }
+                        limit
                     ),
                     "keep streams clear of the triple point (raise the pressure there) and of the equation's pressure limit".to_string(),
                 )

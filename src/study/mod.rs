@@ -4,6 +4,7 @@
 //! variable) is solved in sequence with warm starts from its previous case, and rows
 //! are independent. Shards split the rows, so merged shards equal the whole study.
 
+pub mod compare;
 pub mod optimize;
 
 use crate::error::{Error, Result};

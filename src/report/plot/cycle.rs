@@ -5,7 +5,7 @@
 
 use super::tp_diagram::{self, ValvePath};
 use super::{chart, drawing, ensure_font, legend};
-use crate::equipment::Details;
+use crate::equipment::{Coupling, Details};
 use crate::error::Result;
 use crate::flowsheet::{Plant, UnitSpec};
 use crate::fluids::diagram::{saturation_dome, throttling_path};
@@ -44,7 +44,7 @@ pub fn write_all(plant: &Plant, solution: &Solution, dir: &Path) -> Result<Vec<P
         let valves: Vec<ValvePath> = plant
             .units
             .iter()
-            .filter(|u| matches!(u.spec, UnitSpec::Valve { .. }))
+            .filter(|u| matches!(u.spec, UnitSpec::Valve(_)))
             .filter(|u| std::ptr::eq(solution.streams[u.inlets[0]].state.fluid(), *fluid))
             .map(|u| {
                 let inlet = &solution.streams[u.inlets[0]].state;
@@ -144,15 +144,14 @@ fn ts_diagram(
     // Process lines: each unit's inlet to its outlet on the same side.
     let mut segments = Vec::new();
     for unit in &plant.units {
-        let pairs: Vec<(usize, usize)> = match unit.spec {
-            UnitSpec::Exchanger { .. } => unit
+        let pairs: Vec<(usize, usize)> = match unit.spec.coupling() {
+            Coupling::Sides => unit
                 .inlets
                 .iter()
                 .copied()
                 .zip(unit.outlets.iter().copied())
                 .collect(),
-            UnitSpec::Product { .. } | UnitSpec::Feed { .. } => vec![],
-            _ => unit
+            Coupling::Joined => unit
                 .inlets
                 .iter()
                 .flat_map(|&i| unit.outlets.iter().map(move |&o| (i, o)))

@@ -1,0 +1,425 @@
+//! One function per command: each reads its inputs, calls the library and returns
+//! what to print. None of them prints.
+
+use super::{exit, Failure, Format, FormatArgs, Output};
+use cryochain::error::Error;
+use cryochain::flowsheet::{self, Override, Plant};
+use cryochain::fluids::{self, Spec};
+use cryochain::quantity::{self, Dimension};
+use cryochain::report;
+use cryochain::rules::{self, Severity};
+use cryochain::study;
+use std::path::{Path, PathBuf};
+
+/// The built-in demo flowsheet.
+const DEMO: &str = include_str!("../../flowsheets/hydrogen-ln2-precooled.yaml");
+/// Its name in messages.
+const DEMO_NAME: &str = "built-in demo (flowsheets/hydrogen-ln2-precooled.yaml)";
+
+fn parse_overrides(set: &[String]) -> Result<Vec<Override>, Failure> {
+    Ok(set
+        .iter()
+        .map(|s| Override::parse(s))
+        .collect::<Result<Vec<_>, _>>()?)
+}
+
+/// Reads a flowsheet (or the built-in demo, saying so in `notes`) with overrides.
+fn load_plant(
+    file: Option<&Path>,
+    set: &[String],
+    notes: &mut Vec<String>,
+) -> Result<Plant, Failure> {
+    let overrides = parse_overrides(set)?;
+    Ok(match file {
+        Some(path) => flowsheet::load(path, &overrides)?,
+        None => {
+            notes.push(format!("no flowsheet given: solving the {DEMO_NAME}"));
+            flowsheet::load_str(DEMO, DEMO_NAME, &overrides)?
+        }
+    })
+}
+
+fn read_text(path: &Path) -> Result<String, Failure> {
+    std::fs::read_to_string(path)
+        .map_err(|e| Failure::new(format!("cannot read {}: {e}", path.display()), exit::IO))
+}
+
+fn write_text(path: &Path, text: &str) -> Result<(), Failure> {
+    std::fs::write(path, text)
+        .map_err(|e| Failure::new(format!("cannot write {}: {e}", path.display()), exit::IO))
+}
+
+/// `solve`: results of a flowsheet, with plots and CSV tables on request.
+pub fn solve(
+    file: Option<&Path>,
+    set: &[String],
+    log: bool,
+    plot: Option<&Path>,
+    csv: Option<&Path>,
+    format: FormatArgs,
+) -> Result<Output, Failure> {
+    let format = format.choose("solve", &[Format::Text, Format::Json])?;
+    let mut notes = Vec::new();
+    let plant = load_plant(file, set, &mut notes)?;
+    let solution = cryochain::solve::solve(&plant, &Default::default())?;
+    if let Some(dir) = plot {
+        let files = report::plot::cycle::write_all(&plant, &solution, dir)?;
+        notes.push(format!(
+            "wrote {} plot files to {}",
+            files.len(),
+            dir.display()
+        ));
+    }
+    if let Some(dir) = csv {
+        let files = report::tables_csv::write_all(&solution, dir)?;
+        notes.push(format!(
+            "wrote {} CSV files to {}",
+            files.len(),
+            dir.display()
+        ));
+    }
+    if log {
+        for (i, r) in solution.residual_log.iter().enumerate() {
+            notes.push(format!(
+                "pass {:>4}  largest scaled tear residual {r:.3e}",
+                i + 1
+            ));
+        }
+    }
+    let findings = rules::check(&plant, &solution);
+    let stdout = match format {
+        Format::Json => report::solution::json(&solution, &findings),
+        _ => format!(
+            "{}\n{}\n{}\n",
+            report::solution::text(&solution),
+            report::solution::findings_text(&findings),
+            report::solution::CAUTION
+        ),
+    };
+    Ok(Output { stdout, notes })
+}
+
+/// `check`: the design checks; a design with errors fails with the design code,
+/// after its findings are printed.
+pub fn check(file: Option<&Path>, set: &[String], format: FormatArgs) -> Result<Output, Failure> {
+    let format = format.choose("check", &[Format::Text, Format::Json])?;
+    let mut notes = Vec::new();
+    let plant = load_plant(file, set, &mut notes)?;
+    let solution = cryochain::solve::solve(&plant, &Default::default())?;
+    let findings = rules::check(&plant, &solution);
+    let stdout = match format {
+        Format::Json => serde_json::to_string_pretty(&findings).unwrap_or_default() + "\n",
+        _ => format!(
+            "{}\n{}\n",
+            report::solution::findings_text(&findings),
+            report::solution::CAUTION
+        ),
+    };
+    let errors = findings
+        .iter()
+        .filter(|f| f.severity == Severity::Error)
+        .count();
+    let output = Output { stdout, notes };
+    if errors > 0 {
+        return Err(Failure {
+            message: format!(
+                "the design has {errors} error{}",
+                if errors == 1 { "" } else { "s" }
+            ),
+            code: exit::DESIGN,
+            partial: output,
+        });
+    }
+    Ok(output)
+}
+
+/// What `sweep` is given.
+pub struct SweepArgs<'a> {
+    /// The flowsheet file.
+    pub file: &'a Path,
+    /// The `--vary` ranges.
+    pub vary: &'a [String],
+    /// Fixed overrides.
+    pub set: &'a [String],
+    /// `K/N`.
+    pub shard: Option<&'a str>,
+    /// Where to write the cases as CSV.
+    pub csv: Option<&'a Path>,
+    /// Where to write a plot.
+    pub plot: Option<&'a Path>,
+    /// Output format.
+    pub format: FormatArgs,
+}
+
+fn parse_shard(text: &str) -> Result<(usize, usize), Failure> {
+    text.split_once('/')
+        .and_then(|(k, n)| Some((k.trim().parse().ok()?, n.trim().parse().ok()?)))
+        .ok_or_else(|| {
+            Failure::new(
+                format!("--shard {text}: write K/N, such as 2/8"),
+                exit::INPUT,
+            )
+        })
+}
+
+/// A progress bar on stderr for long runs (hidden for short ones and when stderr
+/// is not a terminal).
+fn progress_bar(total: usize) -> indicatif::ProgressBar {
+    let bar = indicatif::ProgressBar::with_draw_target(
+        Some(total as u64),
+        indicatif::ProgressDrawTarget::stderr(),
+    );
+    bar.set_style(
+        indicatif::ProgressStyle::with_template(
+            "{bar:40} {pos}/{len} cases, {elapsed} elapsed, {eta} left",
+        )
+        .unwrap_or_else(|_| indicatif::ProgressStyle::default_bar()),
+    );
+    if total < 20 {
+        bar.set_draw_target(indicatif::ProgressDrawTarget::hidden());
+    }
+    bar
+}
+
+/// `sweep`: every case of a grid, solved in parallel.
+pub fn sweep(args: &SweepArgs) -> Result<Output, Failure> {
+    let format = args.format.choose("sweep", &[Format::Text, Format::Csv])?;
+    let text = read_text(args.file)?;
+    let name = args.file.display().to_string();
+    let overrides = parse_overrides(args.set)?;
+    let variables = args
+        .vary
+        .iter()
+        .map(|v| study::Variable::parse_range(v))
+        .collect::<Result<Vec<_>, _>>()?;
+    let shard = args.shard.map(parse_shard).transpose()?;
+    let total: usize = variables.iter().map(|v| v.values.len()).product();
+    let bar = progress_bar(total);
+    let progress = |done: usize, of: usize| {
+        bar.set_length(of as u64);
+        bar.set_position(done as u64);
+    };
+    let result = study::sweep(&text, &name, &overrides, &variables, shard, &progress)?;
+    bar.finish_and_clear();
+    let mut notes = Vec::new();
+    let csv_text = study::to_csv(&result)?;
+    if let Some(path) = args.csv {
+        write_text(path, &csv_text)?;
+        notes.push(format!(
+            "wrote {} cases to {}",
+            result.cases.len(),
+            path.display()
+        ));
+    }
+    if let Some(path) = args.plot {
+        report::plot::study::sweep(&result, path)?;
+        notes.push(format!("wrote {}", path.display()));
+    }
+    let stdout = match format {
+        Format::Csv => csv_text,
+        _ => report::study::sweep_text(&result),
+    };
+    Ok(Output { stdout, notes })
+}
+
+/// `merge-shards`: shard CSV files into the file the whole sweep writes.
+pub fn merge_shards(files: &[PathBuf], output: Option<&Path>) -> Result<Output, Failure> {
+    let parts = files
+        .iter()
+        .map(|f| read_text(f))
+        .collect::<Result<Vec<_>, _>>()?;
+    let merged = study::merge_csv(&parts)?;
+    match output {
+        Some(path) => {
+            write_text(path, &merged)?;
+            Ok(Output::default())
+        }
+        None => Ok(Output::of(merged)),
+    }
+}
+
+/// What `optimize` is given.
+pub struct OptimizeArgs<'a> {
+    /// The flowsheet file.
+    pub file: &'a Path,
+    /// The `--vary` bounds.
+    pub vary: &'a [String],
+    /// Figure to maximise.
+    pub maximize: Option<&'a str>,
+    /// Figure to minimise.
+    pub minimize: Option<&'a str>,
+    /// Smallest allowed exchanger approach, with its unit.
+    pub min_approach: Option<&'a str>,
+    /// Fixed overrides.
+    pub set: &'a [String],
+    /// Solver iteration cap.
+    pub iterations: u64,
+    /// Output format.
+    pub format: FormatArgs,
+}
+
+/// `optimize`: the best values of bounded parameters for one figure.
+pub fn optimize(args: &OptimizeArgs) -> Result<Output, Failure> {
+    use study::optimize::{Bounded, Objective};
+    let format = args
+        .format
+        .choose("optimize", &[Format::Text, Format::Json])?;
+    let text = read_text(args.file)?;
+    let name = args.file.display().to_string();
+    let overrides = parse_overrides(args.set)?;
+    let variables = args
+        .vary
+        .iter()
+        .map(|v| Bounded::parse(v))
+        .collect::<Result<Vec<_>, _>>()?;
+    let objective = Objective::parse(args.maximize, args.minimize)?;
+    let floor = args
+        .min_approach
+        .map(|t| quantity::parse(t, Dimension::TemperatureDifference).map_err(Error::from))
+        .transpose()?;
+    let best = study::optimize::optimize(
+        &text,
+        &name,
+        &overrides,
+        &variables,
+        objective,
+        floor,
+        args.iterations,
+    )?;
+    Ok(Output::of(match format {
+        Format::Json => report::study::optimum_json(objective, &name, &variables, &best),
+        _ => report::study::optimum_text(objective, &name, &variables, &best),
+    }))
+}
+
+/// `compare`: headline figures of several flowsheets side by side.
+pub fn compare(
+    files: &[PathBuf],
+    plot: Option<&Path>,
+    format: FormatArgs,
+) -> Result<Output, Failure> {
+    let format = format.choose("compare", &[Format::Text, Format::Json, Format::Csv])?;
+    let cases = study::compare::compare(files)?;
+    let mut notes = Vec::new();
+    if let Some(path) = plot {
+        let names: Vec<String> = cases.iter().map(|c| c.name.clone()).collect();
+        let figure = |f: fn(&cryochain::solve::Summary) -> Option<f64>| -> Vec<f64> {
+            cases
+                .iter()
+                .map(|c| f(&c.summary).unwrap_or(f64::NAN))
+                .collect()
+        };
+        let yields = figure(|s| s.liquid_yield);
+        let energies = figure(|s| s.specific_energy);
+        report::plot::study::compare(&names, &yields, &energies, path)?;
+        notes.push(format!("wrote {}", path.display()));
+    }
+    let stdout = match format {
+        Format::Json => report::study::comparison_json(&cases),
+        Format::Csv => report::study::comparison_csv(&cases)?,
+        Format::Text => report::study::comparison_text(&cases),
+    };
+    Ok(Output { stdout, notes })
+}
+
+/// `fluids`: the built-in fluids.
+pub fn fluids(format: FormatArgs) -> Result<Output, Failure> {
+    let format = format.choose("fluids", &[Format::Text, Format::Json])?;
+    let all = fluids::all()?;
+    Ok(Output::of(match format {
+        Format::Json => report::fluids::json(&all),
+        _ => report::fluids::text(&all),
+    }))
+}
+
+/// `state`: one state from two specifications.
+pub fn state(
+    fluid: &str,
+    first: &str,
+    second: &str,
+    format: FormatArgs,
+) -> Result<Output, Failure> {
+    let format = format.choose("state", &[Format::Text, Format::Json])?;
+    let fluid = fluids::fluid(fluid)?;
+    let state = fluid.state_from(Spec::parse(first)?, Spec::parse(second)?)?;
+    Ok(Output::of(match format {
+        Format::Json => report::state::json(&state),
+        _ => report::state::text(&state),
+    }))
+}
+
+/// `inversion`: a fluid's inversion curve, with its T–p diagram on request.
+pub fn inversion(
+    fluid: &str,
+    plot: Option<&Path>,
+    rows: usize,
+    format: FormatArgs,
+) -> Result<Output, Failure> {
+    let format = format.choose("inversion", &[Format::Text, Format::Json])?;
+    let fluid = fluids::fluid(fluid)?;
+    let curve = fluid.inversion()?;
+    let mut notes = Vec::new();
+    if let Some(path) = plot {
+        let diagram = fluid.tp_diagram(9)?;
+        report::plot::tp_diagram::write(&diagram, &[], path)?;
+        notes.push(format!("wrote {}", path.display()));
+    }
+    let stdout = match format {
+        Format::Json => report::inversion::json(curve),
+        _ => report::inversion::text(fluid, curve, rows),
+    };
+    Ok(Output { stdout, notes })
+}
+
+/// `throttle`: one isenthalpic expansion.
+pub fn throttle(
+    fluid: &str,
+    first: &str,
+    second: &str,
+    to: &str,
+    format: FormatArgs,
+) -> Result<Output, Failure> {
+    let format = format.choose("throttle", &[Format::Text, Format::Json])?;
+    let fluid = fluids::fluid(fluid)?;
+    let inlet = fluid.state_from(Spec::parse(first)?, Spec::parse(second)?)?;
+    let outlet_pressure = quantity::parse(to, Dimension::Pressure).map_err(Error::from)?;
+    let result = fluid.throttle(&inlet, outlet_pressure)?;
+    Ok(Output::of(match format {
+        Format::Json => report::inversion::throttle_json(&result),
+        _ => report::inversion::throttle_text(&result),
+    }))
+}
+
+/// `table`: property tables in batch; failed rows keep their place with their
+/// error, and the command then fails with their count.
+pub fn table(input: &Path, fluid: Option<&str>, output: Option<&Path>) -> Result<Output, Failure> {
+    let name = input.display().to_string();
+    let text = read_text(input)?;
+    let outcome = cryochain::batch::run(&text, &name, fluid)?;
+    let mut notes: Vec<String> = outcome
+        .failures
+        .iter()
+        .map(|(_, message)| format!("{name}: {message}"))
+        .collect();
+    let stdout = match output {
+        Some(path) => {
+            write_text(path, &outcome.csv)?;
+            notes.push(format!("wrote {} rows to {}", outcome.rows, path.display()));
+            String::new()
+        }
+        None => outcome.csv,
+    };
+    let result = Output { stdout, notes };
+    if outcome.failures.is_empty() {
+        return Ok(result);
+    }
+    Err(Failure {
+        message: format!(
+            "{} of {} rows failed (their reasons are in the error column)",
+            outcome.failures.len(),
+            outcome.rows
+        ),
+        code: exit::INPUT,
+        partial: result,
+    })
+}

@@ -1,0 +1,227 @@
+//! Text, JSON and CSV of studies: a sweep's table and its best case, an
+//! optimisation's result, and a comparison's table.
+
+use super::table::{Align, TextTable};
+use crate::error::{Error, Result};
+use crate::study::compare::Compared;
+use crate::study::optimize::{Bounded, Objective, Optimum};
+use crate::study::Sweep;
+
+/// The cases of a sweep as a table, then the case of highest yield and how many
+/// failed.
+pub fn sweep_text(study: &Sweep) -> String {
+    let mut headers: Vec<(String, Align)> = study
+        .variables
+        .iter()
+        .map(|v| (format!("{} [{}]", v.name(), v.unit), Align::Right))
+        .collect();
+    headers.extend([
+        ("yield".to_string(), Align::Right),
+        ("kWh/kg".to_string(), Align::Right),
+        ("status".to_string(), Align::Left),
+    ]);
+    let refs: Vec<(&str, Align)> = headers.iter().map(|(h, a)| (h.as_str(), *a)).collect();
+    let mut table = TextTable::new(&refs);
+    for case in &study.cases {
+        let mut row: Vec<String> = case.coordinates.iter().map(|c| format!("{c:.4}")).collect();
+        match &case.outcome {
+            Ok(m) => row.extend([
+                format!("{:.5}", m.liquid_yield),
+                format!("{:.3}", m.specific_energy),
+                if m.design_errors > 0 {
+                    format!("ok, {} design errors", m.design_errors)
+                } else {
+                    "ok".into()
+                },
+            ]),
+            Err(reason) => row.extend([
+                String::new(),
+                String::new(),
+                format!("failed: {}", reason.chars().take(60).collect::<String>()),
+            ]),
+        }
+        table.row(row);
+    }
+    let mut out = table.render();
+    let failed = study.cases.iter().filter(|c| c.outcome.is_err()).count();
+    if let Some(best) = study
+        .cases
+        .iter()
+        .filter_map(|c| c.outcome.as_ref().ok().map(|m| (c, m)))
+        .max_by(|a, b| a.1.liquid_yield.total_cmp(&b.1.liquid_yield))
+    {
+        out.push_str(&format!(
+            "\nhighest yield {:.5} at {:?}; {} of {} cases failed\n",
+            best.1.liquid_yield,
+            best.0.coordinates,
+            failed,
+            study.cases.len()
+        ));
+    }
+    out
+}
+
+/// An optimisation's result: the best values, the figures there, the effort.
+pub fn optimum_text(
+    objective: Objective,
+    file: &str,
+    variables: &[Bounded],
+    best: &Optimum,
+) -> String {
+    let mut out = format!("{} of {}\n", objective.name(), file);
+    for (v, x) in variables.iter().zip(&best.values) {
+        out.push_str(&format!("  {}.{} = {x:.6} {}\n", v.target, v.key, v.unit));
+    }
+    let m = &best.metrics;
+    out.push_str(&format!(
+        "  objective {:.6}; liquid yield {:.6}; specific energy {:.4} kWh/kg; smallest approach {:.3} K\n",
+        best.objective, m.liquid_yield, m.specific_energy, m.min_approach
+    ));
+    out.push_str(&format!(
+        "  {} solver iterations, {} flowsheet solves; constraint {}\n",
+        best.iterations,
+        best.solves,
+        if best.constraint_met {
+            "met"
+        } else {
+            "NOT met"
+        }
+    ));
+    out
+}
+
+/// An optimisation's result as one JSON object.
+pub fn optimum_json(
+    objective: Objective,
+    file: &str,
+    variables: &[Bounded],
+    best: &Optimum,
+) -> String {
+    let values: Vec<serde_json::Value> = variables
+        .iter()
+        .zip(&best.values)
+        .map(|(v, x)| serde_json::json!({"name": format!("{}.{}", v.target, v.key), "value": x, "unit": v.unit}))
+        .collect();
+    let m = &best.metrics;
+    let json = serde_json::json!({
+        "flowsheet": file,
+        "objective": objective.name(),
+        "objective_value": best.objective,
+        "values": values,
+        "liquid_yield": m.liquid_yield,
+        "specific_energy_kWh_per_kg": m.specific_energy,
+        "figure_of_merit": m.figure_of_merit,
+        "min_approach_K": m.min_approach,
+        "design_errors": m.design_errors,
+        "iterations": best.iterations,
+        "solves": best.solves,
+        "constraint_met": best.constraint_met,
+    });
+    pretty(&json)
+}
+
+/// The headline figures of each flowsheet of a comparison, as (header, cell) columns.
+fn comparison_columns(case: &Compared) -> Vec<(&'static str, String)> {
+    let s = &case.summary;
+    vec![
+        ("flowsheet", case.name.clone()),
+        (
+            "yield",
+            s.liquid_yield.map_or("—".into(), |y| format!("{y:.4}")),
+        ),
+        ("liquid [kg/h]", format!("{:.3}", s.liquid_flow * 3600.0)),
+        ("power [kW]", format!("{:.2}", s.shaft_power / 1e3)),
+        ("precool [kW]", format!("{:.2}", s.precooling_work / 1e3)),
+        (
+            "kWh/kg",
+            s.specific_energy.map_or("—".into(), |e| format!("{e:.3}")),
+        ),
+        (
+            "FOM",
+            s.figure_of_merit.map_or("—".into(), |f| format!("{f:.4}")),
+        ),
+    ]
+}
+
+/// A comparison as a text table.
+pub fn comparison_text(cases: &[Compared]) -> String {
+    let mut table = TextTable::new(&[
+        ("flowsheet", Align::Left),
+        ("yield", Align::Right),
+        ("liquid [kg/h]", Align::Right),
+        ("power [kW]", Align::Right),
+        ("precool [kW]", Align::Right),
+        ("kWh/kg", Align::Right),
+        ("FOM", Align::Right),
+    ]);
+    for case in cases {
+        table.row(
+            comparison_columns(case)
+                .into_iter()
+                .map(|(_, c)| c)
+                .collect(),
+        );
+    }
+    table.render()
+}
+
+/// A comparison as CSV, SI units in the headers; empty cells where a figure does
+/// not exist.
+pub fn comparison_csv(cases: &[Compared]) -> Result<String> {
+    let mut writer = csv::Writer::from_writer(Vec::new());
+    let bad = |e: csv::Error| Error::Input(format!("cannot write the CSV: {e}"));
+    writer
+        .write_record([
+            "flowsheet",
+            "liquid_yield [-]",
+            "liquid_flow [kg/s]",
+            "shaft_power [W]",
+            "precooling_work [W]",
+            "specific_energy [kWh/kg]",
+            "figure_of_merit [-]",
+        ])
+        .map_err(bad)?;
+    let cell = |v: Option<f64>| v.map_or(String::new(), |x| x.to_string());
+    for case in cases {
+        let s = &case.summary;
+        writer
+            .write_record([
+                case.name.clone(),
+                cell(s.liquid_yield),
+                s.liquid_flow.to_string(),
+                s.shaft_power.to_string(),
+                s.precooling_work.to_string(),
+                cell(s.specific_energy),
+                cell(s.figure_of_merit),
+            ])
+            .map_err(bad)?;
+    }
+    let bytes = writer
+        .into_inner()
+        .map_err(|e| Error::Input(format!("cannot write the CSV: {e}")))?;
+    String::from_utf8(bytes).map_err(|e| Error::Input(format!("cannot write the CSV: {e}")))
+}
+
+/// A comparison as a JSON array, SI units.
+pub fn comparison_json(cases: &[Compared]) -> String {
+    let rows: Vec<serde_json::Value> = cases
+        .iter()
+        .map(|case| {
+            let s = &case.summary;
+            serde_json::json!({
+                "flowsheet": case.name,
+                "liquid_yield": s.liquid_yield,
+                "liquid_flow_kg_s": s.liquid_flow,
+                "shaft_power_W": s.shaft_power,
+                "precooling_work_W": s.precooling_work,
+                "specific_energy_kWh_per_kg": s.specific_energy,
+                "figure_of_merit": s.figure_of_merit,
+            })
+        })
+        .collect();
+    pretty(&serde_json::Value::Array(rows))
+}
+
+fn pretty(value: &serde_json::Value) -> String {
+    serde_json::to_string_pretty(value).unwrap_or_default() + "\n"
+}
