@@ -4,7 +4,7 @@
 //! written as SVG and PNG.
 
 use super::tp_diagram::{self, ValvePath};
-use super::{chart, drawing, ensure_font, legend};
+use super::{chart, drawing, ensure_font, legend, write_figure, Figure};
 use crate::equipment::{Coupling, Details};
 use crate::error::Result;
 use crate::flowsheet::{Plant, UnitSpec};
@@ -81,22 +81,6 @@ pub fn write_all(plant: &Plant, solution: &Solution, dir: &Path) -> Result<Vec<P
     Ok(written)
 }
 
-fn on_backend(
-    path: &Path,
-    draw: impl Fn(&DrawingArea<SVGBackend, Shift>) -> Result<()>,
-    draw_png: impl Fn(&DrawingArea<BitMapBackend, Shift>) -> Result<()>,
-) -> Result<()> {
-    if path.extension().and_then(|e| e.to_str()) == Some("png") {
-        let root = BitMapBackend::new(path, SIZE).into_drawing_area();
-        draw_png(&root)?;
-        root.present().map_err(drawing(path))
-    } else {
-        let root = SVGBackend::new(path, SIZE).into_drawing_area();
-        draw(&root)?;
-        root.present().map_err(drawing(path))
-    }
-}
-
 /// Places labels so that their boxes do not overlap: moves a label up in steps of
 /// its height until it is clear.
 struct LabelPlacer {
@@ -133,135 +117,153 @@ fn ts_diagram(
     fluid: &'static crate::fluids::Fluid,
     path: &Path,
 ) -> Result<()> {
-    let dome = saturation_dome(fluid, 60);
-    let states: Vec<(String, f64, f64)> = solution
-        .stream_names
-        .iter()
-        .zip(&solution.streams)
-        .filter(|(_, f)| std::ptr::eq(f.state.fluid(), fluid))
-        .map(|(n, f)| (n.clone(), f.state.entropy / 1e3, f.state.temperature))
-        .collect();
-    // Process lines: each unit's inlet to its outlet on the same side.
-    let mut segments = Vec::new();
-    for unit in &plant.units {
-        let pairs: Vec<(usize, usize)> = match unit.spec.coupling() {
-            Coupling::Sides => unit
-                .inlets
-                .iter()
-                .copied()
-                .zip(unit.outlets.iter().copied())
-                .collect(),
-            Coupling::Joined => unit
-                .inlets
-                .iter()
-                .flat_map(|&i| unit.outlets.iter().map(move |&o| (i, o)))
-                .collect(),
-        };
-        for (i, o) in pairs {
-            let (a, b) = (&solution.streams[i].state, &solution.streams[o].state);
-            if std::ptr::eq(a.fluid(), fluid) && std::ptr::eq(b.fluid(), fluid) {
-                segments.push([
-                    (a.entropy / 1e3, a.temperature),
-                    (b.entropy / 1e3, b.temperature),
-                ]);
-            }
-        }
-    }
-    let s_all: Vec<f64> = dome
-        .iter()
-        .map(|p| p.0 / 1e3)
-        .chain(states.iter().map(|s| s.1))
-        .collect();
-    let t_all: Vec<f64> = dome
-        .iter()
-        .map(|p| p.1)
-        .chain(states.iter().map(|s| s.2))
-        .collect();
-    let (s_min, s_max) = (
-        s_all.iter().copied().fold(f64::INFINITY, f64::min),
-        s_all.iter().copied().fold(f64::NEG_INFINITY, f64::max),
-    );
-    let t_max = t_all.iter().copied().fold(f64::NEG_INFINITY, f64::max) * 1.08;
-    let t_min = t_all.iter().copied().fold(f64::INFINITY, f64::min) * 0.9;
-    let pad = 0.06 * (s_max - s_min);
-    let title = format!(
-        "{}: T–s diagram of the cycle ({})",
-        fluid.name, fluid.source_key
-    );
-    macro_rules! body {
-        ($root:expr) => {{
-            let root = $root;
-            let err = drawing(path);
-            root.fill(&WHITE).map_err(&err)?;
-            let mut chart = chart(
-                root,
-                &title,
-                24,
-                (s_min - pad)..(s_max + pad),
-                t_min..t_max,
-                path,
-            )?;
-            chart
-                .configure_mesh()
-                .x_desc("specific entropy [kJ/(kg·K)]")
-                .y_desc("temperature [K]")
-                .axis_desc_style(("sans-serif", 20))
-                .label_style(("sans-serif", 16))
-                .x_label_formatter(&|v| format!("{v:.1}"))
-                .y_label_formatter(&|v| format!("{v:.0}"))
-                .light_line_style(RGBColor(235, 235, 235))
-                .draw()
-                .map_err(&err)?;
-            chart
-                .draw_series(LineSeries::new(
-                    dome.iter().map(|(s, t)| (s / 1e3, *t)),
-                    DOME.stroke_width(2),
-                ))
-                .map_err(&err)?
-                .label("saturation dome")
-                .legend(|(x, y)| PathElement::new([(x, y), (x + 18, y)], DOME.stroke_width(2)));
-            for (k, seg) in segments.iter().enumerate() {
-                let series = chart
-                    .draw_series(LineSeries::new(seg.iter().copied(), COLD.stroke_width(2)))
-                    .map_err(&err)?;
-                if k == 0 {
-                    series
-                        .label("process step (unit inlet → outlet)")
-                        .legend(|(x, y)| {
-                            PathElement::new([(x, y), (x + 18, y)], COLD.stroke_width(2))
-                        });
+    write_figure(
+        &TsDiagramFigure {
+            plant,
+            solution,
+            fluid,
+        },
+        SIZE,
+        path,
+    )
+}
+
+/// The drawing of [`ts_diagram`], on any backend.
+struct TsDiagramFigure<'a> {
+    plant: &'a Plant,
+    solution: &'a Solution,
+    fluid: &'static crate::fluids::Fluid,
+}
+
+impl Figure for TsDiagramFigure<'_> {
+    fn draw<DB: DrawingBackend>(&self, root: &DrawingArea<DB, Shift>, path: &Path) -> Result<()> {
+        let TsDiagramFigure {
+            plant,
+            solution,
+            fluid,
+        } = *self;
+        let dome = saturation_dome(fluid, 60);
+        let states: Vec<(String, f64, f64)> = solution
+            .stream_names
+            .iter()
+            .zip(&solution.streams)
+            .filter(|(_, f)| std::ptr::eq(f.state.fluid(), fluid))
+            .map(|(n, f)| (n.clone(), f.state.entropy / 1e3, f.state.temperature))
+            .collect();
+        // Process lines: each unit's inlet to its outlet on the same side.
+        let mut segments = Vec::new();
+        for unit in &plant.units {
+            let pairs: Vec<(usize, usize)> = match unit.spec.coupling() {
+                Coupling::Sides => unit
+                    .inlets
+                    .iter()
+                    .copied()
+                    .zip(unit.outlets.iter().copied())
+                    .collect(),
+                Coupling::Joined => unit
+                    .inlets
+                    .iter()
+                    .flat_map(|&i| unit.outlets.iter().map(move |&o| (i, o)))
+                    .collect(),
+            };
+            for (i, o) in pairs {
+                let (a, b) = (&solution.streams[i].state, &solution.streams[o].state);
+                if std::ptr::eq(a.fluid(), fluid) && std::ptr::eq(b.fluid(), fluid) {
+                    segments.push([
+                        (a.entropy / 1e3, a.temperature),
+                        (b.entropy / 1e3, b.temperature),
+                    ]);
                 }
             }
-            chart
-                .draw_series(
-                    states
-                        .iter()
-                        .map(|(_, s, t)| Circle::new((*s, *t), 5, STATE.filled())),
-                )
-                .map_err(&err)?
-                .label("stream states")
-                .legend(|(x, y)| Circle::new((x + 9, y), 5, STATE.filled()));
-            let mut placer = LabelPlacer { boxes: Vec::new() };
-            let labels: Vec<_> = states
-                .iter()
-                .map(|(name, s, t)| {
-                    let (px, py) = chart.backend_coord(&(*s, *t));
-                    let (x, y) = placer.place(px + 7, py - 18, name);
-                    Text::new(
-                        name.clone(),
-                        (x, y),
-                        ("sans-serif", 14).into_font().color(&BLACK),
-                    )
-                })
-                .collect();
-            for label in labels {
-                root.draw(&label).map_err(&err)?;
+        }
+        let s_all: Vec<f64> = dome
+            .iter()
+            .map(|p| p.0 / 1e3)
+            .chain(states.iter().map(|s| s.1))
+            .collect();
+        let t_all: Vec<f64> = dome
+            .iter()
+            .map(|p| p.1)
+            .chain(states.iter().map(|s| s.2))
+            .collect();
+        let (s_min, s_max) = (
+            s_all.iter().copied().fold(f64::INFINITY, f64::min),
+            s_all.iter().copied().fold(f64::NEG_INFINITY, f64::max),
+        );
+        let t_max = t_all.iter().copied().fold(f64::NEG_INFINITY, f64::max) * 1.08;
+        let t_min = t_all.iter().copied().fold(f64::INFINITY, f64::min) * 0.9;
+        let pad = 0.06 * (s_max - s_min);
+        let title = format!(
+            "{}: T–s diagram of the cycle ({})",
+            fluid.name, fluid.source_key
+        );
+        let err = drawing(path);
+        root.fill(&WHITE).map_err(&err)?;
+        let mut chart = chart(
+            root,
+            &title,
+            24,
+            (s_min - pad)..(s_max + pad),
+            t_min..t_max,
+            path,
+        )?;
+        chart
+            .configure_mesh()
+            .x_desc("specific entropy [kJ/(kg·K)]")
+            .y_desc("temperature [K]")
+            .axis_desc_style(("sans-serif", 20))
+            .label_style(("sans-serif", 16))
+            .x_label_formatter(&|v| format!("{v:.1}"))
+            .y_label_formatter(&|v| format!("{v:.0}"))
+            .light_line_style(RGBColor(235, 235, 235))
+            .draw()
+            .map_err(&err)?;
+        chart
+            .draw_series(LineSeries::new(
+                dome.iter().map(|(s, t)| (s / 1e3, *t)),
+                DOME.stroke_width(2),
+            ))
+            .map_err(&err)?
+            .label("saturation dome")
+            .legend(|(x, y)| PathElement::new([(x, y), (x + 18, y)], DOME.stroke_width(2)));
+        for (k, seg) in segments.iter().enumerate() {
+            let series = chart
+                .draw_series(LineSeries::new(seg.iter().copied(), COLD.stroke_width(2)))
+                .map_err(&err)?;
+            if k == 0 {
+                series
+                    .label("process step (unit inlet → outlet)")
+                    .legend(|(x, y)| PathElement::new([(x, y), (x + 18, y)], COLD.stroke_width(2)));
             }
-            legend(&mut chart, SeriesLabelPosition::UpperLeft, path)?;
-            Ok(())
-        }};
+        }
+        chart
+            .draw_series(
+                states
+                    .iter()
+                    .map(|(_, s, t)| Circle::new((*s, *t), 5, STATE.filled())),
+            )
+            .map_err(&err)?
+            .label("stream states")
+            .legend(|(x, y)| Circle::new((x + 9, y), 5, STATE.filled()));
+        let mut placer = LabelPlacer { boxes: Vec::new() };
+        let labels: Vec<_> = states
+            .iter()
+            .map(|(name, s, t)| {
+                let (px, py) = chart.backend_coord(&(*s, *t));
+                let (x, y) = placer.place(px + 7, py - 18, name);
+                Text::new(
+                    name.clone(),
+                    (x, y),
+                    ("sans-serif", 14).into_font().color(&BLACK),
+                )
+            })
+            .collect();
+        for label in labels {
+            root.draw(&label).map_err(&err)?;
+        }
+        legend(&mut chart, SeriesLabelPosition::UpperLeft, path)?;
+        Ok(())
     }
-    on_backend(path, |root| body!(root), |root| body!(root))
 }
 
 fn exchanger_curves(
@@ -269,153 +271,166 @@ fn exchanger_curves(
     report: &crate::equipment::exchanger::ExchangerReport,
     path: &Path,
 ) -> Result<()> {
-    let kw = |q: f64| q / 1e3;
-    let profile = &report.profile;
-    let q_max = profile.last().map_or(1.0, |p| kw(p.duty)).max(1e-9);
-    let temps: Vec<f64> = profile
-        .iter()
-        .flat_map(|p| [p.hot_temperature, p.cold_temperature])
-        .collect();
-    let (t_min, t_max) = (
-        temps.iter().copied().fold(f64::INFINITY, f64::min),
-        temps.iter().copied().fold(f64::NEG_INFINITY, f64::max),
-    );
-    let span = (t_max - t_min).max(1.0);
-    let pinch = profile.iter().min_by(|a, b| {
-        (a.hot_temperature - a.cold_temperature)
-            .total_cmp(&(b.hot_temperature - b.cold_temperature))
-    });
-    let title = format!(
-        "exchanger {id}: temperature against duty (UA {:.2} kW/K)",
-        report.ua / 1e3
-    );
-    macro_rules! body {
-        ($root:expr) => {{
-            let root = $root;
-            let err = drawing(path);
-            root.fill(&WHITE).map_err(&err)?;
-            let mut chart = chart(
-                root,
-                &title,
-                24,
-                0.0..q_max * 1.02,
-                (t_min - 0.05 * span)..(t_max + 0.08 * span),
-                path,
-            )?;
+    write_figure(&ExchangerCurvesFigure { id, report }, SIZE, path)
+}
+
+/// The drawing of [`exchanger_curves`], on any backend.
+struct ExchangerCurvesFigure<'a> {
+    id: &'a str,
+    report: &'a crate::equipment::exchanger::ExchangerReport,
+}
+
+impl Figure for ExchangerCurvesFigure<'_> {
+    fn draw<DB: DrawingBackend>(&self, root: &DrawingArea<DB, Shift>, path: &Path) -> Result<()> {
+        let ExchangerCurvesFigure { id, report } = *self;
+        let kw = |q: f64| q / 1e3;
+        let profile = &report.profile;
+        let q_max = profile.last().map_or(1.0, |p| kw(p.duty)).max(1e-9);
+        let temps: Vec<f64> = profile
+            .iter()
+            .flat_map(|p| [p.hot_temperature, p.cold_temperature])
+            .collect();
+        let (t_min, t_max) = (
+            temps.iter().copied().fold(f64::INFINITY, f64::min),
+            temps.iter().copied().fold(f64::NEG_INFINITY, f64::max),
+        );
+        let span = (t_max - t_min).max(1.0);
+        let pinch = profile.iter().min_by(|a, b| {
+            (a.hot_temperature - a.cold_temperature)
+                .total_cmp(&(b.hot_temperature - b.cold_temperature))
+        });
+        let title = format!(
+            "exchanger {id}: temperature against duty (UA {:.2} kW/K)",
+            report.ua / 1e3
+        );
+        let err = drawing(path);
+        root.fill(&WHITE).map_err(&err)?;
+        let mut chart = chart(
+            root,
+            &title,
+            24,
+            0.0..q_max * 1.02,
+            (t_min - 0.05 * span)..(t_max + 0.08 * span),
+            path,
+        )?;
+        chart
+            .configure_mesh()
+            .x_desc("duty transferred from the warm end [kW]")
+            .y_desc("temperature [K]")
+            .axis_desc_style(("sans-serif", 20))
+            .label_style(("sans-serif", 16))
+            .x_label_formatter(&|v| format!("{v:.2}"))
+            .y_label_formatter(&|v| format!("{v:.0}"))
+            .light_line_style(RGBColor(235, 235, 235))
+            .draw()
+            .map_err(&err)?;
+        chart
+            .draw_series(LineSeries::new(
+                profile.iter().map(|p| (kw(p.duty), p.hot_temperature)),
+                HOT.stroke_width(3),
+            ))
+            .map_err(&err)?
+            .label("hot stream")
+            .legend(|(x, y)| PathElement::new([(x, y), (x + 18, y)], HOT.stroke_width(3)));
+        chart
+            .draw_series(LineSeries::new(
+                profile.iter().map(|p| (kw(p.duty), p.cold_temperature)),
+                COLD.stroke_width(3),
+            ))
+            .map_err(&err)?
+            .label("cold stream")
+            .legend(|(x, y)| PathElement::new([(x, y), (x + 18, y)], COLD.stroke_width(3)));
+        if let Some(p) = pinch {
+            let q = kw(p.duty);
             chart
-                .configure_mesh()
-                .x_desc("duty transferred from the warm end [kW]")
-                .y_desc("temperature [K]")
-                .axis_desc_style(("sans-serif", 20))
-                .label_style(("sans-serif", 16))
-                .x_label_formatter(&|v| format!("{v:.2}"))
-                .y_label_formatter(&|v| format!("{v:.0}"))
-                .light_line_style(RGBColor(235, 235, 235))
-                .draw()
-                .map_err(&err)?;
-            chart
-                .draw_series(LineSeries::new(
-                    profile.iter().map(|p| (kw(p.duty), p.hot_temperature)),
-                    HOT.stroke_width(3),
-                ))
+                .draw_series([PathElement::new(
+                    [(q, p.cold_temperature), (q, p.hot_temperature)],
+                    BLACK.stroke_width(2),
+                )])
                 .map_err(&err)?
-                .label("hot stream")
-                .legend(|(x, y)| PathElement::new([(x, y), (x + 18, y)], HOT.stroke_width(3)));
-            chart
-                .draw_series(LineSeries::new(
-                    profile.iter().map(|p| (kw(p.duty), p.cold_temperature)),
-                    COLD.stroke_width(3),
-                ))
-                .map_err(&err)?
-                .label("cold stream")
-                .legend(|(x, y)| PathElement::new([(x, y), (x + 18, y)], COLD.stroke_width(3)));
-            if let Some(p) = pinch {
-                let q = kw(p.duty);
-                chart
-                    .draw_series([PathElement::new(
-                        [(q, p.cold_temperature), (q, p.hot_temperature)],
-                        BLACK.stroke_width(2),
-                    )])
-                    .map_err(&err)?
-                    .label(format!("pinch: ΔT min {:.2} K", report.min_approach))
-                    .legend(|(x, y)| {
-                        PathElement::new([(x + 9, y - 6), (x + 9, y + 6)], BLACK.stroke_width(2))
-                    });
-            }
-            legend(&mut chart, SeriesLabelPosition::UpperRight, path)?;
-            Ok(())
-        }};
+                .label(format!("pinch: ΔT min {:.2} K", report.min_approach))
+                .legend(|(x, y)| {
+                    PathElement::new([(x + 9, y - 6), (x + 9, y + 6)], BLACK.stroke_width(2))
+                });
+        }
+        legend(&mut chart, SeriesLabelPosition::UpperRight, path)?;
+        Ok(())
     }
-    on_backend(path, |root| body!(root), |root| body!(root))
 }
 
 fn exergy_bars(solution: &Solution, path: &Path) -> Result<()> {
-    let bars: Vec<(String, f64)> = solution
-        .units
-        .iter()
-        .filter(|u| !matches!(u.kind, "feed" | "product"))
-        .map(|u| (u.id.clone(), u.exergy_destroyed / 1e3))
-        .collect();
-    let top = bars.iter().map(|b| b.1).fold(0.0f64, f64::max).max(1e-9) * 1.15;
-    let n = bars.len().max(1);
-    let total: f64 = bars.iter().map(|b| b.1).sum();
-    let title = format!("exergy destroyed per unit (total {total:.2} kW)");
-    macro_rules! body {
-        ($root:expr) => {{
-            let root = $root;
-            let err = drawing(path);
-            root.fill(&WHITE).map_err(&err)?;
-            let mut chart = ChartBuilder::on(root)
-                .caption(&title, ("sans-serif", 24))
-                .margin(18)
-                .x_label_area_size(90)
-                .y_label_area_size(72)
-                .build_cartesian_2d(0.0..n as f64, 0.0..top)
-                .map_err(&err)?;
-            chart
-                .configure_mesh()
-                .disable_x_mesh()
-                .x_labels(0)
-                .x_desc("equipment")
-                .y_desc("exergy destroyed [kW]")
-                .axis_desc_style(("sans-serif", 20))
-                .label_style(("sans-serif", 15))
-                .y_label_formatter(&|v| format!("{v:.2}"))
-                .draw()
-                .map_err(&err)?;
-            chart
-                .draw_series(bars.iter().enumerate().map(|(i, (_, v))| {
-                    Rectangle::new(
-                        [(i as f64 + 0.15, 0.0), (i as f64 + 0.85, v.max(0.0))],
-                        HOT.mix(0.8).filled(),
-                    )
-                }))
-                .map_err(&err)?;
-            let labels: Vec<_> = bars
-                .iter()
-                .enumerate()
-                .map(|(i, (_, v))| {
-                    Text::new(
-                        format!("{:.1} %", 100.0 * v / total.max(1e-300)),
-                        (i as f64 + 0.3, v.max(0.0) + 0.02 * top),
-                        ("sans-serif", 15).into_font().color(&BLACK),
-                    )
-                })
-                .collect();
-            chart.draw_series(labels).map_err(&err)?;
-            // Unit names under their bars.
-            for (i, (name, _)) in bars.iter().enumerate() {
-                let (px, py) = chart.backend_coord(&(i as f64 + 0.5, 0.0));
-                let half = name.chars().count() as i32 * 4;
-                root.draw(&Text::new(
-                    name.clone(),
-                    (px - half, py + 10),
+    write_figure(&ExergyBarsFigure { solution }, SIZE, path)
+}
+
+/// The drawing of [`exergy_bars`], on any backend.
+struct ExergyBarsFigure<'a> {
+    solution: &'a Solution,
+}
+
+impl Figure for ExergyBarsFigure<'_> {
+    fn draw<DB: DrawingBackend>(&self, root: &DrawingArea<DB, Shift>, path: &Path) -> Result<()> {
+        let ExergyBarsFigure { solution } = *self;
+        let bars: Vec<(String, f64)> = solution
+            .units
+            .iter()
+            .filter(|u| !matches!(u.kind, "feed" | "product"))
+            .map(|u| (u.id.clone(), u.exergy_destroyed / 1e3))
+            .collect();
+        let top = bars.iter().map(|b| b.1).fold(0.0f64, f64::max).max(1e-9) * 1.15;
+        let n = bars.len().max(1);
+        let total: f64 = bars.iter().map(|b| b.1).sum();
+        let title = format!("exergy destroyed per unit (total {total:.2} kW)");
+        let err = drawing(path);
+        root.fill(&WHITE).map_err(&err)?;
+        let mut chart = ChartBuilder::on(root)
+            .caption(&title, ("sans-serif", 24))
+            .margin(18)
+            .x_label_area_size(90)
+            .y_label_area_size(72)
+            .build_cartesian_2d(0.0..n as f64, 0.0..top)
+            .map_err(&err)?;
+        chart
+            .configure_mesh()
+            .disable_x_mesh()
+            .x_labels(0)
+            .x_desc("equipment")
+            .y_desc("exergy destroyed [kW]")
+            .axis_desc_style(("sans-serif", 20))
+            .label_style(("sans-serif", 15))
+            .y_label_formatter(&|v| format!("{v:.2}"))
+            .draw()
+            .map_err(&err)?;
+        chart
+            .draw_series(bars.iter().enumerate().map(|(i, (_, v))| {
+                Rectangle::new(
+                    [(i as f64 + 0.15, 0.0), (i as f64 + 0.85, v.max(0.0))],
+                    HOT.mix(0.8).filled(),
+                )
+            }))
+            .map_err(&err)?;
+        let labels: Vec<_> = bars
+            .iter()
+            .enumerate()
+            .map(|(i, (_, v))| {
+                Text::new(
+                    format!("{:.1} %", 100.0 * v / total.max(1e-300)),
+                    (i as f64 + 0.3, v.max(0.0) + 0.02 * top),
                     ("sans-serif", 15).into_font().color(&BLACK),
-                ))
-                .map_err(&err)?;
-            }
-            Ok(())
-        }};
+                )
+            })
+            .collect();
+        chart.draw_series(labels).map_err(&err)?;
+        // Unit names under their bars.
+        for (i, (name, _)) in bars.iter().enumerate() {
+            let (px, py) = chart.backend_coord(&(i as f64 + 0.5, 0.0));
+            let half = name.chars().count() as i32 * 4;
+            root.draw(&Text::new(
+                name.clone(),
+                (px - half, py + 10),
+                ("sans-serif", 15).into_font().color(&BLACK),
+            ))
+            .map_err(&err)?;
+        }
+        Ok(())
     }
-    on_backend(path, |root| body!(root), |root| body!(root))
 }

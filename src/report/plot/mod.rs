@@ -56,6 +56,35 @@ pub fn format_of(path: &Path) -> Result<Format> {
     }
 }
 
+/// A plot that draws itself on any plotters backend, so that one drawing serves
+/// both SVG and PNG.
+pub(crate) trait Figure {
+    /// Draws on `root`; `path` names the file in errors.
+    fn draw<DB: plotters::prelude::DrawingBackend>(
+        &self,
+        root: &plotters::prelude::DrawingArea<DB, plotters::coord::Shift>,
+        path: &Path,
+    ) -> Result<()>;
+}
+
+/// Writes `figure` at `size` pixels to `path`, as SVG or PNG by the extension.
+pub(crate) fn write_figure(figure: &impl Figure, size: (u32, u32), path: &Path) -> Result<()> {
+    use plotters::prelude::{BitMapBackend, IntoDrawingArea, SVGBackend};
+    ensure_font()?;
+    match format_of(path)? {
+        Format::Svg => {
+            let root = SVGBackend::new(path, size).into_drawing_area();
+            figure.draw(&root, path)?;
+            root.present().map_err(drawing(path))
+        }
+        Format::Png => {
+            let root = BitMapBackend::new(path, size).into_drawing_area();
+            figure.draw(&root, path)?;
+            root.present().map_err(drawing(path))
+        }
+    }
+}
+
 /// Turns a drawing error into ours.
 pub(crate) fn drawing<E: std::fmt::Debug>(path: &Path) -> impl Fn(E) -> Error + '_ {
     move |e| Error::Input(format!("cannot draw {}: {e:?}", path.display()))

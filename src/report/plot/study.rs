@@ -1,7 +1,7 @@
 //! Plots of studies: a sweep's liquid yield against one parameter (line) or two
 //! (heat map), and a comparison of flowsheets as bars.
 
-use super::{chart, drawing, ensure_font, format_of, legend, Format};
+use super::{chart, drawing, legend, write_figure, Figure};
 use crate::error::Result;
 use crate::study::Sweep;
 use plotters::coord::Shift;
@@ -10,241 +10,247 @@ use std::path::Path;
 
 const SIZE: (u32, u32) = (1100, 780);
 
-fn with_backend(
-    path: &Path,
-    svg: impl Fn(&DrawingArea<SVGBackend, Shift>) -> Result<()>,
-    png: impl Fn(&DrawingArea<BitMapBackend, Shift>) -> Result<()>,
-) -> Result<()> {
-    ensure_font()?;
-    match format_of(path)? {
-        Format::Svg => {
-            let root = SVGBackend::new(path, SIZE).into_drawing_area();
-            svg(&root)?;
-            root.present().map_err(drawing(path))
-        }
-        Format::Png => {
-            let root = BitMapBackend::new(path, SIZE).into_drawing_area();
-            png(&root)?;
-            root.present().map_err(drawing(path))
-        }
-    }
-}
-
 /// Liquid yield over the swept parameters: a line for one, a heat map for two (the
 /// first two when there are three).
 pub fn sweep(study: &Sweep, path: &Path) -> Result<()> {
-    let v0 = &study.variables[0];
-    let label = |v: &crate::study::Variable| {
-        if v.unit.is_empty() {
-            v.name()
-        } else {
-            format!("{} [{}]", v.name(), v.unit)
-        }
-    };
-    let yields: Vec<(f64, Option<f64>)> = study
-        .cases
-        .iter()
-        .map(|c| {
-            (
-                c.coordinates[0],
-                c.outcome.as_ref().ok().map(|m| m.liquid_yield),
-            )
-        })
-        .collect();
-    let y_max = yields
-        .iter()
-        .filter_map(|y| y.1)
-        .fold(0.0f64, f64::max)
-        .max(1e-9)
-        * 1.1;
-    let (x0, x1) = (
-        v0.values[0].min(*v0.values.last().unwrap_or(&0.0)),
-        v0.values[0].max(*v0.values.last().unwrap_or(&1.0)),
-    );
-    macro_rules! body {
-        ($root:expr) => {{
-            let root = $root;
-            let err = drawing(path);
-            root.fill(&WHITE).map_err(&err)?;
-            if study.variables.len() == 1 {
-                let mut chart = chart(
-                    root,
-                    &format!("liquid yield against {}", v0.name()),
-                    24,
-                    x0..x1,
-                    0.0..y_max,
-                    path,
-                )?;
-                chart
-                    .configure_mesh()
-                    .x_desc(label(v0))
-                    .y_desc("liquid yield [-]")
-                    .axis_desc_style(("sans-serif", 20))
-                    .label_style(("sans-serif", 16))
-                    .y_label_formatter(&|v| format!("{v:.3}"))
-                    .draw()
-                    .map_err(&err)?;
-                chart
-                    .draw_series(LineSeries::new(
-                        yields.iter().filter_map(|(x, y)| y.map(|y| (*x, y))),
-                        BLUE.stroke_width(3),
-                    ))
-                    .map_err(&err)?
-                    .label("solved cases")
-                    .legend(|(x, y)| PathElement::new([(x, y), (x + 18, y)], BLUE.stroke_width(3)));
-                chart
-                    .draw_series(
-                        yields
-                            .iter()
-                            .filter(|y| y.1.is_none())
-                            .map(|(x, _)| Cross::new((*x, 0.0), 6, RED.stroke_width(2))),
-                    )
-                    .map_err(&err)?
-                    .label("failed cases")
-                    .legend(|(x, y)| Cross::new((x + 9, y), 6, RED.stroke_width(2)));
-                legend(&mut chart, SeriesLabelPosition::UpperRight, path)?;
+    write_figure(&SweepFigure { study }, SIZE, path)
+}
+
+/// The drawing of [`sweep`], on any backend.
+struct SweepFigure<'a> {
+    study: &'a Sweep,
+}
+
+impl Figure for SweepFigure<'_> {
+    fn draw<DB: DrawingBackend>(&self, root: &DrawingArea<DB, Shift>, path: &Path) -> Result<()> {
+        let SweepFigure { study } = *self;
+        let v0 = &study.variables[0];
+        let label = |v: &crate::study::Variable| {
+            if v.unit.is_empty() {
+                v.name()
             } else {
-                let v1 = &study.variables[1];
-                let (a0, a1) = (
-                    v1.values[0].min(*v1.values.last().unwrap_or(&0.0)),
-                    v1.values[0].max(*v1.values.last().unwrap_or(&1.0)),
-                );
-                let (dx, dy) = (
-                    (x1 - x0) / (v0.values.len().max(2) - 1) as f64,
-                    (a1 - a0) / (v1.values.len().max(2) - 1) as f64,
-                );
-                let mut chart = chart(
-                    root,
-                    &format!("liquid yield over {} and {}", v0.name(), v1.name()),
-                    22,
-                    (x0 - dx / 2.0)..(x1 + dx / 2.0),
-                    (a0 - dy / 2.0)..(a1 + dy / 2.0),
-                    path,
-                )?;
-                chart
-                    .configure_mesh()
-                    .x_desc(label(v0))
-                    .y_desc(label(v1))
-                    .axis_desc_style(("sans-serif", 20))
-                    .label_style(("sans-serif", 16))
-                    .draw()
-                    .map_err(&err)?;
-                chart
-                    .draw_series(study.cases.iter().map(|c| {
-                        let (x, y) = (c.coordinates[0], c.coordinates[1]);
-                        let colour = match &c.outcome {
-                            Ok(m) => {
-                                let f = (1.1 * m.liquid_yield / y_max).clamp(0.0, 1.0);
-                                RGBColor(
-                                    (255.0 * f) as u8,
-                                    (60.0 + 120.0 * f) as u8,
-                                    (255.0 * (1.0 - f)) as u8,
-                                )
-                            }
-                            Err(_) => RGBColor(90, 90, 90),
-                        };
-                        Rectangle::new(
-                            [(x - dx / 2.0, y - dy / 2.0), (x + dx / 2.0, y + dy / 2.0)],
-                            colour.filled(),
-                        )
-                    }))
-                    .map_err(&err)?;
-                chart
-                    .draw_series([Text::new(
-                        format!(
-                            "colour: liquid yield from 0 (blue) to {:.3} (orange); grey: failed",
-                            y_max / 1.1
-                        ),
-                        (x0, a1 + dy * 0.2),
-                        ("sans-serif", 16).into_font().color(&BLACK),
-                    )])
-                    .map_err(&err)?;
+                format!("{} [{}]", v.name(), v.unit)
             }
-            Ok(())
-        }};
+        };
+        let yields: Vec<(f64, Option<f64>)> = study
+            .cases
+            .iter()
+            .map(|c| {
+                (
+                    c.coordinates[0],
+                    c.outcome.as_ref().ok().map(|m| m.liquid_yield),
+                )
+            })
+            .collect();
+        let y_max = yields
+            .iter()
+            .filter_map(|y| y.1)
+            .fold(0.0f64, f64::max)
+            .max(1e-9)
+            * 1.1;
+        let (x0, x1) = (
+            v0.values[0].min(*v0.values.last().unwrap_or(&0.0)),
+            v0.values[0].max(*v0.values.last().unwrap_or(&1.0)),
+        );
+        let err = drawing(path);
+        root.fill(&WHITE).map_err(&err)?;
+        if study.variables.len() == 1 {
+            let mut chart = chart(
+                root,
+                &format!("liquid yield against {}", v0.name()),
+                24,
+                x0..x1,
+                0.0..y_max,
+                path,
+            )?;
+            chart
+                .configure_mesh()
+                .x_desc(label(v0))
+                .y_desc("liquid yield [-]")
+                .axis_desc_style(("sans-serif", 20))
+                .label_style(("sans-serif", 16))
+                .y_label_formatter(&|v| format!("{v:.3}"))
+                .draw()
+                .map_err(&err)?;
+            chart
+                .draw_series(LineSeries::new(
+                    yields.iter().filter_map(|(x, y)| y.map(|y| (*x, y))),
+                    BLUE.stroke_width(3),
+                ))
+                .map_err(&err)?
+                .label("solved cases")
+                .legend(|(x, y)| PathElement::new([(x, y), (x + 18, y)], BLUE.stroke_width(3)));
+            chart
+                .draw_series(
+                    yields
+                        .iter()
+                        .filter(|y| y.1.is_none())
+                        .map(|(x, _)| Cross::new((*x, 0.0), 6, RED.stroke_width(2))),
+                )
+                .map_err(&err)?
+                .label("failed cases")
+                .legend(|(x, y)| Cross::new((x + 9, y), 6, RED.stroke_width(2)));
+            legend(&mut chart, SeriesLabelPosition::UpperRight, path)?;
+        } else {
+            let v1 = &study.variables[1];
+            let (a0, a1) = (
+                v1.values[0].min(*v1.values.last().unwrap_or(&0.0)),
+                v1.values[0].max(*v1.values.last().unwrap_or(&1.0)),
+            );
+            let (dx, dy) = (
+                (x1 - x0) / (v0.values.len().max(2) - 1) as f64,
+                (a1 - a0) / (v1.values.len().max(2) - 1) as f64,
+            );
+            let mut chart = chart(
+                root,
+                &format!("liquid yield over {} and {}", v0.name(), v1.name()),
+                22,
+                (x0 - dx / 2.0)..(x1 + dx / 2.0),
+                (a0 - dy / 2.0)..(a1 + dy / 2.0),
+                path,
+            )?;
+            chart
+                .configure_mesh()
+                .x_desc(label(v0))
+                .y_desc(label(v1))
+                .axis_desc_style(("sans-serif", 20))
+                .label_style(("sans-serif", 16))
+                .draw()
+                .map_err(&err)?;
+            chart
+                .draw_series(study.cases.iter().map(|c| {
+                    let (x, y) = (c.coordinates[0], c.coordinates[1]);
+                    let colour = match &c.outcome {
+                        Ok(m) => {
+                            let f = (1.1 * m.liquid_yield / y_max).clamp(0.0, 1.0);
+                            RGBColor(
+                                (255.0 * f) as u8,
+                                (60.0 + 120.0 * f) as u8,
+                                (255.0 * (1.0 - f)) as u8,
+                            )
+                        }
+                        Err(_) => RGBColor(90, 90, 90),
+                    };
+                    Rectangle::new(
+                        [(x - dx / 2.0, y - dy / 2.0), (x + dx / 2.0, y + dy / 2.0)],
+                        colour.filled(),
+                    )
+                }))
+                .map_err(&err)?;
+            chart
+                .draw_series([Text::new(
+                    format!(
+                        "colour: liquid yield from 0 (blue) to {:.3} (orange); grey: failed",
+                        y_max / 1.1
+                    ),
+                    (x0, a1 + dy * 0.2),
+                    ("sans-serif", 16).into_font().color(&BLACK),
+                )])
+                .map_err(&err)?;
+        }
+        Ok(())
     }
-    with_backend(path, |r| body!(r), |r| body!(r))
 }
 
 /// Headline figures of several flowsheets side by side: liquid yield and specific
 /// energy as bars.
 pub fn compare(names: &[String], yields: &[f64], energies: &[f64], path: &Path) -> Result<()> {
-    let n = names.len().max(1);
-    macro_rules! body {
-        ($root:expr) => {{
-            let root = $root;
-            let err = drawing(path);
-            root.fill(&WHITE).map_err(&err)?;
-            let (top, bottom) = root.split_vertically(SIZE.1 / 2);
-            for (area, values, title, unit, colour) in [
-                (&top, yields, "liquid yield", "[-]", BLUE),
-                (
-                    &bottom,
-                    energies,
-                    "specific energy with precooling",
-                    "[kWh/kg]",
-                    RED,
-                ),
-            ] {
-                let max = values
-                    .iter()
-                    .copied()
-                    .filter(|v| v.is_finite())
-                    .fold(0.0f64, f64::max)
-                    .max(1e-9)
-                    * 1.2;
-                let mut chart = ChartBuilder::on(area)
-                    .caption(title, ("sans-serif", 20))
-                    .margin(14)
-                    .x_label_area_size(40)
-                    .y_label_area_size(70)
-                    .build_cartesian_2d(0.0..n as f64, 0.0..max)
-                    .map_err(&err)?;
-                chart
-                    .configure_mesh()
-                    .disable_x_mesh()
-                    .x_labels(0)
-                    .y_desc(format!("{title} {unit}"))
-                    .label_style(("sans-serif", 14))
-                    .axis_desc_style(("sans-serif", 15))
-                    .draw()
-                    .map_err(&err)?;
-                chart
-                    .draw_series(
-                        values
-                            .iter()
-                            .enumerate()
-                            .filter(|(_, v)| v.is_finite())
-                            .map(|(i, v)| {
-                                Rectangle::new(
-                                    [(i as f64 + 0.2, 0.0), (i as f64 + 0.8, *v)],
-                                    colour.mix(0.7).filled(),
-                                )
-                            }),
-                    )
-                    .map_err(&err)?;
-                for (i, name) in names.iter().enumerate() {
-                    let (px, py) = chart.backend_coord(&(i as f64 + 0.5, 0.0));
-                    let half = name.chars().count() as i32 * 4;
+    write_figure(
+        &CompareFigure {
+            names,
+            yields,
+            energies,
+        },
+        SIZE,
+        path,
+    )
+}
+
+/// The drawing of [`compare`], on any backend.
+struct CompareFigure<'a> {
+    names: &'a [String],
+    yields: &'a [f64],
+    energies: &'a [f64],
+}
+
+impl Figure for CompareFigure<'_> {
+    fn draw<DB: DrawingBackend>(&self, root: &DrawingArea<DB, Shift>, path: &Path) -> Result<()> {
+        let CompareFigure {
+            names,
+            yields,
+            energies,
+        } = *self;
+        let n = names.len().max(1);
+        let err = drawing(path);
+        root.fill(&WHITE).map_err(&err)?;
+        let (top, bottom) = root.split_vertically(SIZE.1 / 2);
+        for (area, values, title, unit, colour) in [
+            (&top, yields, "liquid yield", "[-]", BLUE),
+            (
+                &bottom,
+                energies,
+                "specific energy with precooling",
+                "[kWh/kg]",
+                RED,
+            ),
+        ] {
+            let max = values
+                .iter()
+                .copied()
+                .filter(|v| v.is_finite())
+                .fold(0.0f64, f64::max)
+                .max(1e-9)
+                * 1.2;
+            let mut chart = ChartBuilder::on(area)
+                .caption(title, ("sans-serif", 20))
+                .margin(14)
+                .x_label_area_size(40)
+                .y_label_area_size(70)
+                .build_cartesian_2d(0.0..n as f64, 0.0..max)
+                .map_err(&err)?;
+            chart
+                .configure_mesh()
+                .disable_x_mesh()
+                .x_labels(0)
+                .y_desc(format!("{title} {unit}"))
+                .label_style(("sans-serif", 14))
+                .axis_desc_style(("sans-serif", 15))
+                .draw()
+                .map_err(&err)?;
+            chart
+                .draw_series(
+                    values
+                        .iter()
+                        .enumerate()
+                        .filter(|(_, v)| v.is_finite())
+                        .map(|(i, v)| {
+                            Rectangle::new(
+                                [(i as f64 + 0.2, 0.0), (i as f64 + 0.8, *v)],
+                                colour.mix(0.7).filled(),
+                            )
+                        }),
+                )
+                .map_err(&err)?;
+            for (i, name) in names.iter().enumerate() {
+                let (px, py) = chart.backend_coord(&(i as f64 + 0.5, 0.0));
+                let half = name.chars().count() as i32 * 4;
+                area.draw(&Text::new(
+                    name.clone(),
+                    (px - half, py + 8),
+                    ("sans-serif", 14).into_font().color(&BLACK),
+                ))
+                .map_err(&err)?;
+                if let Some(v) = values.get(i).filter(|v| v.is_finite()) {
+                    let (vx, vy) = chart.backend_coord(&(i as f64 + 0.35, *v));
                     area.draw(&Text::new(
-                        name.clone(),
-                        (px - half, py + 8),
+                        format!("{v:.4}"),
+                        (vx, vy - 18),
                         ("sans-serif", 14).into_font().color(&BLACK),
                     ))
                     .map_err(&err)?;
-                    if let Some(v) = values.get(i).filter(|v| v.is_finite()) {
-                        let (vx, vy) = chart.backend_coord(&(i as f64 + 0.35, *v));
-                        area.draw(&Text::new(
-                            format!("{v:.4}"),
-                            (vx, vy - 18),
-                            ("sans-serif", 14).into_font().color(&BLACK),
-                        ))
-                        .map_err(&err)?;
-                    }
                 }
             }
-            Ok(())
-        }};
+        }
+        Ok(())
     }
-    with_backend(path, |r| body!(r), |r| body!(r))
 }

@@ -1,7 +1,7 @@
 //! The temperature–pressure diagram: saturation line, inversion curve, isenthalps,
 //! and the regions where throttling cools and where it warms.
 
-use super::{chart, drawing, ensure_font, format_of, legend, Format};
+use super::{chart, drawing, legend, write_figure, Figure};
 use crate::error::Result;
 use crate::fluids::diagram::TpDiagram;
 use plotters::coord::Shift;
@@ -29,18 +29,18 @@ pub struct ValvePath {
 
 /// Writes the diagram to `path` (SVG or PNG by extension).
 pub fn write(diagram: &TpDiagram, valves: &[ValvePath], path: &Path) -> Result<()> {
-    ensure_font()?;
-    match format_of(path)? {
-        Format::Svg => {
-            let root = SVGBackend::new(path, SIZE).into_drawing_area();
-            draw(diagram, valves, &root, path)?;
-            root.present().map_err(drawing(path))
-        }
-        Format::Png => {
-            let root = BitMapBackend::new(path, SIZE).into_drawing_area();
-            draw(diagram, valves, &root, path)?;
-            root.present().map_err(drawing(path))
-        }
+    write_figure(&TpFigure { diagram, valves }, SIZE, path)
+}
+
+/// The T–p diagram with its valve paths, on any backend.
+struct TpFigure<'a> {
+    diagram: &'a TpDiagram,
+    valves: &'a [ValvePath],
+}
+
+impl Figure for TpFigure<'_> {
+    fn draw<DB: DrawingBackend>(&self, root: &DrawingArea<DB, Shift>, path: &Path) -> Result<()> {
+        draw(self.diagram, self.valves, root, path)
     }
 }
 
