@@ -6,6 +6,7 @@
 // `!(x > 0.0)` is deliberate throughout: unlike `x <= 0.0` it is also true for NaN,
 // so a NaN can never pass a check.
 #![allow(clippy::neg_cmp_op_on_partial_ord)]
+#![warn(missing_docs)]
 
 pub mod batch;
 pub mod equipment;

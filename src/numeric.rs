@@ -67,20 +67,28 @@ pub fn bracketed_root(
     })
 }
 
+/// Steps of [`bracketed_newton`] before it gives up (bisection alone would narrow
+/// any bracket by 2⁻⁶⁰ in as many).
+pub const BRACKETED_NEWTON_CAP: usize = 60;
+
 /// The root of an increasing `f` (returning value and slope) between `low` and
 /// `high`, by Newton from `start`, with bisection whenever a step leaves the bracket
-/// that the iterates keep. Stops when a step is below `relative` of the iterate.
+/// that the iterates keep. Stops when a step is below `relative` of the iterate; not
+/// stopping within [`BRACKETED_NEWTON_CAP`] steps is an error naming `solver`.
 pub fn bracketed_newton(
+    solver: &'static str,
     f: impl Fn(f64) -> (f64, f64),
     start: f64,
     low: f64,
     high: f64,
     relative: f64,
-) -> f64 {
+) -> Result<f64> {
     let (mut a, mut b) = (low, high);
     let mut t = start;
-    for _ in 0..60 {
+    let mut last = f64::NAN;
+    for _ in 0..BRACKETED_NEWTON_CAP {
         let (value, slope) = f(t);
+        last = value;
         if value < 0.0 {
             a = t;
         } else {
@@ -91,11 +99,16 @@ pub fn bracketed_newton(
             next = 0.5 * (a + b);
         }
         if (next - t).abs() <= relative * t {
-            return next;
+            return Ok(next);
         }
         t = next;
     }
-    t
+    Err(Error::NoConvergence {
+        solver,
+        iterations: BRACKETED_NEWTON_CAP,
+        residual: last.abs(),
+        context: format!(": bracket [{a}, {b}], last iterate {t}"),
+    })
 }
 
 /// The maximiser of a unimodal `f` on [a, b] by golden-section search, to an
@@ -136,6 +149,20 @@ mod tests {
         let root = bracketed_root("test", |x| x * x - 2.0, 0.0, 2.0, 1e-14).unwrap();
         assert!((root - 2f64.sqrt()).abs() < 1e-12);
         assert!(bracketed_root("test", |x| x * x + 1.0, -1.0, 1.0, 1e-12).is_err());
+    }
+
+    #[test]
+    fn bracketed_newton_converges_and_reports_its_cap() {
+        let root =
+            bracketed_newton("test", |x| (x * x - 2.0, 2.0 * x), 1.0, 0.0, 2.0, 1e-14).unwrap();
+        assert!((root - 2f64.sqrt()).abs() < 1e-12);
+        // A stopping rule that can never be met (a negative relative step) ends in
+        // NoConvergence at the cap, not in the last guess.
+        let error = bracketed_newton("test", |x| (x - 0.3, 1.0), 0.9, 0.0, 1.0, -1.0).unwrap_err();
+        assert!(
+            matches!(error, Error::NoConvergence { iterations, .. } if iterations == BRACKETED_NEWTON_CAP),
+            "{error}"
+        );
     }
 
     #[test]

@@ -5,9 +5,37 @@
 use cryochain::fluids::{self, Fluid};
 use proptest::prelude::*;
 
+/// How many fluids are registered: the round trips draw from every one of them.
+fn fluid_count() -> usize {
+    fluids::names().len()
+}
+
+/// The registered fluid at `index` (0 to `fluid_count() - 1`).
 fn fluid_at(index: usize) -> &'static Fluid {
-    let names = fluids::names();
-    fluids::fluid(names[index % names.len()]).unwrap()
+    fluids::fluid(fluids::names()[index]).unwrap()
+}
+
+/// An `ImpossibleState` from (T, p) is right only on the saturation line, where T
+/// and p do not fix a state (the flash refuses within 1e-12 of the vapour pressure).
+/// Anywhere else it is a failure: a non-finite property inside the equation also
+/// surfaces as this error, and must not pass as a refusal.
+fn refusal_is_genuine(
+    fluid: &'static Fluid,
+    temperature: f64,
+    pressure: f64,
+    error: &cryochain::Error,
+) -> Result<(), TestCaseError> {
+    let on_line = fluid
+        .saturation_at_temperature(temperature)
+        .is_ok_and(|s| ((pressure - s.vapour.pressure) / s.vapour.pressure).abs() <= 1e-11);
+    if on_line {
+        Ok(())
+    } else {
+        Err(TestCaseError::fail(format!(
+            "{} T={temperature} p={pressure} is off the saturation line, yet: {error}",
+            fluid.name
+        )))
+    }
 }
 
 /// Maps u ∈ [0, 1] onto a pressure, log-uniform from 100 Pa to the highest pressure
@@ -29,7 +57,9 @@ fn check_recovers(
     let state = match fluid.state_tp(temperature, pressure) {
         Ok(s) => s,
         // Exactly on the saturation line: (T, p) does not fix a state.
-        Err(cryochain::Error::ImpossibleState { .. }) => return Ok(()),
+        Err(e @ cryochain::Error::ImpossibleState { .. }) => {
+            return refusal_is_genuine(fluid, temperature, pressure, &e)
+        }
         Err(e) => {
             return Err(TestCaseError::fail(format!(
                 "{} T={temperature} p={pressure}: {e}",
@@ -87,7 +117,7 @@ proptest! {
     #![proptest_config(ProptestConfig { cases: cases(), ..ProptestConfig::default() })]
 
     #[test]
-    fn single_phase_round_trips(index in 0usize..10, ut in 0.0f64..=1.0, up in 0.0f64..=1.0) {
+    fn single_phase_round_trips(index in 0..fluid_count(), ut in 0.0f64..=1.0, up in 0.0f64..=1.0) {
         let fluid = fluid_at(index);
         let temperature = fluid.temperature_min + ut * (fluid.temperature_max - fluid.temperature_min);
         let pressure = pressure_for(fluid, temperature, up);
@@ -97,7 +127,7 @@ proptest! {
     /// The cold end, where cryogenic cycles live, sampled more densely: T from the
     /// triple point to three times the critical temperature.
     #[test]
-    fn cold_single_phase_round_trips(index in 0usize..10, ut in 0.0f64..=1.0, up in 0.0f64..=1.0) {
+    fn cold_single_phase_round_trips(index in 0..fluid_count(), ut in 0.0f64..=1.0, up in 0.0f64..=1.0) {
         let fluid = fluid_at(index);
         let high = (3.0 * fluid.critical.temperature).min(fluid.temperature_max);
         let temperature = fluid.temperature_min + ut * (high - fluid.temperature_min);
@@ -110,7 +140,7 @@ proptest! {
     /// to the exact saturation. For air: above the bubble or below the dew pressure.
     #[test]
     fn near_saturation_round_trips(
-        index in 0usize..10,
+        index in 0..fluid_count(),
         ut in 0.0f64..=1.0,
         exponent in 2.0f64..8.0,
         above in any::<bool>(),
@@ -133,7 +163,7 @@ proptest! {
     }
 
     #[test]
-    fn two_phase_round_trips(index in 0usize..10, ut in 0.0f64..=1.0, quality in 0.0f64..=1.0) {
+    fn two_phase_round_trips(index in 0..fluid_count(), ut in 0.0f64..=1.0, quality in 0.0f64..=1.0) {
         let fluid = fluid_at(index);
         // Up to 0.999 Tc (air, whose bubble and dew lines end apart, to 0.99 Tc).
         let high = if fluid.pseudo_pure { 0.99 } else { 0.999 } * fluid.critical.temperature;
@@ -332,4 +362,34 @@ fn near_critical_grid_round_trips() {
         failures.len(),
         &failures[..failures.len().min(5)]
     );
+}
+
+/// The refusal check above fails an `ImpossibleState` off the saturation line (the
+/// old check passed any) and passes one on it.
+#[test]
+fn a_refusal_off_the_saturation_line_fails_the_round_trip() {
+    let nitrogen = fluids::fluid("nitrogen").unwrap();
+    let fake = cryochain::Error::ImpossibleState {
+        fluid: "nitrogen".into(),
+        detail: "the equation gave a non-finite property".into(),
+    };
+    assert!(refusal_is_genuine(nitrogen, 80.0, 5e5, &fake).is_err());
+    let psat = nitrogen
+        .saturation_at_temperature(80.0)
+        .unwrap()
+        .vapour
+        .pressure;
+    let genuine = nitrogen.state_tp(80.0, psat).unwrap_err();
+    assert!(refusal_is_genuine(nitrogen, 80.0, psat, &genuine).is_ok());
+}
+
+/// Every registered fluid is drawn: the index range is the registry's size and each
+/// index names a different fluid (a fixed range would miss a fluid added later).
+#[test]
+fn the_round_trips_draw_every_registered_fluid() {
+    let drawn: std::collections::BTreeSet<&str> = (0..fluid_count())
+        .map(|i| fluid_at(i).name.as_str())
+        .collect();
+    let registered: std::collections::BTreeSet<&str> = fluids::names().into_iter().collect();
+    assert_eq!(drawn, registered);
 }

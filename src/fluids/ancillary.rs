@@ -2,6 +2,7 @@
 //! saturation solver, and the melting line that bounds the fluid region.
 
 use super::file::{AncillaryEquation, AncillaryForm, MeltingFile, MeltingForm, MeltingPart};
+use crate::error::Result;
 
 impl AncillaryEquation {
     /// The value at temperature `t` (K): a pressure in Pa or a density in mol/m³.
@@ -47,19 +48,20 @@ impl AncillaryEquation {
     /// The temperature at which the (exponential, monotonic) pressure equation gives
     /// `value`, between `low` and `high` (K): Newton on ln p from a start that is
     /// linear in 1/T between the ends, kept inside the bracket.
-    pub fn temperature_at(&self, value: f64, low: f64, high: f64) -> f64 {
+    pub fn temperature_at(&self, value: f64, low: f64, high: f64) -> Result<f64> {
         let target = value.ln();
         let (ln_low, _) = self.log_value_and_slope(low);
         let (ln_high, _) = self.log_value_and_slope(high);
         if target <= ln_low {
-            return low;
+            return Ok(low);
         }
         if target >= ln_high {
-            return high;
+            return Ok(high);
         }
         let fraction = (target - ln_low) / (ln_high - ln_low);
         let start = 1.0 / (1.0 / low + fraction * (1.0 / high - 1.0 / low));
         crate::numeric::bracketed_newton(
+            "ancillary saturation temperature",
             |t| {
                 let (ln_p, slope) = self.log_value_and_slope(t);
                 (ln_p - target, slope)

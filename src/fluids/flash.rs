@@ -15,6 +15,24 @@ use crate::error::{Error, Result};
 /// Iteration cap of the temperature search at fixed pressure.
 pub const TEMPERATURE_ITERATION_CAP: usize = 100;
 
+/// Bisection steps on the quality of a pseudo-pure two-phase state at (T, ρ).
+const PSEUDO_PURE_DENSITY_CAP: usize = 80;
+
+/// Bisection steps (on ln p) for a pseudo-pure two-phase state at (T, quality);
+/// 200 halvings narrow any pressure range far below rounding.
+const PSEUDO_PURE_BISECTION_CAP: usize = 200;
+
+/// Newton steps of the quick single-phase flash in temperature before it hands over
+/// to the bracketed search.
+const QUICK_NEWTON_STEPS: usize = 8;
+
+/// Newton steps of the two-variable (T, ρ) flash near a known state before it
+/// hands over to the bracketed search.
+const NEAR_NEWTON_STEPS: usize = 12;
+
+/// Newton steps of the ideal-gas temperature estimate (a seed, not a result).
+const IDEAL_GAS_ESTIMATE_STEPS: usize = 30;
+
 /// Decisions made on the saturation table keep this many times the measured error of
 /// the table's cell between the target and the saturation line.
 pub const TABLE_MARGIN: f64 = 4.0;
@@ -274,7 +292,7 @@ impl Fluid {
     fn pseudo_pure_two_phase_t_rho(&'static self, temperature: f64, density: f64) -> Result<State> {
         let (mut low, mut high) = (0.0, 1.0);
         let mut last = f64::INFINITY;
-        for _ in 0..80 {
+        for _ in 0..PSEUDO_PURE_DENSITY_CAP {
             let mid = 0.5 * (low + high);
             let state = self.state_t_quality(temperature, mid)?;
             last = (state.density - density) / density;
@@ -289,7 +307,7 @@ impl Fluid {
         }
         Err(Error::NoConvergence {
             solver: "two-phase quality from temperature and density",
-            iterations: 80,
+            iterations: PSEUDO_PURE_DENSITY_CAP,
             residual: last,
             context: format!(
                 " for {} at T = {temperature} K, ρ = {density} kg/m³",
@@ -321,17 +339,17 @@ impl Fluid {
         let dew = &self.ancillaries.dew_pressure;
         self.saturation_at_temperature(temperature)?; // range check
         let (t_low, t_high) = (self.triple_temperature, self.saturation_temperature_max());
-        let target = |p: f64| {
-            let tb = bubble.temperature_at(p, t_low, t_high);
-            let td = dew.temperature_at(p, t_low, t_high);
-            tb + quality * (td - tb) - temperature
+        let target = |p: f64| -> Result<f64> {
+            let tb = bubble.temperature_at(p, t_low, t_high)?;
+            let td = dew.temperature_at(p, t_low, t_high)?;
+            Ok(tb + quality * (td - tb) - temperature)
         };
         // The root lies between the dew and bubble pressures at T.
         let (mut a, mut b) = (dew.value(temperature), bubble.value(temperature));
-        let mut fa = target(a);
-        for _ in 0..200 {
+        let mut fa = target(a)?;
+        for _ in 0..PSEUDO_PURE_BISECTION_CAP {
             let mid = (a * b).sqrt();
-            let fm = target(mid);
+            let fm = target(mid)?;
             if (fm < 0.0) == (fa < 0.0) {
                 a = mid;
                 fa = fm;
@@ -411,7 +429,7 @@ impl Fluid {
                 .properties_near(region, current.temperature, pressure, &current)
                 .ok()?;
         }
-        for _ in 0..8 {
+        for _ in 0..QUICK_NEWTON_STEPS {
             let g = held.of(&current) - target;
             let t = current.temperature;
             if g.abs() <= 0.1 * held.rounding(self, t) {
@@ -642,7 +660,7 @@ impl Fluid {
     ) -> Option<Result<State>> {
         let (mut t, mut rho) = (start.temperature, start.density);
         let mut props = *start;
-        for _ in 0..12 {
+        for _ in 0..NEAR_NEWTON_STEPS {
             let f1 = props.pressure - pressure;
             let f2 = held.of(&props) - target;
             let (a, b) = (props.dp_dt, props.dp_drho);
@@ -693,7 +711,7 @@ impl Fluid {
     fn ideal_gas_estimate(&self, pressure: f64, target: f64, held: Held, start: f64) -> f64 {
         let (low, high) = (self.temperature_min, self.temperature_max);
         let mut t = start.clamp(low, high);
-        for _ in 0..30 {
+        for _ in 0..IDEAL_GAS_ESTIMATE_STEPS {
             let tau = self.tau(t);
             let i = self.ideal.evaluate(tau);
             let r = self.gas_constant;

@@ -30,67 +30,81 @@ pub use state::{Phase, SaturatedPair, State};
 use crate::error::{Error, Result};
 use std::sync::OnceLock;
 
-/// The built-in fluid files: canonical name and text.
-const FLUID_FILES: [(&str, &str); 10] = [
-    ("nitrogen", include_str!("data/nitrogen.yaml")),
-    ("hydrogen", include_str!("data/hydrogen.yaml")),
-    ("parahydrogen", include_str!("data/parahydrogen.yaml")),
-    ("orthohydrogen", include_str!("data/orthohydrogen.yaml")),
-    ("helium", include_str!("data/helium.yaml")),
-    ("neon", include_str!("data/neon.yaml")),
-    ("argon", include_str!("data/argon.yaml")),
-    ("methane", include_str!("data/methane.yaml")),
-    ("oxygen", include_str!("data/oxygen.yaml")),
-    ("air", include_str!("data/air.yaml")),
+/// The built-in fluid files, one a fluid. Each names itself (`name:`) and its
+/// aliases (`aliases: [..]`) in its header; everything here is derived from them.
+const FLUID_FILES: &[&str] = &[
+    include_str!("data/nitrogen.yaml"),
+    include_str!("data/hydrogen.yaml"),
+    include_str!("data/parahydrogen.yaml"),
+    include_str!("data/orthohydrogen.yaml"),
+    include_str!("data/helium.yaml"),
+    include_str!("data/neon.yaml"),
+    include_str!("data/argon.yaml"),
+    include_str!("data/methane.yaml"),
+    include_str!("data/oxygen.yaml"),
+    include_str!("data/air.yaml"),
 ];
 
-static LOADED: [OnceLock<std::result::Result<Fluid, Error>>; 10] = [
-    OnceLock::new(),
-    OnceLock::new(),
-    OnceLock::new(),
-    OnceLock::new(),
-    OnceLock::new(),
-    OnceLock::new(),
-    OnceLock::new(),
-    OnceLock::new(),
-    OnceLock::new(),
-    OnceLock::new(),
-];
+/// Each fluid, loaded and checked on first use.
+static LOADED: [OnceLock<std::result::Result<Fluid, Error>>; FLUID_FILES.len()] =
+    [const { OnceLock::new() }; FLUID_FILES.len()];
+
+/// A top-level scalar or flow list of a data file's header (`key: value`), read
+/// without parsing the whole file.
+fn header_field<'t>(text: &'t str, key: &str) -> Option<&'t str> {
+    text.lines()
+        .take_while(|line| !line.starts_with("ideal_gas:"))
+        .find_map(|line| line.strip_prefix(key)?.strip_prefix(':'))
+        .map(str::trim)
+}
+
+/// The canonical name and aliases of every built-in fluid, from the files' headers.
+fn registry() -> &'static [(String, Vec<String>)] {
+    static REGISTRY: OnceLock<Vec<(String, Vec<String>)>> = OnceLock::new();
+    REGISTRY.get_or_init(|| {
+        FLUID_FILES
+            .iter()
+            .map(|text| {
+                let name = header_field(text, "name").unwrap_or_default().to_string();
+                let aliases = header_field(text, "aliases")
+                    .map(|list| {
+                        list.trim_start_matches('[')
+                            .trim_end_matches(']')
+                            .split(',')
+                            .map(|a| a.trim().to_lowercase())
+                            .filter(|a| !a.is_empty())
+                            .collect()
+                    })
+                    .unwrap_or_default();
+                (name, aliases)
+            })
+            .collect()
+    })
+}
 
 /// Canonical names of the built-in fluids, in a stable order.
 pub fn names() -> Vec<&'static str> {
-    FLUID_FILES.iter().map(|(name, _)| *name).collect()
+    registry().iter().map(|(name, _)| name.as_str()).collect()
 }
 
 fn load(index: usize) -> Result<&'static Fluid> {
     let slot = LOADED[index].get_or_init(|| {
-        let (name, text) = FLUID_FILES[index];
-        let file_name = format!("src/fluids/data/{name}.yaml");
-        let data: file::FluidFile = serde_yaml::from_str(text).map_err(|e| Error::FluidData {
-            file: file_name.clone(),
-            message: e.to_string(),
-        })?;
+        let file_name = format!("src/fluids/data/{}.yaml", registry()[index].0);
+        let data: file::FluidFile =
+            serde_yaml::from_str(FLUID_FILES[index]).map_err(|e| Error::FluidData {
+                file: file_name.clone(),
+                message: e.to_string(),
+            })?;
         Fluid::from_file(data, &file_name)
     });
     slot.as_ref().map_err(Clone::clone)
 }
 
-/// Aliases accepted besides the canonical names (kept here so lookup needs no parsing).
+/// The index of the fluid with this canonical name or alias (lower case).
 fn alias_index(name: &str) -> Option<usize> {
-    let canonical = match name {
-        "n2" => "nitrogen",
-        "h2" | "normal-hydrogen" | "normalhydrogen" | "n-h2" => "hydrogen",
-        "para-hydrogen" | "p-h2" => "parahydrogen",
-        "ortho-hydrogen" | "o-h2" => "orthohydrogen",
-        "he" | "helium-4" | "he4" => "helium",
-        "ne" => "neon",
-        "ar" => "argon",
-        "ch4" => "methane",
-        "o2" => "oxygen",
-        "dry-air" => "air",
-        other => other,
-    };
-    FLUID_FILES.iter().position(|(n, _)| *n == canonical)
+    registry()
+        .iter()
+        .position(|(canonical, aliases)| canonical == name || aliases.iter().any(|a| a == name))
 }
 
 /// The built-in fluid with this name or alias (case-insensitive).
@@ -108,4 +122,31 @@ pub fn fluid(name: &str) -> Result<&'static Fluid> {
 /// Every built-in fluid.
 pub fn all() -> Result<Vec<&'static Fluid>> {
     (0..FLUID_FILES.len()).map(load).collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The header scan agrees with the full parse of each file (the name the file
+    /// is stored under, the name inside it and its aliases).
+    #[test]
+    fn the_registry_agrees_with_the_data_files() {
+        for (index, fluid) in all().unwrap().into_iter().enumerate() {
+            let data: file::FluidFile = serde_yaml::from_str(FLUID_FILES[index]).unwrap();
+            let (name, aliases) = &registry()[index];
+            assert_eq!(name, &fluid.name);
+            assert_eq!(name, &data.name);
+            let parsed: Vec<String> = data.aliases.iter().map(|a| a.to_lowercase()).collect();
+            assert_eq!(aliases, &parsed, "{name}");
+            for alias in aliases {
+                assert_eq!(fluid_name(alias), Some(name.as_str()));
+            }
+        }
+        assert_eq!(names().len(), FLUID_FILES.len());
+    }
+
+    fn fluid_name(alias: &str) -> Option<&'static str> {
+        alias_index(alias).map(|i| registry()[i].0.as_str())
+    }
 }

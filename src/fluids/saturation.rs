@@ -227,11 +227,11 @@ impl Fluid {
             let bubble_t = self
                 .ancillaries
                 .bubble_pressure
-                .temperature_at(pressure, t_low, t_high);
+                .temperature_at(pressure, t_low, t_high)?;
             let dew_t = self
                 .ancillaries
                 .dew_pressure
-                .temperature_at(pressure, t_low, t_high);
+                .temperature_at(pressure, t_low, t_high)?;
             let on_branch = |temperature: f64, branch: Branch| -> Result<Properties> {
                 let factors = self.tau_factors(temperature);
                 let density =
@@ -251,7 +251,7 @@ impl Fluid {
                 let start = self
                     .ancillaries
                     .bubble_pressure
-                    .temperature_at(pressure, t_low, t_high);
+                    .temperature_at(pressure, t_low, t_high)?;
                 (
                     start,
                     self.ancillary_liquid_density(start),

@@ -56,10 +56,17 @@ fn stopped(
     }
 }
 
-/// A pass at `x`; when it fails, steps back halfway towards `safe` up to ten times.
+/// Times a failed pass steps back halfway towards the last good point.
+const STEP_BACK_CAP: usize = 10;
+
+/// Step halvings of the Broyden line search before it takes the shortest step.
+const LINE_SEARCH_CAP: usize = 12;
+
+/// A pass at `x`; when it fails, steps back halfway towards `safe` up to
+/// [`STEP_BACK_CAP`] times.
 fn guarded_pass(problem: &mut impl FixedPoint, x: &mut [f64], safe: &[f64]) -> Result<Vec<f64>> {
     let mut last_error = None;
-    for _ in 0..10 {
+    for _ in 0..STEP_BACK_CAP {
         match problem.pass(x) {
             Ok(g) if g.iter().all(|v| v.is_finite()) => return Ok(g),
             Ok(_) => last_error = None,
@@ -237,7 +244,7 @@ pub fn broyden(
         let step = -(&inverse * &f);
         let mut lambda = 1.0;
         let mut accepted = None;
-        for _ in 0..12 {
+        for _ in 0..LINE_SEARCH_CAP {
             let mut trial: Vec<f64> = (&x + &step * lambda).as_slice().to_vec();
             let safe = x.as_slice().to_vec();
             if let Ok(g) = guarded_pass(problem, &mut trial, &safe) {
