@@ -118,6 +118,9 @@ fn malformed_flowsheets_give_specific_located_errors() {
         ("compressor lowers pressure", replace("outlet_pressure: 200 atm", "outlet_pressure: 0.5 atm"), "not above the inlet pressure", ":17:5"),
         ("bad feed flow", replace("flow: balance", "flow: plenty"), "no number found", ":10:5"),
         ("id with a dot", replace("  - id: valve", "  - id: valve.1"), "not a usable id", ":25:"),
+        ("transfer line with a negative heat leak", replace("inlet: hx.hot-out\n", "inlet: line\n") + "  - {id: line, kind: transfer-line, inlet: hx.hot-out, heat_leak: -5 W}\n", "outside the allowed range", ":35:"),
+        ("transfer line with a key of another kind", replace("inlet: hx.hot-out\n", "inlet: line\n") + "  - id: line\n    kind: transfer-line\n    inlet: hx.hot-out\n    outlet_pressure: 2 bar\n", "unknown key 'outlet_pressure' for a transfer-line", ":38:5"),
+        ("transfer line without an inlet", replace("inlet: hx.hot-out\n", "inlet: line\n") + "  - id: line\n    kind: transfer-line\n    heat_leak: 5 W\n", "'inlet' is required for a transfer-line", ":35:"),
     ];
     assert!(cases.len() >= 20);
     for (what, text, fragment, place) in cases {

@@ -73,6 +73,7 @@ register_kinds! {
     Mixer(mixer::Mixer),
     Splitter(splitter::Splitter),
     Expander(expander::Expander),
+    TransferLine(transfer_line::TransferLine),
 }
 
 /// One registered kind: its name, its keys and its reader.

@@ -3,6 +3,7 @@
 
 use super::plant::{flow_networks, static_pressures, Plant};
 use super::resolve::Resolver;
+use crate::equipment;
 use crate::error::FlowsheetError;
 use crate::reading::Params;
 use std::collections::{BTreeMap, BTreeSet};
@@ -31,10 +32,20 @@ impl Resolver<'_> {
             let unit = plant.streams[s].from.unit;
             match bases.get(&root).map(Vec::as_slice) {
                 None | Some([]) => {
-                    return Err(self.item_error(unit, format!(
-                        "the flow network through {} has no flow basis: give one feed a fixed 'flow', or one compressor (or cooler, precooler, valve, expander) a 'flow'",
-                        plant.streams[s].name
-                    )))
+                    let carriers: Vec<&str> = equipment::KINDS
+                        .iter()
+                        .filter(|k| k.keys.contains(&"flow") && k.name != "feed")
+                        .map(|k| k.name)
+                        .collect();
+                    let message = format!(
+                        "the flow network through {} has no flow basis: give one feed a fixed 'flow', or put 'flow' on one {}",
+                        plant.streams[s].name,
+                        match carriers.split_last() {
+                            Some((last, rest)) if !rest.is_empty() => format!("{} or {last}", rest.join(", ")),
+                            _ => carriers.join(""),
+                        }
+                    );
+                    return Err(self.item_error(unit, message));
                 }
                 Some([_]) => {}
                 Some(many) => {
