@@ -2,6 +2,7 @@
 //! what to print. None of them prints.
 
 use super::{exit, Failure, Format, FormatArgs, Output};
+use clap::Args;
 use cryochain::error::Error;
 use cryochain::flowsheet::{self, Override, Plant};
 use cryochain::fluids::{self, Spec};
@@ -49,20 +50,35 @@ fn write_text(path: &Path, text: &str) -> Result<(), Failure> {
         .map_err(|e| Failure::new(format!("cannot write {}: {e}", path.display()), exit::IO))
 }
 
+/// The options of `solve`.
+#[derive(Debug, Args)]
+pub struct SolveArgs {
+    /// The flowsheet file (YAML); see docs/flowsheet-format.md.
+    pub file: Option<PathBuf>,
+    #[command(flatten)]
+    pub format: FormatArgs,
+    /// Override a parameter for a quick what-if: id.key=value (repeatable).
+    #[arg(long = "set", value_name = "ID.KEY=VALUE")]
+    pub set: Vec<String>,
+    /// Print the largest tear residual of every pass on stderr.
+    #[arg(long)]
+    pub log: bool,
+    /// Write the plots (T–s, T–p with the valves, exchanger curves, exergy) as SVG
+    /// and PNG into this folder.
+    #[arg(long, value_name = "DIR")]
+    pub plot: Option<PathBuf>,
+    /// Write streams.csv and equipment.csv into this folder.
+    #[arg(long, value_name = "DIR")]
+    pub csv: Option<PathBuf>,
+}
+
 /// `solve`: results of a flowsheet, with plots and CSV tables on request.
-pub fn solve(
-    file: Option<&Path>,
-    set: &[String],
-    log: bool,
-    plot: Option<&Path>,
-    csv: Option<&Path>,
-    format: FormatArgs,
-) -> Result<Output, Failure> {
-    let format = format.choose("solve", &[Format::Text, Format::Json])?;
+pub fn solve(args: &SolveArgs) -> Result<Output, Failure> {
+    let format = args.format.choose("solve", &[Format::Text, Format::Json])?;
     let mut notes = Vec::new();
-    let plant = load_plant(file, set, &mut notes)?;
+    let plant = load_plant(args.file.as_deref(), &args.set, &mut notes)?;
     let solution = cryochain::solve::solve(&plant, &Default::default())?;
-    if let Some(dir) = plot {
+    if let Some(dir) = &args.plot {
         let files = report::plot::cycle::write_all(&plant, &solution, dir)?;
         notes.push(format!(
             "wrote {} plot files to {}",
@@ -70,7 +86,7 @@ pub fn solve(
             dir.display()
         ));
     }
-    if let Some(dir) = csv {
+    if let Some(dir) = &args.csv {
         let files = report::tables_csv::write_all(&solution, dir)?;
         notes.push(format!(
             "wrote {} CSV files to {}",
@@ -78,7 +94,7 @@ pub fn solve(
             dir.display()
         ));
     }
-    if log {
+    if args.log {
         for (i, r) in solution.residual_log.iter().enumerate() {
             notes.push(format!(
                 "pass {:>4}  largest scaled tear residual {r:.3e}",
@@ -99,12 +115,24 @@ pub fn solve(
     Ok(Output { stdout, notes })
 }
 
+/// The options of `check`.
+#[derive(Debug, Args)]
+pub struct CheckArgs {
+    /// The flowsheet file (with no file: the built-in demo).
+    pub file: Option<PathBuf>,
+    #[command(flatten)]
+    pub format: FormatArgs,
+    /// Override a parameter: id.key=value (repeatable).
+    #[arg(long = "set", value_name = "ID.KEY=VALUE")]
+    pub set: Vec<String>,
+}
+
 /// `check`: the design checks; a design with errors fails with the design code,
 /// after its findings are printed.
-pub fn check(file: Option<&Path>, set: &[String], format: FormatArgs) -> Result<Output, Failure> {
-    let format = format.choose("check", &[Format::Text, Format::Json])?;
+pub fn check(args: &CheckArgs) -> Result<Output, Failure> {
+    let format = args.format.choose("check", &[Format::Text, Format::Json])?;
     let mut notes = Vec::new();
-    let plant = load_plant(file, set, &mut notes)?;
+    let plant = load_plant(args.file.as_deref(), &args.set, &mut notes)?;
     let solution = cryochain::solve::solve(&plant, &Default::default())?;
     let findings = rules::check(&plant, &solution);
     let stdout = match format {
@@ -133,21 +161,27 @@ pub fn check(file: Option<&Path>, set: &[String], format: FormatArgs) -> Result<
     Ok(output)
 }
 
-/// What `sweep` is given.
-pub struct SweepArgs<'a> {
+/// The options of `sweep`.
+#[derive(Debug, Args)]
+pub struct SweepArgs {
     /// The flowsheet file.
-    pub file: &'a Path,
-    /// The `--vary` ranges.
-    pub vary: &'a [String],
-    /// Fixed overrides.
-    pub set: &'a [String],
-    /// `K/N`.
-    pub shard: Option<&'a str>,
-    /// Where to write the cases as CSV.
-    pub csv: Option<&'a Path>,
-    /// Where to write a plot.
-    pub plot: Option<&'a Path>,
-    /// Output format.
+    pub file: PathBuf,
+    /// id.key=START..END:STEPS[:log], both ends with their unit (repeatable, 1–3).
+    #[arg(long = "vary", required = true)]
+    pub vary: Vec<String>,
+    /// Fixed overrides applied to every case.
+    #[arg(long = "set")]
+    pub set: Vec<String>,
+    /// Run only shard K of N (K/N): every N-th row of the grid from row K.
+    #[arg(long)]
+    pub shard: Option<String>,
+    /// Write the cases as CSV here.
+    #[arg(long)]
+    pub csv: Option<PathBuf>,
+    /// Write a plot (line or heat map) here (.svg or .png).
+    #[arg(long)]
+    pub plot: Option<PathBuf>,
+    #[command(flatten)]
     pub format: FormatArgs,
 }
 
@@ -184,15 +218,15 @@ fn progress_bar(total: usize) -> indicatif::ProgressBar {
 /// `sweep`: every case of a grid, solved in parallel.
 pub fn sweep(args: &SweepArgs) -> Result<Output, Failure> {
     let format = args.format.choose("sweep", &[Format::Text, Format::Csv])?;
-    let text = read_text(args.file)?;
+    let text = read_text(&args.file)?;
     let name = args.file.display().to_string();
-    let overrides = parse_overrides(args.set)?;
+    let overrides = parse_overrides(&args.set)?;
     let variables = args
         .vary
         .iter()
         .map(|v| study::Variable::parse_range(v))
         .collect::<Result<Vec<_>, _>>()?;
-    let shard = args.shard.map(parse_shard).transpose()?;
+    let shard = args.shard.as_deref().map(parse_shard).transpose()?;
     let total: usize = variables.iter().map(|v| v.values.len()).product();
     let bar = progress_bar(total);
     let progress = |done: usize, of: usize| {
@@ -203,7 +237,7 @@ pub fn sweep(args: &SweepArgs) -> Result<Output, Failure> {
     bar.finish_and_clear();
     let mut notes = Vec::new();
     let csv_text = study::to_csv(&result)?;
-    if let Some(path) = args.csv {
+    if let Some(path) = &args.csv {
         write_text(path, &csv_text)?;
         notes.push(format!(
             "wrote {} cases to {}",
@@ -211,7 +245,7 @@ pub fn sweep(args: &SweepArgs) -> Result<Output, Failure> {
             path.display()
         ));
     }
-    if let Some(path) = args.plot {
+    if let Some(path) = &args.plot {
         report::plot::study::sweep(&result, path)?;
         notes.push(format!("wrote {}", path.display()));
     }
@@ -222,14 +256,25 @@ pub fn sweep(args: &SweepArgs) -> Result<Output, Failure> {
     Ok(Output { stdout, notes })
 }
 
+/// The options of `merge-shards`.
+#[derive(Debug, Args)]
+pub struct MergeShardsArgs {
+    /// The shard files.
+    pub files: Vec<PathBuf>,
+    /// Write here instead of stdout.
+    #[arg(long, short)]
+    pub output: Option<PathBuf>,
+}
+
 /// `merge-shards`: shard CSV files into the file the whole sweep writes.
-pub fn merge_shards(files: &[PathBuf], output: Option<&Path>) -> Result<Output, Failure> {
-    let parts = files
+pub fn merge_shards(args: &MergeShardsArgs) -> Result<Output, Failure> {
+    let parts = args
+        .files
         .iter()
         .map(|f| read_text(f))
         .collect::<Result<Vec<_>, _>>()?;
     let merged = study::merge_csv(&parts)?;
-    match output {
+    match &args.output {
         Some(path) => {
             write_text(path, &merged)?;
             Ok(Output::default())
@@ -238,23 +283,30 @@ pub fn merge_shards(files: &[PathBuf], output: Option<&Path>) -> Result<Output, 
     }
 }
 
-/// What `optimize` is given.
-pub struct OptimizeArgs<'a> {
+/// The options of `optimize`.
+#[derive(Debug, Args)]
+pub struct OptimizeArgs {
     /// The flowsheet file.
-    pub file: &'a Path,
-    /// The `--vary` bounds.
-    pub vary: &'a [String],
-    /// Figure to maximise.
-    pub maximize: Option<&'a str>,
-    /// Figure to minimise.
-    pub minimize: Option<&'a str>,
-    /// Smallest allowed exchanger approach, with its unit.
-    pub min_approach: Option<&'a str>,
+    pub file: PathBuf,
+    /// id.key=LO..HI with units (repeatable).
+    #[arg(long = "vary", required = true)]
+    pub vary: Vec<String>,
+    /// liquid_yield or figure_of_merit.
+    #[arg(long)]
+    pub maximize: Option<String>,
+    /// specific_energy.
+    #[arg(long)]
+    pub minimize: Option<String>,
+    /// Keep the smallest exchanger approach at least this (for example 1K).
+    #[arg(long = "min-approach")]
+    pub min_approach: Option<String>,
     /// Fixed overrides.
-    pub set: &'a [String],
+    #[arg(long = "set")]
+    pub set: Vec<String>,
     /// Solver iteration cap.
+    #[arg(long, default_value_t = 100)]
     pub iterations: u64,
-    /// Output format.
+    #[command(flatten)]
     pub format: FormatArgs,
 }
 
@@ -264,17 +316,18 @@ pub fn optimize(args: &OptimizeArgs) -> Result<Output, Failure> {
     let format = args
         .format
         .choose("optimize", &[Format::Text, Format::Json])?;
-    let text = read_text(args.file)?;
+    let text = read_text(&args.file)?;
     let name = args.file.display().to_string();
-    let overrides = parse_overrides(args.set)?;
+    let overrides = parse_overrides(&args.set)?;
     let variables = args
         .vary
         .iter()
         .map(|v| Bounded::parse(v))
         .collect::<Result<Vec<_>, _>>()?;
-    let objective = Objective::parse(args.maximize, args.minimize)?;
+    let objective = Objective::parse(args.maximize.as_deref(), args.minimize.as_deref())?;
     let floor = args
         .min_approach
+        .as_deref()
         .map(|t| quantity::parse(t, Dimension::TemperatureDifference).map_err(Error::from))
         .transpose()?;
     let best = study::optimize::optimize(
@@ -292,16 +345,26 @@ pub fn optimize(args: &OptimizeArgs) -> Result<Output, Failure> {
     }))
 }
 
+/// The options of `compare`.
+#[derive(Debug, Args)]
+pub struct CompareArgs {
+    /// The flowsheet files.
+    pub files: Vec<PathBuf>,
+    /// Write a bar chart here (.svg or .png).
+    #[arg(long)]
+    pub plot: Option<PathBuf>,
+    #[command(flatten)]
+    pub format: FormatArgs,
+}
+
 /// `compare`: headline figures of several flowsheets side by side.
-pub fn compare(
-    files: &[PathBuf],
-    plot: Option<&Path>,
-    format: FormatArgs,
-) -> Result<Output, Failure> {
-    let format = format.choose("compare", &[Format::Text, Format::Json, Format::Csv])?;
-    let cases = study::compare::compare(files)?;
+pub fn compare(args: &CompareArgs) -> Result<Output, Failure> {
+    let format = args
+        .format
+        .choose("compare", &[Format::Text, Format::Json, Format::Csv])?;
+    let cases = study::compare::compare(&args.files)?;
     let mut notes = Vec::new();
-    if let Some(path) = plot {
+    if let Some(path) = &args.plot {
         let names: Vec<String> = cases.iter().map(|c| c.name.clone()).collect();
         let figure = |f: fn(&cryochain::solve::Summary) -> Option<f64>| -> Vec<f64> {
             cases
@@ -322,9 +385,18 @@ pub fn compare(
     Ok(Output { stdout, notes })
 }
 
+/// The options of `fluids`.
+#[derive(Debug, Args)]
+pub struct FluidsArgs {
+    #[command(flatten)]
+    pub format: FormatArgs,
+}
+
 /// `fluids`: the built-in fluids.
-pub fn fluids(format: FormatArgs) -> Result<Output, Failure> {
-    let format = format.choose("fluids", &[Format::Text, Format::Json])?;
+pub fn fluids(args: &FluidsArgs) -> Result<Output, Failure> {
+    let format = args
+        .format
+        .choose("fluids", &[Format::Text, Format::Json])?;
     let all = fluids::all()?;
     Ok(Output::of(match format {
         Format::Json => report::fluids::json(&all),
@@ -332,57 +404,89 @@ pub fn fluids(format: FormatArgs) -> Result<Output, Failure> {
     }))
 }
 
+/// The options of `state`.
+#[derive(Debug, Args)]
+pub struct StateArgs {
+    /// Fluid name (see `cryochain fluids`).
+    pub fluid: String,
+    /// First specification: T=…, p=…, h=…, s=…, x=… or rho=…, with units.
+    pub first: String,
+    /// Second specification.
+    pub second: String,
+    #[command(flatten)]
+    pub format: FormatArgs,
+}
+
 /// `state`: one state from two specifications.
-pub fn state(
-    fluid: &str,
-    first: &str,
-    second: &str,
-    format: FormatArgs,
-) -> Result<Output, Failure> {
-    let format = format.choose("state", &[Format::Text, Format::Json])?;
-    let fluid = fluids::fluid(fluid)?;
-    let state = fluid.state_from(Spec::parse(first)?, Spec::parse(second)?)?;
+pub fn state(args: &StateArgs) -> Result<Output, Failure> {
+    let format = args.format.choose("state", &[Format::Text, Format::Json])?;
+    let fluid = fluids::fluid(&args.fluid)?;
+    let state = fluid.state_from(Spec::parse(&args.first)?, Spec::parse(&args.second)?)?;
     Ok(Output::of(match format {
         Format::Json => report::state::json(&state),
         _ => report::state::text(&state),
     }))
 }
 
+/// The options of `inversion`.
+#[derive(Debug, Args)]
+pub struct InversionArgs {
+    /// Fluid name.
+    pub fluid: String,
+    #[command(flatten)]
+    pub format: FormatArgs,
+    /// Also write a T–p diagram to this file (.svg or .png).
+    #[arg(long)]
+    pub plot: Option<PathBuf>,
+    /// Rows of the curve shown in the table.
+    #[arg(long, default_value_t = 24)]
+    pub rows: usize,
+}
+
 /// `inversion`: a fluid's inversion curve, with its T–p diagram on request.
-pub fn inversion(
-    fluid: &str,
-    plot: Option<&Path>,
-    rows: usize,
-    format: FormatArgs,
-) -> Result<Output, Failure> {
-    let format = format.choose("inversion", &[Format::Text, Format::Json])?;
-    let fluid = fluids::fluid(fluid)?;
+pub fn inversion(args: &InversionArgs) -> Result<Output, Failure> {
+    let format = args
+        .format
+        .choose("inversion", &[Format::Text, Format::Json])?;
+    let fluid = fluids::fluid(&args.fluid)?;
     let curve = fluid.inversion()?;
     let mut notes = Vec::new();
-    if let Some(path) = plot {
+    if let Some(path) = &args.plot {
         let diagram = fluid.tp_diagram(9)?;
         report::plot::tp_diagram::write(&diagram, &[], path)?;
         notes.push(format!("wrote {}", path.display()));
     }
     let stdout = match format {
         Format::Json => report::inversion::json(curve),
-        _ => report::inversion::text(fluid, curve, rows),
+        _ => report::inversion::text(fluid, curve, args.rows),
     };
     Ok(Output { stdout, notes })
 }
 
+/// The options of `throttle`.
+#[derive(Debug, Args)]
+pub struct ThrottleArgs {
+    /// Fluid name.
+    pub fluid: String,
+    /// First inlet specification, such as T=80K.
+    pub first: String,
+    /// Second inlet specification, such as p=200bar.
+    pub second: String,
+    /// Outlet pressure, with its unit (for example 1bar).
+    #[arg(long = "to")]
+    pub to: String,
+    #[command(flatten)]
+    pub format: FormatArgs,
+}
+
 /// `throttle`: one isenthalpic expansion.
-pub fn throttle(
-    fluid: &str,
-    first: &str,
-    second: &str,
-    to: &str,
-    format: FormatArgs,
-) -> Result<Output, Failure> {
-    let format = format.choose("throttle", &[Format::Text, Format::Json])?;
-    let fluid = fluids::fluid(fluid)?;
-    let inlet = fluid.state_from(Spec::parse(first)?, Spec::parse(second)?)?;
-    let outlet_pressure = quantity::parse(to, Dimension::Pressure).map_err(Error::from)?;
+pub fn throttle(args: &ThrottleArgs) -> Result<Output, Failure> {
+    let format = args
+        .format
+        .choose("throttle", &[Format::Text, Format::Json])?;
+    let fluid = fluids::fluid(&args.fluid)?;
+    let inlet = fluid.state_from(Spec::parse(&args.first)?, Spec::parse(&args.second)?)?;
+    let outlet_pressure = quantity::parse(&args.to, Dimension::Pressure).map_err(Error::from)?;
     let result = fluid.throttle(&inlet, outlet_pressure)?;
     Ok(Output::of(match format {
         Format::Json => report::inversion::throttle_json(&result),
@@ -390,18 +494,31 @@ pub fn throttle(
     }))
 }
 
+/// The options of `table`.
+#[derive(Debug, Args)]
+pub struct TableArgs {
+    /// Input CSV (see docs/batch-tables.md).
+    pub input: PathBuf,
+    /// Fluid for rows without a `fluid` column.
+    #[arg(long)]
+    pub fluid: Option<String>,
+    /// Write the output here instead of stdout.
+    #[arg(long, short)]
+    pub output: Option<PathBuf>,
+}
+
 /// `table`: property tables in batch; failed rows keep their place with their
 /// error, and the command then fails with their count.
-pub fn table(input: &Path, fluid: Option<&str>, output: Option<&Path>) -> Result<Output, Failure> {
-    let name = input.display().to_string();
-    let text = read_text(input)?;
-    let outcome = cryochain::batch::run(&text, &name, fluid)?;
+pub fn table(args: &TableArgs) -> Result<Output, Failure> {
+    let name = args.input.display().to_string();
+    let text = read_text(&args.input)?;
+    let outcome = cryochain::batch::run(&text, &name, args.fluid.as_deref())?;
     let mut notes: Vec<String> = outcome
         .failures
         .iter()
         .map(|(_, message)| format!("{name}: {message}"))
         .collect();
-    let stdout = match output {
+    let stdout = match &args.output {
         Some(path) => {
             write_text(path, &outcome.csv)?;
             notes.push(format!("wrote {} rows to {}", outcome.rows, path.display()));

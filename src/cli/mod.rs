@@ -9,7 +9,6 @@ mod format;
 use clap::{Parser, Subcommand};
 use cryochain::error::Error;
 pub use format::{Format, FormatArgs};
-use std::path::PathBuf;
 
 /// Exit codes, documented in docs/cli.md.
 pub mod exit {
@@ -38,160 +37,33 @@ pub struct Cli {
 enum Command {
     /// Solve a flowsheet (with no file: the built-in demo, a liquid-nitrogen-precooled
     /// hydrogen liquefier) and report yield, power, precooling and exergy.
-    Solve {
-        /// The flowsheet file (YAML); see docs/flowsheet-format.md.
-        file: Option<PathBuf>,
-        #[command(flatten)]
-        format: FormatArgs,
-        /// Override a parameter for a quick what-if: id.key=value (repeatable).
-        #[arg(long = "set", value_name = "ID.KEY=VALUE")]
-        set: Vec<String>,
-        /// Print the largest tear residual of every pass on stderr.
-        #[arg(long)]
-        log: bool,
-        /// Write the plots (T–s, T–p with the valves, exchanger curves, exergy) as SVG
-        /// and PNG into this folder.
-        #[arg(long, value_name = "DIR")]
-        plot: Option<PathBuf>,
-        /// Write streams.csv and equipment.csv into this folder.
-        #[arg(long, value_name = "DIR")]
-        csv: Option<PathBuf>,
-    },
+    Solve(commands::SolveArgs),
     /// Solve a flowsheet and hold it against the design checks (docs/checks.md);
     /// exits with code 2 when the design has errors.
-    Check {
-        /// The flowsheet file (with no file: the built-in demo).
-        file: Option<PathBuf>,
-        #[command(flatten)]
-        format: FormatArgs,
-        /// Override a parameter: id.key=value (repeatable).
-        #[arg(long = "set", value_name = "ID.KEY=VALUE")]
-        set: Vec<String>,
-    },
+    Check(commands::CheckArgs),
     /// Sweep one to three parameters over a grid; every case is solved (in parallel)
     /// and a failed case is recorded with its reason.
-    Sweep {
-        /// The flowsheet file.
-        file: PathBuf,
-        /// id.key=START..END:STEPS[:log], both ends with their unit (repeatable, 1–3).
-        #[arg(long = "vary", required = true)]
-        vary: Vec<String>,
-        /// Fixed overrides applied to every case.
-        #[arg(long = "set")]
-        set: Vec<String>,
-        /// Run only shard K of N (K/N): every N-th row of the grid from row K.
-        #[arg(long)]
-        shard: Option<String>,
-        /// Write the cases as CSV here.
-        #[arg(long)]
-        csv: Option<PathBuf>,
-        /// Write a plot (line or heat map) here (.svg or .png).
-        #[arg(long)]
-        plot: Option<PathBuf>,
-        #[command(flatten)]
-        format: FormatArgs,
-    },
+    Sweep(commands::SweepArgs),
     /// Merge shard CSV files of one sweep into the file the unsharded sweep writes
     /// (CSV only).
-    MergeShards {
-        /// The shard files.
-        files: Vec<PathBuf>,
-        /// Write here instead of stdout.
-        #[arg(long, short)]
-        output: Option<PathBuf>,
-    },
+    MergeShards(commands::MergeShardsArgs),
     /// Optimise a figure over bounded parameters (argmin: Brent for one, Nelder–Mead
     /// for several).
-    Optimize {
-        /// The flowsheet file.
-        file: PathBuf,
-        /// id.key=LO..HI with units (repeatable).
-        #[arg(long = "vary", required = true)]
-        vary: Vec<String>,
-        /// liquid_yield or figure_of_merit.
-        #[arg(long)]
-        maximize: Option<String>,
-        /// specific_energy.
-        #[arg(long)]
-        minimize: Option<String>,
-        /// Keep the smallest exchanger approach at least this (for example 1K).
-        #[arg(long = "min-approach")]
-        min_approach: Option<String>,
-        /// Fixed overrides.
-        #[arg(long = "set")]
-        set: Vec<String>,
-        /// Solver iteration cap.
-        #[arg(long, default_value_t = 100)]
-        iterations: u64,
-        #[command(flatten)]
-        format: FormatArgs,
-    },
+    Optimize(commands::OptimizeArgs),
     /// Headline figures of several flowsheets side by side.
-    Compare {
-        /// The flowsheet files.
-        files: Vec<PathBuf>,
-        /// Write a bar chart here (.svg or .png).
-        #[arg(long)]
-        plot: Option<PathBuf>,
-        #[command(flatten)]
-        format: FormatArgs,
-    },
+    Compare(commands::CompareArgs),
     /// List the built-in fluids with their sources, critical and triple points and ranges.
-    Fluids {
-        #[command(flatten)]
-        format: FormatArgs,
-    },
+    Fluids(commands::FluidsArgs),
     /// Compute one state from two specifications, such as T=80K p=20bar.
-    State {
-        /// Fluid name (see `cryochain fluids`).
-        fluid: String,
-        /// First specification: T=…, p=…, h=…, s=…, x=… or rho=…, with units.
-        first: String,
-        /// Second specification.
-        second: String,
-        #[command(flatten)]
-        format: FormatArgs,
-    },
+    State(commands::StateArgs),
     /// The Joule-Thomson inversion curve of a fluid: maximum inversion temperature,
     /// Boyle temperature, pressure maximum, and the curve.
-    Inversion {
-        /// Fluid name.
-        fluid: String,
-        #[command(flatten)]
-        format: FormatArgs,
-        /// Also write a T–p diagram to this file (.svg or .png).
-        #[arg(long)]
-        plot: Option<PathBuf>,
-        /// Rows of the curve shown in the table.
-        #[arg(long, default_value_t = 24)]
-        rows: usize,
-    },
+    Inversion(commands::InversionArgs),
     /// Throttle a state isenthalpically to a lower pressure.
-    Throttle {
-        /// Fluid name.
-        fluid: String,
-        /// First inlet specification, such as T=80K.
-        first: String,
-        /// Second inlet specification, such as p=200bar.
-        second: String,
-        /// Outlet pressure, with its unit (for example 1bar).
-        #[arg(long = "to")]
-        to: String,
-        #[command(flatten)]
-        format: FormatArgs,
-    },
+    Throttle(commands::ThrottleArgs),
     /// Property table in batch: a CSV of input pairs in, a CSV of properties out
     /// (CSV only).
-    Table {
-        /// Input CSV (see docs/batch-tables.md).
-        input: PathBuf,
-        /// Fluid for rows without a `fluid` column.
-        #[arg(long)]
-        fluid: Option<String>,
-        /// Write the output here instead of stdout.
-        #[arg(long, short)]
-        output: Option<PathBuf>,
-    },
+    Table(commands::TableArgs),
 }
 
 /// What a command produced: its results for stdout and its notes (files written,
@@ -255,90 +127,17 @@ impl From<cryochain::flowsheet::FlowsheetError> for Failure {
 
 /// Runs the parsed command.
 pub fn run(cli: Cli) -> Result<Output, Failure> {
-    use commands as c;
     match cli.command {
-        Command::Solve {
-            file,
-            format,
-            set,
-            log,
-            plot,
-            csv,
-        } => c::solve(
-            file.as_deref(),
-            &set,
-            log,
-            plot.as_deref(),
-            csv.as_deref(),
-            format,
-        ),
-        Command::Check { file, format, set } => c::check(file.as_deref(), &set, format),
-        Command::Sweep {
-            file,
-            vary,
-            set,
-            shard,
-            csv,
-            plot,
-            format,
-        } => c::sweep(&c::SweepArgs {
-            file: &file,
-            vary: &vary,
-            set: &set,
-            shard: shard.as_deref(),
-            csv: csv.as_deref(),
-            plot: plot.as_deref(),
-            format,
-        }),
-        Command::MergeShards { files, output } => c::merge_shards(&files, output.as_deref()),
-        Command::Optimize {
-            file,
-            vary,
-            maximize,
-            minimize,
-            min_approach,
-            set,
-            iterations,
-            format,
-        } => c::optimize(&c::OptimizeArgs {
-            file: &file,
-            vary: &vary,
-            maximize: maximize.as_deref(),
-            minimize: minimize.as_deref(),
-            min_approach: min_approach.as_deref(),
-            set: &set,
-            iterations,
-            format,
-        }),
-        Command::Compare {
-            files,
-            plot,
-            format,
-        } => c::compare(&files, plot.as_deref(), format),
-        Command::Fluids { format } => c::fluids(format),
-        Command::State {
-            fluid,
-            first,
-            second,
-            format,
-        } => c::state(&fluid, &first, &second, format),
-        Command::Inversion {
-            fluid,
-            format,
-            plot,
-            rows,
-        } => c::inversion(&fluid, plot.as_deref(), rows, format),
-        Command::Throttle {
-            fluid,
-            first,
-            second,
-            to,
-            format,
-        } => c::throttle(&fluid, &first, &second, &to, format),
-        Command::Table {
-            input,
-            fluid,
-            output,
-        } => c::table(&input, fluid.as_deref(), output.as_deref()),
+        Command::Solve(args) => commands::solve(&args),
+        Command::Check(args) => commands::check(&args),
+        Command::Sweep(args) => commands::sweep(&args),
+        Command::MergeShards(args) => commands::merge_shards(&args),
+        Command::Optimize(args) => commands::optimize(&args),
+        Command::Compare(args) => commands::compare(&args),
+        Command::Fluids(args) => commands::fluids(&args),
+        Command::State(args) => commands::state(&args),
+        Command::Inversion(args) => commands::inversion(&args),
+        Command::Throttle(args) => commands::throttle(&args),
+        Command::Table(args) => commands::table(&args),
     }
 }

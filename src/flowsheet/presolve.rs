@@ -34,11 +34,11 @@ impl Resolver<'_> {
                 None | Some([]) => {
                     let carriers: Vec<&str> = equipment::KINDS
                         .iter()
-                        .filter(|k| k.keys.contains(&"flow") && k.name != "feed")
+                        .filter(|k| k.keys.contains(&"flow"))
                         .map(|k| k.name)
                         .collect();
                     let message = format!(
-                        "the flow network through {} has no flow basis: give one feed a fixed 'flow', or put 'flow' on one {}",
+                        "the flow network through {} has no flow basis: put a fixed 'flow' on one {} (make-up feeds take 'flow: balance')",
                         plant.streams[s].name,
                         match carriers.split_last() {
                             Some((last, rest)) if !rest.is_empty() => format!("{} or {last}", rest.join(", ")),

@@ -2,7 +2,7 @@
 //! the documented schema (docs/output.md).
 
 use super::table::{fixed, Align, TextTable};
-use crate::equipment::Details;
+use crate::equipment::{Details, Role};
 use crate::rules::Finding;
 use crate::solve::Solution;
 use serde::{Deserialize, Serialize};
@@ -435,7 +435,7 @@ pub fn text(solution: &Solution) -> String {
     ]);
     let total = s.exergy_destroyed.max(1e-300);
     for u in &solution.units {
-        if matches!(u.kind, "feed" | "product") {
+        if matches!(u.role, Role::Feed(_) | Role::Product(_)) {
             continue;
         }
         let p = &u.performance;

@@ -25,6 +25,8 @@ pub struct UnitResult {
     pub id: String,
     /// Kind.
     pub kind: &'static str,
+    /// Its part in the balances (feeds and products stand at the plant's boundary).
+    pub role: Role,
     /// Work, heat, duty, details.
     pub performance: Performance,
     /// Exergy destroyed, W.
@@ -209,6 +211,7 @@ pub fn assemble(
         units.push(UnitResult {
             id: unit.id.clone(),
             kind: unit.spec.kind(),
+            role: unit.spec.role(),
             performance,
             exergy_destroyed: destroyed,
         });

@@ -5,7 +5,7 @@
 
 use super::tp_diagram::{self, ValvePath};
 use super::{chart, drawing, ensure_font, legend, write_figure, Figure};
-use crate::equipment::{Coupling, Details};
+use crate::equipment::{Coupling, Details, Role};
 use crate::error::Result;
 use crate::flowsheet::{Plant, UnitSpec};
 use crate::fluids::diagram::{saturation_dome, throttling_path};
@@ -373,7 +373,7 @@ impl Figure for ExergyBarsFigure<'_> {
         let bars: Vec<(String, f64)> = solution
             .units
             .iter()
-            .filter(|u| !matches!(u.kind, "feed" | "product"))
+            .filter(|u| !matches!(u.role, Role::Feed(_) | Role::Product(_)))
             .map(|u| (u.id.clone(), u.exergy_destroyed / 1e3))
             .collect();
         let top = bars.iter().map(|b| b.1).fold(0.0f64, f64::max).max(1e-9) * 1.15;
