@@ -159,10 +159,11 @@ mod tests {
         // A stopping rule that can never be met (a negative relative step) ends in
         // NoConvergence at the cap, not in the last guess.
         let error = bracketed_newton("test", |x| (x - 0.3, 1.0), 0.9, 0.0, 1.0, -1.0).unwrap_err();
-        assert!(
-            matches!(error, Error::NoConvergence { iterations, .. } if iterations == BRACKETED_NEWTON_CAP),
-            "{error}"
+        let capped = matches!(
+            error,
+            Error::NoConvergence { iterations, .. } if iterations == BRACKETED_NEWTON_CAP
         );
+        assert!(capped, "{error}");
     }
 
     #[test]

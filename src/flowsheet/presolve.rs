@@ -37,13 +37,15 @@ impl Resolver<'_> {
                         .filter(|k| k.keys.contains(&"flow"))
                         .map(|k| k.name)
                         .collect();
-                    let message = format!(
-                        "the flow network through {} has no flow basis: put a fixed 'flow' on one {} (make-up feeds take 'flow: balance')",
-                        plant.streams[s].name,
-                        match carriers.split_last() {
-                            Some((last, rest)) if !rest.is_empty() => format!("{} or {last}", rest.join(", ")),
-                            _ => carriers.join(""),
+                    let kinds = match carriers.split_last() {
+                        Some((last, rest)) if !rest.is_empty() => {
+                            format!("{} or {last}", rest.join(", "))
                         }
+                        _ => carriers.join(""),
+                    };
+                    let message = format!(
+                        "the flow network through {} has no flow basis: put a fixed 'flow' on one {kinds} (make-up feeds take 'flow: balance')",
+                        plant.streams[s].name,
                     );
                     return Err(self.item_error(unit, message));
                 }

@@ -100,7 +100,10 @@ pub fn optimum_json(
     let values: Vec<serde_json::Value> = variables
         .iter()
         .zip(&best.values)
-        .map(|(v, x)| serde_json::json!({"name": format!("{}.{}", v.target, v.key), "value": x, "unit": v.unit}))
+        .map(|(v, x)| {
+            let name = format!("{}.{}", v.target, v.key);
+            serde_json::json!({"name": name, "value": x, "unit": v.unit})
+        })
         .collect();
     let m = &best.metrics;
     let json = serde_json::json!({

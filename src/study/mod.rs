@@ -14,6 +14,10 @@ use crate::rules;
 use crate::solve::{solve, Options, Solution};
 use rayon::prelude::*;
 
+const NO_STEPS: &str = "give the number of steps after ':' (2 to 100000), as in p=50bar..250bar:21";
+const RANGE_FORM: &str =
+    "write id.key=START..END, such as compressor.outlet_pressure=50bar..250bar";
+
 /// One varied parameter and its values, in the unit the user wrote.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Variable {
@@ -51,7 +55,7 @@ impl Variable {
             .next()
             .and_then(|s| s.trim().parse().ok())
             .filter(|n: &usize| (2..=100_000).contains(n))
-            .ok_or_else(|| Error::Input(format!("'{text}': give the number of steps after ':' (2 to 100000), as in p=50bar..250bar:21")))?;
+            .ok_or_else(|| Error::Input(format!("'{text}': {NO_STEPS}")))?;
         let log = match parts.next().map(str::trim) {
             None | Some("linear") => false,
             Some("log") => true,
@@ -90,9 +94,7 @@ type End = (f64, String);
 
 /// Splits `id.key=START..END<rest>` into (target, key, start), end and the rest.
 pub(crate) fn split_range(text: &str) -> Result<((String, String, End), End, String)> {
-    let bad = |why: &str| {
-        Error::Input(format!("'{text}': {why}; write id.key=START..END, such as compressor.outlet_pressure=50bar..250bar"))
-    };
+    let bad = |why: &str| Error::Input(format!("'{text}': {why}; {RANGE_FORM}"));
     let (path, range) = text.split_once('=').ok_or_else(|| bad("no '='"))?;
     let (target, key) = path
         .trim()
