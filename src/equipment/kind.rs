@@ -303,6 +303,37 @@ fn or_list(words: &[&str]) -> String {
     }
 }
 
+/// The outlet of a unit that does no work and only takes in `heat_leak` W from
+/// ambient: the inlet's enthalpy plus the leak per unit of flow, at `pressure`.
+/// Returns the outlet flow and the heat taken in (as a `Performance`).
+pub fn with_heat_leak(
+    inlet: &Flow,
+    pressure: f64,
+    heat_leak: f64,
+    context: &Context,
+) -> Result<(Flow, Performance)> {
+    let gain = if inlet.flow > 0.0 {
+        heat_leak / inlet.flow
+    } else {
+        0.0
+    };
+    let state = inlet
+        .state
+        .fluid()
+        .state_ph(pressure, inlet.state.enthalpy + gain)?;
+    let performance = Performance {
+        heat_in: vec![(heat_leak, context.ambient)],
+        ..Performance::default()
+    };
+    Ok((
+        Flow {
+            state,
+            flow: inlet.flow,
+        },
+        performance,
+    ))
+}
+
 /// The outlet pressure of a unit that passes its one inlet's pressure on, less a drop.
 pub fn less_drop(inlet: Option<f64>, drop: f64) -> Option<f64> {
     inlet.map(|p| p - drop)

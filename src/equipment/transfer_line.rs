@@ -2,7 +2,7 @@
 //! in-leak from ambient (a vacuum-jacketed cryogenic line's few W/m add up), and
 //! no work.
 
-use super::kind::{less_drop, EquipmentKind, Ports, Reader};
+use super::kind::{less_drop, with_heat_leak, EquipmentKind, Ports, Reader};
 use super::{Context, Equipment, Flow, Performance};
 use crate::error::{FlowsheetError, Result};
 
@@ -43,26 +43,12 @@ impl Equipment for TransferLine {
     /// inlet pressure less the drop.
     fn run(&self, inlets: &[Flow], context: &Context) -> Result<(Vec<Flow>, Performance)> {
         let inlet = &inlets[0];
-        let gain = if inlet.flow > 0.0 {
-            self.heat_leak / inlet.flow
-        } else {
-            0.0
-        };
-        let out = inlet.state.fluid().state_ph(
-            inlet.state.pressure - self.pressure_drop,
-            inlet.state.enthalpy + gain,
-        )?;
+        let pressure = inlet.state.pressure - self.pressure_drop;
+        let (out, performance) = with_heat_leak(inlet, pressure, self.heat_leak, context)?;
         let performance = Performance {
-            heat_in: vec![(self.heat_leak, context.ambient)],
             duty: Some(self.heat_leak),
-            ..Performance::default()
+            ..performance
         };
-        Ok((
-            vec![Flow {
-                state: out,
-                flow: inlet.flow,
-            }],
-            performance,
-        ))
+        Ok((vec![out], performance))
     }
 }

@@ -1,7 +1,7 @@
 //! A throttling (Joule-Thomson) valve: isenthalpic to the outlet pressure, with an
 //! optional heat in-leak; the outlet may be two-phase.
 
-use super::kind::{EquipmentKind, Ports, PressureConflict, Reader};
+use super::kind::{with_heat_leak, EquipmentKind, Ports, PressureConflict, Reader};
 use super::{Context, Equipment, Flow, Performance};
 use crate::error::{FlowsheetError, Result};
 
@@ -57,25 +57,8 @@ impl Equipment for Valve {
     /// Throttles the inlet to the outlet pressure at constant enthalpy plus the
     /// heat leak per unit of flow.
     fn run(&self, inlets: &[Flow], context: &Context) -> Result<(Vec<Flow>, Performance)> {
-        let inlet = &inlets[0];
-        let fluid = inlet.state.fluid();
-        let h = inlet.state.enthalpy
-            + if inlet.flow > 0.0 {
-                self.heat_leak / inlet.flow
-            } else {
-                0.0
-            };
-        let out = fluid.state_ph(self.outlet_pressure, h)?;
-        let performance = Performance {
-            heat_in: vec![(self.heat_leak, context.ambient)],
-            ..Performance::default()
-        };
-        Ok((
-            vec![Flow {
-                state: out,
-                flow: inlet.flow,
-            }],
-            performance,
-        ))
+        let (out, performance) =
+            with_heat_leak(&inlets[0], self.outlet_pressure, self.heat_leak, context)?;
+        Ok((vec![out], performance))
     }
 }

@@ -4,7 +4,7 @@
 //! written as SVG and PNG.
 
 use super::tp_diagram::{self, ValvePath};
-use super::{chart, drawing, ensure_font, legend, write_figure, Figure};
+use super::{axes, chart, drawing, ensure_font, legend, write_figure, Figure};
 use crate::equipment::{Coupling, Details, Role};
 use crate::error::Result;
 use crate::flowsheet::{Plant, UnitSpec};
@@ -207,17 +207,12 @@ impl Figure for TsDiagramFigure<'_> {
             t_min..t_max,
             path,
         )?;
-        chart
-            .configure_mesh()
-            .x_desc("specific entropy [kJ/(kg·K)]")
-            .y_desc("temperature [K]")
-            .axis_desc_style(("sans-serif", 20))
-            .label_style(("sans-serif", 16))
-            .x_label_formatter(&|v| format!("{v:.1}"))
-            .y_label_formatter(&|v| format!("{v:.0}"))
-            .light_line_style(RGBColor(235, 235, 235))
-            .draw()
-            .map_err(&err)?;
+        axes(
+            &mut chart,
+            ("specific entropy [kJ/(kg·K)]", 1),
+            ("temperature [K]", 0),
+            path,
+        )?;
         chart
             .draw_series(LineSeries::new(
                 dome.iter().map(|(s, t)| (s / 1e3, *t)),
@@ -313,17 +308,12 @@ impl Figure for ExchangerCurvesFigure<'_> {
             (t_min - 0.05 * span)..(t_max + 0.08 * span),
             path,
         )?;
-        chart
-            .configure_mesh()
-            .x_desc("duty transferred from the warm end [kW]")
-            .y_desc("temperature [K]")
-            .axis_desc_style(("sans-serif", 20))
-            .label_style(("sans-serif", 16))
-            .x_label_formatter(&|v| format!("{v:.2}"))
-            .y_label_formatter(&|v| format!("{v:.0}"))
-            .light_line_style(RGBColor(235, 235, 235))
-            .draw()
-            .map_err(&err)?;
+        axes(
+            &mut chart,
+            ("duty transferred from the warm end [kW]", 2),
+            ("temperature [K]", 0),
+            path,
+        )?;
         chart
             .draw_series(LineSeries::new(
                 profile.iter().map(|p| (kw(p.duty), p.hot_temperature)),

@@ -119,6 +119,28 @@ pub(crate) fn chart<'a, DB: plotters::prelude::DrawingBackend>(
         .map_err(drawing(path))
 }
 
+/// Draws the grid and the two axes with their descriptions, the tick labels with
+/// the given decimals, and light grey minor lines: the look every line plot shares.
+pub(crate) fn axes<'a, DB: plotters::prelude::DrawingBackend + 'a>(
+    chart: &mut Chart<'a, DB>,
+    (x_description, x_decimals): (&str, usize),
+    (y_description, y_decimals): (&str, usize),
+    path: &Path,
+) -> Result<()> {
+    use plotters::prelude::*;
+    chart
+        .configure_mesh()
+        .x_desc(x_description)
+        .y_desc(y_description)
+        .axis_desc_style(("sans-serif", 20))
+        .label_style(("sans-serif", 16))
+        .x_label_formatter(&|v| format!("{v:.x_decimals$}"))
+        .y_label_formatter(&|v| format!("{v:.y_decimals$}"))
+        .light_line_style(RGBColor(235, 235, 235))
+        .draw()
+        .map_err(drawing(path))
+}
+
 /// The series legend in a white box at `position`.
 pub(crate) fn legend<'a, DB: plotters::prelude::DrawingBackend + 'a>(
     chart: &mut Chart<'a, DB>,

@@ -1,7 +1,7 @@
 //! The temperature–pressure diagram: saturation line, inversion curve, isenthalps,
 //! and the regions where throttling cools and where it warms.
 
-use super::{chart, drawing, legend, write_figure, Figure};
+use super::{axes, chart, drawing, legend, write_figure, Figure};
 use crate::error::Result;
 use crate::fluids::diagram::TpDiagram;
 use plotters::coord::Shift;
@@ -67,17 +67,12 @@ fn draw<DB: DrawingBackend>(
         d.fluid, d.source_key
     );
     let mut chart = chart(root, &title, 26, 0.0..p_max, t_min..t_max, path)?;
-    chart
-        .configure_mesh()
-        .x_desc("pressure [bar]")
-        .y_desc("temperature [K]")
-        .axis_desc_style(("sans-serif", 20))
-        .label_style(("sans-serif", 16))
-        .x_label_formatter(&|v| format!("{v:.0}"))
-        .y_label_formatter(&|v| format!("{v:.0}"))
-        .light_line_style(RGBColor(235, 235, 235))
-        .draw()
-        .map_err(&err)?;
+    axes(
+        &mut chart,
+        ("pressure [bar]", 0),
+        ("temperature [K]", 0),
+        path,
+    )?;
 
     // Regions: warming everywhere, cooling inside the curve and above saturation.
     chart
