@@ -126,8 +126,11 @@ fn every_demo_solves_and_its_balances_close() {
             "{name}: energy {}",
             s.energy_closure
         );
-        // Work (exergy supplied) = minimum work + exergy destroyed + exergy lost.
-        let rebuilt = s.minimum_work + s.exergy_destroyed + s.exergy_lost;
+        // Work taken (shaft plus precooling) = minimum work + exergy destroyed +
+        // exergy lost + precooling work spent outside the plant.
+        let rebuilt =
+            s.minimum_work + s.exergy_destroyed + s.exergy_lost + s.precooling_exergy_outside;
+        assert!((s.exergy_supplied - (s.shaft_power + s.precooling_work)).abs() < 1e-9);
         assert!(
             (s.exergy_supplied - rebuilt).abs() < 1e-6 * s.exergy_supplied,
             "{name}: exergy {} vs {rebuilt}",

@@ -2,10 +2,25 @@
 //! basis) or a make-up flow found by balance.
 
 use super::kind::{EquipmentKind, FeedFlow, Ports, Reader, Role};
+use super::precooler::ASSUMED_CRYOGEN_PLANT_FIGURE_OF_MERIT;
 use super::{Context, Equipment, Flow, Performance};
 use crate::error::{FlowsheetError, Result};
-use crate::fluids::Fluid;
+use crate::fluids::{DeadState, Fluid};
 use crate::quantity::Dimension;
+
+/// A feed colder than ambient by more than this, K, is bought cryogen (common
+/// practice: gas drawn from the atmosphere or a pipeline arrives at ambient).
+pub const CRYOGEN_BELOW_AMBIENT: f64 = 1.0;
+
+/// What a kilogram of a bought-cryogen feed is charged.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct CryogenCharge {
+    /// Work equivalent, J/kg.
+    pub work_per_kg: f64,
+    /// Whether it is the default (the feed's exergy over the assumed figure of
+    /// merit of the plant that makes it) rather than the flowsheet's `liquid_work`.
+    pub is_default: bool,
+}
 
 /// A feed's parameters.
 #[derive(Debug, Clone)]
@@ -18,11 +33,15 @@ pub struct Feed {
     pub pressure: f64,
     /// How its flow is set.
     pub flow: FeedFlow,
+    /// The charge for bought cryogen: a feed colder than ambient, or one given a
+    /// `liquid_work`.
+    pub cryogen: Option<CryogenCharge>,
 }
 
 impl EquipmentKind for Feed {
     const NAME: &'static str = "feed";
-    const KEYS: &'static [&'static str] = &["fluid", "temperature", "pressure", "flow"];
+    const KEYS: &'static [&'static str] =
+        &["fluid", "temperature", "pressure", "flow", "liquid_work"];
 
     fn read(r: &mut Reader) -> std::result::Result<Self, FlowsheetError> {
         let fluid = r.fluid("fluid", &r.text("fluid")?)?;
@@ -38,6 +57,25 @@ impl EquipmentKind for Feed {
             Some("balance") => FeedFlow::Balance,
             Some(_) => FeedFlow::Fixed(r.quantity("flow", Dimension::MassFlow, 1e-9, 1e5)?),
         };
+        let liquid_work = r.quantity_opt("liquid_work", Dimension::SpecificEnergy, 0.0, 1e8)?;
+        let cryogen = match liquid_work {
+            Some(work_per_kg) => Some(CryogenCharge {
+                work_per_kg,
+                is_default: false,
+            }),
+            None if temperature < r.ambient - CRYOGEN_BELOW_AMBIENT => {
+                let state = fluid
+                    .state_tp(temperature, pressure)
+                    .map_err(|e| r.error("temperature", e.to_string()))?;
+                let dead = DeadState::of(fluid, r.ambient)
+                    .map_err(|e| r.error("fluid", e.to_string()))?;
+                Some(CryogenCharge {
+                    work_per_kg: dead.exergy(&state) / ASSUMED_CRYOGEN_PLANT_FIGURE_OF_MERIT,
+                    is_default: true,
+                })
+            }
+            None => None,
+        };
         r.set_flow_basis(match flow {
             FeedFlow::Fixed(v) => Some(v),
             FeedFlow::Balance => None,
@@ -48,6 +86,7 @@ impl EquipmentKind for Feed {
             temperature,
             pressure,
             flow,
+            cryogen,
         })
     }
 }
@@ -71,15 +110,22 @@ impl Equipment for Feed {
         vec![Some(self.pressure)]
     }
 
-    /// The outlet at (T, p) with the flow the solver gives the feed.
+    /// The outlet at (T, p) with the flow the solver gives the feed; bought
+    /// cryogen is charged its work equivalent as precooling work.
     fn run(&self, _inlets: &[Flow], context: &Context) -> Result<(Vec<Flow>, Performance)> {
         let state = self.fluid.state_tp(self.temperature, self.pressure)?;
+        let performance = Performance {
+            precooling_work: self
+                .cryogen
+                .map_or(0.0, |c| c.work_per_kg * context.feed_flow.max(0.0)),
+            ..Performance::default()
+        };
         Ok((
             vec![Flow {
                 state,
                 flow: context.feed_flow,
             }],
-            Performance::default(),
+            performance,
         ))
     }
 }

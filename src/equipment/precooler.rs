@@ -5,7 +5,7 @@ use super::kind::{less_drop, Coupling, EquipmentKind, Ports, Reader, Role};
 use super::{Context, Details, Equipment, Flow, Performance};
 use crate::error::{FlowsheetError, Result};
 use crate::fluids::{self, DeadState, Fluid};
-use crate::quantity::Dimension;
+use crate::quantity::{Dimension, STANDARD_ATMOSPHERE};
 
 /// Where a precooler puts its heat.
 #[derive(Debug, Clone, Copy)]
@@ -18,6 +18,9 @@ pub enum PrecoolerSource {
         pressure: f64,
         /// Work equivalent of one kilogram of the cryogen's liquid, J/kg.
         liquid_work: f64,
+        /// Work of the vacuum pump that holds a bath below one atmosphere, per
+        /// kilogram boiled off, J/kg (0 at or above one atmosphere).
+        pump_work: f64,
     },
     /// A refrigerator that rejects heat to ambient, at a fraction of Carnot.
     Refrigerator {
@@ -50,6 +53,11 @@ pub const ASSUMED_CRYOGEN_PLANT_FIGURE_OF_MERIT: f64 = 0.25;
 /// practice).
 pub const DEFAULT_APPROACH: f64 = 1.0;
 
+/// The default isothermal efficiency of the vacuum pump of a bath held below one
+/// atmosphere (an assumed figure for roots-and-rotary-vane sets, from memory; state
+/// your own with `vacuum_pump_efficiency`).
+pub const DEFAULT_VACUUM_PUMP_EFFICIENCY: f64 = 0.5;
+
 impl EquipmentKind for Precooler {
     const NAME: &'static str = "precooler";
     const KEYS: &'static [&'static str] = &[
@@ -62,6 +70,7 @@ impl EquipmentKind for Precooler {
         "liquid_work",
         "refrigerator",
         "coolant",
+        "vacuum_pump_efficiency",
         "flow",
     ];
 
@@ -85,16 +94,31 @@ impl EquipmentKind for Precooler {
             let fluid = fluids::fluid(&name).map_err(|e| r.error("bath", e.to_string()))?;
             let pressure =
                 bath_pressure.ok_or_else(|| r.error("bath_pressure", MISSING_BATH_PRESSURE))?;
+            // Cryogen is bought at one atmosphere or above; a bath below it is
+            // held there by a vacuum pump, charged separately.
+            let bought_at = pressure.max(STANDARD_ATMOSPHERE);
             let liquid_work = match liquid_work {
                 Some(work) => work,
-                None => default_liquid_work(fluid, pressure, r.ambient)
+                None => default_liquid_work(fluid, bought_at, r.ambient)
                     .map_err(|e| r.error("bath_pressure", e.to_string()))?
                     .0,
+            };
+            let efficiency = r.efficiency(
+                "vacuum_pump_efficiency",
+                Some(DEFAULT_VACUUM_PUMP_EFFICIENCY),
+            )?;
+            let pump_work = if pressure < STANDARD_ATMOSPHERE {
+                vacuum_pump_work(fluid, pressure, r.ambient)
+                    .map_err(|e| r.error("bath_pressure", e.to_string()))?
+                    / efficiency
+            } else {
+                0.0
             };
             PrecoolerSource::Bath {
                 fluid,
                 pressure,
                 liquid_work,
+                pump_work,
             }
         } else if let Some(fraction) = refrigerator {
             PrecoolerSource::Refrigerator {
@@ -121,6 +145,14 @@ impl EquipmentKind for Precooler {
 const ONE_SINK: &str = "a precooler needs exactly one heat sink: 'bath' (a cryogen name, with bath_pressure), 'refrigerator' (its fraction of Carnot) or 'coolant' (a stream of the flowsheet)";
 const MISSING_BATH_PRESSURE: &str =
     "'bath_pressure' is required with a bath: the pressure the cryogen boils at, such as 1.2 bar";
+
+/// The ideal (isothermal, at ambient) work per kilogram of pumping a bath's
+/// boil-off, warmed to ambient, from the bath pressure up to one atmosphere:
+/// −e(T₀, p_bath), the negative of its flow exergy there, J/kg.
+pub fn vacuum_pump_work(fluid: &'static Fluid, bath_pressure: f64, ambient: f64) -> Result<f64> {
+    let warmed = fluid.state_tp(ambient.min(fluid.temperature_max), bath_pressure)?;
+    Ok(-DeadState::of(fluid, ambient)?.exergy(&warmed))
+}
 
 /// The default work equivalent of a cryogen's liquid: the ideal (minimum) work of
 /// liquefying it from the dead state (ambient, 1 atm) to saturated liquid at the bath
@@ -194,6 +226,7 @@ pub fn precool(
             fluid: cryogen,
             pressure,
             liquid_work,
+            pump_work,
         } => {
             let duty = m * (process.state.enthalpy - target.enthalpy);
             let saturation = cryogen.saturation_at_pressure(pressure)?;
@@ -204,8 +237,12 @@ pub fn precool(
             let boil_off = duty / (vapour.enthalpy - liquid.enthalpy);
             // The bath boils at its bubble temperature (for air, between bubble and dew).
             let bath = 0.5 * (saturation.liquid.temperature + saturation.vapour.temperature);
+            // The vacuum pump compresses the boil-off isothermally at ambient and
+            // rejects its work there as heat.
+            let pump = boil_off.max(0.0) * pump_work;
             let performance = Performance {
-                heat_in: vec![(-duty, bath)],
+                work_in: pump,
+                heat_in: vec![(-duty, bath), (-pump, context.ambient)],
                 duty: Some(duty),
                 precooling_work: boil_off.max(0.0) * liquid_work,
                 details: Details::Precooler {

@@ -77,6 +77,37 @@ pub struct EquipmentRecord {
     pub outlet_liquid_fraction: Option<f64>,
 }
 
+/// One row of the exergy account.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
+pub struct AccountRecord {
+    /// What the row is: `minimum work`, `destroyed in <id>`, `lost in vents`,
+    /// `precooling spent outside the plant`.
+    pub item: String,
+    /// Its exergy, W.
+    #[serde(rename = "exergy_W")]
+    pub exergy_w: f64,
+}
+
+/// Where the work the plant takes (shaft plus precooling work, the figure of
+/// merit's denominator) goes: the minimum work, the exergy destroyed in each unit,
+/// the exergy lost in vents and the precooling work spent outside the plant. The rows
+/// sum to the work taken within the exergy balance's closure.
+pub fn exergy_account(solution: &Solution) -> Vec<(String, f64)> {
+    let s = &solution.summary;
+    let mut rows = vec![("minimum work".to_string(), s.minimum_work)];
+    for u in &solution.units {
+        if !matches!(u.role, Role::Feed(_) | Role::Product(_)) {
+            rows.push((format!("destroyed in {}", u.id), u.exergy_destroyed));
+        }
+    }
+    rows.push(("lost in vents".to_string(), s.exergy_lost));
+    rows.push((
+        "precooling spent outside the plant".to_string(),
+        s.precooling_exergy_outside,
+    ));
+    rows
+}
+
 /// Balances in the JSON output.
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct BalanceRecord {
@@ -145,6 +176,17 @@ pub struct SolutionRecord {
     /// W.
     #[serde(rename = "exergy_lost_W")]
     pub exergy_lost_w: f64,
+    /// Exergy brought in by the feeds of raw gas, credited in the minimum work.
+    #[serde(rename = "feed_exergy_W")]
+    pub feed_exergy_w: f64,
+    /// Precooling work beyond the cold exergy the plant draws from it.
+    #[serde(rename = "precooling_exergy_outside_W")]
+    pub precooling_exergy_outside_w: f64,
+    /// Work equivalent of cryogen entering as feed streams (in the precooling work).
+    #[serde(rename = "cryogen_feed_work_W")]
+    pub cryogen_feed_work_w: f64,
+    /// Where the work taken goes; the rows sum to `exergy_supplied_W`.
+    pub exergy_account: Vec<AccountRecord>,
     /// Closures.
     pub balances: BalanceRecord,
     /// Streams.
@@ -240,6 +282,13 @@ impl SolutionRecord {
             exergy_supplied_w: s.exergy_supplied,
             exergy_destroyed_w: s.exergy_destroyed,
             exergy_lost_w: s.exergy_lost,
+            feed_exergy_w: s.feed_exergy,
+            precooling_exergy_outside_w: s.precooling_exergy_outside,
+            cryogen_feed_work_w: s.cryogen_feed_work,
+            exergy_account: exergy_account(solution)
+                .into_iter()
+                .map(|(item, exergy_w)| AccountRecord { item, exergy_w })
+                .collect(),
             balances: BalanceRecord {
                 mass: s.mass_closure,
                 energy: s.energy_closure,
@@ -377,21 +426,39 @@ pub fn text(solution: &Solution) -> String {
     out.push_str(&line(
         "minimum work",
         format!(
-            "{:.3} kW; figure of merit {}",
+            "{:.3} kW (liquid less feed exergy); figure of merit {}",
             s.minimum_work / 1e3,
             or_dash(s.figure_of_merit, |f| format!("{f:.4}"))
         ),
     ));
     out.push_str(&line(
-        "exergy",
+        "work taken",
         format!(
-            "supplied {:.3} kW = minimum {:.3} + destroyed {:.3} + lost {} kW",
+            "{:.3} kW = shaft {:.3} + precooling {:.3} kW",
             s.exergy_supplied / 1e3,
-            s.minimum_work / 1e3,
-            s.exergy_destroyed / 1e3,
-            fixed(s.exergy_lost / 1e3, 3)
+            s.shaft_power / 1e3,
+            s.precooling_work / 1e3
         ),
     ));
+    out.push_str(&line(
+        "exergy",
+        format!(
+            "destroyed {:.3}, lost {}, precooling spent outside {} kW",
+            s.exergy_destroyed / 1e3,
+            fixed(s.exergy_lost / 1e3, 3),
+            fixed(s.precooling_exergy_outside / 1e3, 3)
+        ),
+    ));
+    if s.feed_exergy.abs() > 0.0 || s.cryogen_feed_work > 0.0 {
+        out.push_str(&line(
+            "feeds",
+            format!(
+                "exergy of raw gas {} kW (credited); cryogen fed in {} kW",
+                fixed(s.feed_exergy / 1e3, 3),
+                fixed(s.cryogen_feed_work / 1e3, 3)
+            ),
+        ));
+    }
     out.push_str(&line(
         "balance closure",
         format!(
@@ -457,6 +524,26 @@ pub fn text(solution: &Solution) -> String {
             format!("{} %", fixed(100.0 * u.exergy_destroyed / total, 1)),
         ]);
     }
+    out.push_str(&table.render());
+    out.push_str("\nExergy account (the rows sum to the work taken: shaft plus precooling)\n");
+    let mut table = TextTable::new(&[
+        ("where the work goes", Align::Left),
+        ("exergy [kW]", Align::Right),
+        ("share", Align::Right),
+    ]);
+    let taken = s.exergy_supplied.abs().max(1e-300);
+    for (item, exergy) in exergy_account(solution) {
+        table.row(vec![
+            item,
+            fixed(exergy / 1e3, 3),
+            format!("{} %", fixed(100.0 * exergy / taken, 1)),
+        ]);
+    }
+    table.row(vec![
+        "total".to_string(),
+        fixed(s.exergy_supplied / 1e3, 3),
+        "100.0 %".to_string(),
+    ]);
     out.push_str(&table.render());
     out
 }

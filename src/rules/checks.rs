@@ -18,6 +18,7 @@ pub fn check(plant: &Plant, solution: &Solution) -> Vec<Finding> {
     compressors(plant, solution, &mut findings);
     coolers_and_precoolers(plant, solution, &mut findings);
     expanders(plant, solution, &mut findings);
+    cryogen_feeds(plant, solution, &mut findings);
     ranges(plant, solution, &mut findings);
     balances(solution, &mut findings);
     findings.sort_by_key(|f| f.severity);
@@ -351,6 +352,12 @@ fn precooler_findings(
             .value("approach_K", approach),
         );
     }
+    if let PrecoolerSource::Bath {
+        fluid, pressure, ..
+    } = precooler.source
+    {
+        bath_findings(id, fluid, pressure, performance, out);
+    }
     let short = matches!(precooler.source, PrecoolerSource::Coolant)
         && outlet.state.temperature > target + 1e-6;
     if short {
@@ -368,6 +375,96 @@ fn precooler_findings(
             )
             .value("outlet_temperature_K", outlet.state.temperature)
             .value("target_K", target),
+        );
+    }
+}
+
+/// Margin between a bath's boiling temperature and its cryogen's triple point below
+/// which the bath may freeze, K (common practice).
+pub const BATH_TRIPLE_POINT_MARGIN: f64 = 1.0;
+
+fn bath_findings(
+    id: &str,
+    cryogen: &Fluid,
+    pressure: f64,
+    performance: &Performance,
+    out: &mut Vec<Finding>,
+) {
+    let Details::Precooler {
+        sink_temperature, ..
+    } = performance.details
+    else {
+        return;
+    };
+    let margin = sink_temperature - cryogen.triple_temperature;
+    if margin < BATH_TRIPLE_POINT_MARGIN {
+        out.push(
+            Finding::new(
+                "bath-near-triple-point",
+                Severity::Warning,
+                Some(id),
+                format!(
+                    "the {} bath boils at {sink_temperature:.3} K, only {margin:.3} K above its triple point {:.3} K: it may freeze where the pressure dips",
+                    cryogen.name, cryogen.triple_temperature
+                ),
+                format!(
+                    "raise the bath pressure so that it boils at least {BATH_TRIPLE_POINT_MARGIN:.0} K above the triple point"
+                ),
+            )
+            .value("bath_temperature_K", sink_temperature)
+            .value("triple_temperature_K", cryogen.triple_temperature)
+            .value("bath_pressure_Pa", pressure),
+        );
+    }
+    if performance.work_in > 0.0 {
+        out.push(
+            Finding::new(
+                "bath-vacuum-pump",
+                Severity::Note,
+                Some(id),
+                format!(
+                    "the bath is held at {:.4} bar, below one atmosphere: its vacuum pump takes {:.3} kW to return the boil-off to atmospheric pressure, counted in the shaft power",
+                    pressure / 1e5,
+                    performance.work_in / 1e3
+                ),
+                "the pump's efficiency is the precooler's vacuum_pump_efficiency (default 0.5, assumed)".to_string(),
+            )
+            .value("vacuum_pump_power_W", performance.work_in),
+        );
+    }
+}
+
+/// Bought cryogen that enters as a feed stream is charged its work equivalent, as
+/// a bath's is; say so, with the figure.
+fn cryogen_feeds(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
+    for (unit, result) in plant.units.iter().zip(&solution.units) {
+        let UnitSpec::Feed(feed) = &unit.spec else {
+            continue;
+        };
+        let Some(charge) = feed.cryogen else {
+            continue;
+        };
+        let how = if charge.is_default {
+            "its exergy over an assumed figure of merit of 0.25 for the plant that makes it (state your own with liquid_work)"
+        } else {
+            "the flowsheet's liquid_work"
+        };
+        out.push(
+            Finding::new(
+                "cryogen-feed-charged",
+                Severity::Note,
+                Some(&unit.id),
+                format!(
+                    "{} enters at {:.2} K as bought cryogen: charged {:.1} kJ/kg ({how}), {:.3} kW in the precooling work",
+                    feed.fluid.name,
+                    feed.temperature,
+                    charge.work_per_kg / 1e3,
+                    result.performance.precooling_work / 1e3
+                ),
+                "reuse the cryogen's cold vapour (warm it against a process stream) to get the most from what is bought".to_string(),
+            )
+            .value("work_per_kg_J", charge.work_per_kg)
+            .value("precooling_work_W", result.performance.precooling_work),
         );
     }
 }

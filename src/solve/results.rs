@@ -4,11 +4,19 @@
 //! Definitions (docs/output.md): liquid yield is the liquid product's mass flow over
 //! the mass flow through the compressor of its flow network (the largest, where
 //! there are several). Exergy of a stream is (h − h₀) − T₀(s − s₀) with the dead
-//! state at the ambient temperature and 101.325 kPa. The minimum work is the exergy
-//! of the liquid product. Exergy supplied is the shaft work in (less work
-//! recovered), the cold exergy Q(T₀/T − 1) drawn from baths and refrigerators, and
-//! the feeds' exergy; it equals minimum work + exergy lost (in vents) + exergy
-//! destroyed, which the exergy balance checks.
+//! state at the ambient temperature and 1 atm (`fluids::exergy`).
+//!
+//! The minimum work of liquefaction is the liquid's exergy less the exergy of the
+//! feed it is made from (the textbook ideal work W_i = ṁ[(h_f − h_1) − T₀(s_f − s_1)],
+//! feed state 1 to liquid f; Barron, Cryogenic Systems): each flow network's
+//! liquid is charged the flow-weighted mean exergy of that network's feeds of raw
+//! gas. The work the plant takes is the shaft power plus the precooling work (the
+//! work equivalent of bought cryogen, baths and cryogen feeds alike, and the power
+//! of refrigerators); the figure of merit is the one over the other. That work
+//! equals minimum work + exergy destroyed in the units + exergy lost in vents (net
+//! of their share of the feeds' exergy) + the precooling work beyond the cold
+//! exergy the plant draws from it (spent outside the plant, where the cryogen is
+//! made), which the exergy balance checks.
 
 use super::order::Sequence;
 use crate::equipment::{Details, Flow, Performance, ProductRole, Role};
@@ -56,21 +64,31 @@ pub struct Summary {
     pub specific_energy_shaft: Option<f64>,
     /// Shaft power plus precooling work per liquid, kWh/kg.
     pub specific_energy: Option<f64>,
-    /// The minimum work: exergy of the liquid product, W.
+    /// The minimum work: the liquid's exergy less its feed's, W.
     pub minimum_work: f64,
+    /// Exergy the feeds of raw gas bring in, W (credited in the minimum work).
+    pub feed_exergy: f64,
     /// Minimum work over shaft plus precooling work.
     pub figure_of_merit: Option<f64>,
-    /// Exergy supplied, W.
+    /// The work the plant takes: shaft power plus precooling work, W.
     pub exergy_supplied: f64,
     /// Exergy destroyed in the units, W.
     pub exergy_destroyed: f64,
-    /// Exergy leaving in vents, W.
+    /// Exergy leaving in vents, net of their share of the feeds' exergy, W.
     pub exergy_lost: f64,
+    /// Precooling work beyond the cold exergy the plant draws from it: bought
+    /// cryogen's work equivalent less the exergy it delivers, W (spent where the
+    /// cryogen is made).
+    pub precooling_exergy_outside: f64,
+    /// Work equivalent of the cryogen that enters as feed streams, W (part of the
+    /// precooling work).
+    pub cryogen_feed_work: f64,
     /// (feeds − products)/feeds.
     pub mass_closure: f64,
     /// Energy in − out over the energy flows.
     pub energy_closure: f64,
-    /// Exergy supplied − (minimum work + lost + destroyed) over exergy supplied.
+    /// Work taken − (minimum work + lost + destroyed + precooling outside) over the
+    /// work taken.
     pub exergy_closure: f64,
 }
 
@@ -146,40 +164,63 @@ pub fn assemble(
     let mut energy_in = 0.0;
     let mut energy_out = 0.0;
     let mut energy_scale = 0.0;
-    let mut feed_exergy = 0.0;
+    // Per flow network: raw-gas feeds (mass, exergy) and products (mass, exergy).
+    let mut raw_feeds: HashMap<usize, (f64, f64)> = HashMap::new();
+    let mut liquids: HashMap<usize, (f64, f64)> = HashMap::new();
+    let mut vents: HashMap<usize, (f64, f64)> = HashMap::new();
     for (unit, performance) in plant.units.iter().zip(performances) {
-        let inflow: Vec<&Flow> = unit.inlets.iter().map(|&i| &streams[i]).collect();
-        let outflow: Vec<&Flow> = unit.outlets.iter().map(|&i| &streams[i]).collect();
+        let inflow: Vec<(usize, &Flow)> = unit.inlets.iter().map(|&i| (i, &streams[i])).collect();
+        let outflow: Vec<(usize, &Flow)> = unit.outlets.iter().map(|&i| (i, &streams[i])).collect();
         let mut destroyed = 0.0;
+        let reservoir_exergy: f64 = performance
+            .heat_in
+            .iter()
+            .map(|(q, t)| q * (1.0 - t0 / t))
+            .sum();
         match unit.spec.role() {
             Role::Feed(_) => {
-                for f in &outflow {
+                for &(i, f) in &outflow {
                     feed_mass += f.flow;
                     energy_in += f.flow * f.state.enthalpy;
-                    feed_exergy += f.flow * dead.exergy(f)?;
-                }
-            }
-            Role::Product(role) => {
-                for f in &inflow {
-                    product_mass += f.flow;
-                    energy_out += f.flow * f.state.enthalpy;
-                    let ex = f.flow * dead.exergy(f)?;
-                    match role {
-                        ProductRole::Liquid => {
-                            s.liquid_flow += f.flow;
-                            s.minimum_work += ex;
-                            s.liquid_volume_flow_l_h += f.flow * 3600.0 / f.state.density * 1000.0;
-                        }
-                        ProductRole::Vent => s.exergy_lost += ex,
+                    let exergy = f.flow * dead.exergy(f)?;
+                    if performance.precooling_work > 0.0 {
+                        // Bought cryogen: charged at its work equivalent.
+                        s.cryogen_feed_work += performance.precooling_work;
+                        s.precooling_exergy_outside += performance.precooling_work - exergy;
+                    } else {
+                        let entry = raw_feeds.entry(networks[i]).or_default();
+                        entry.0 += f.flow;
+                        entry.1 += exergy;
+                        s.feed_exergy += exergy;
                     }
                 }
             }
+            Role::Product(role) => {
+                for &(i, f) in &inflow {
+                    product_mass += f.flow;
+                    energy_out += f.flow * f.state.enthalpy;
+                    let exergy = f.flow * dead.exergy(f)?;
+                    let sink = match role {
+                        ProductRole::Liquid => {
+                            s.liquid_flow += f.flow;
+                            s.liquid_volume_flow_l_h += f.flow * 3600.0 / f.state.density * 1000.0;
+                            &mut liquids
+                        }
+                        ProductRole::Vent => &mut vents,
+                    };
+                    let entry = sink.entry(networks[i]).or_default();
+                    entry.0 += f.flow;
+                    entry.1 += exergy;
+                }
+            }
             _ => {
-                let entropy_out: f64 = outflow.iter().map(|f| f.flow * f.state.entropy).sum();
-                let entropy_in: f64 = inflow.iter().map(|f| f.flow * f.state.entropy).sum();
+                let entropy_out: f64 = outflow.iter().map(|(_, f)| f.flow * f.state.entropy).sum();
+                let entropy_in: f64 = inflow.iter().map(|(_, f)| f.flow * f.state.entropy).sum();
                 let reservoirs: f64 = performance.heat_in.iter().map(|(q, t)| q / t).sum();
                 destroyed =
                     t0 * (entropy_out - entropy_in - reservoirs) + performance.extra_destroyed;
+                s.precooling_exergy_outside +=
+                    performance.precooling_work - reservoir_exergy - performance.extra_destroyed;
             }
         }
         energy_in += performance.work_in + performance.heat_in.iter().map(|(q, _)| q).sum::<f64>();
@@ -200,13 +241,6 @@ pub fn assemble(
         {
             s.cryogen_boil_off += b;
         }
-        s.exergy_supplied += performance.work_in
-            + performance
-                .heat_in
-                .iter()
-                .map(|(q, t)| q * (1.0 - t0 / t))
-                .sum::<f64>()
-            + performance.extra_destroyed;
         s.exergy_destroyed += destroyed;
         units.push(UnitResult {
             id: unit.id.clone(),
@@ -216,7 +250,20 @@ pub fn assemble(
             exergy_destroyed: destroyed,
         });
     }
-    s.exergy_supplied += feed_exergy;
+    // Each product carries its share of its network's raw-feed exergy.
+    let feed_exergy_per_kg = |network: &usize| {
+        raw_feeds
+            .get(network)
+            .filter(|(mass, _)| *mass > 0.0)
+            .map_or(0.0, |(mass, exergy)| exergy / mass)
+    };
+    for (network, (mass, exergy)) in &liquids {
+        s.minimum_work += exergy - mass * feed_exergy_per_kg(network);
+    }
+    for (network, (mass, exergy)) in &vents {
+        s.exergy_lost += exergy - mass * feed_exergy_per_kg(network);
+    }
+    s.exergy_supplied = s.shaft_power + s.precooling_work;
     // Compressed flow of the networks that make liquid.
     let liquid_networks: Vec<usize> = plant
         .liquid_products()
@@ -248,8 +295,9 @@ pub fn assemble(
         0.0
     };
     s.energy_closure = (energy_in - energy_out) / energy_scale.max(1e-300);
-    s.exergy_closure = (s.exergy_supplied - (s.minimum_work + s.exergy_lost + s.exergy_destroyed))
-        / s.exergy_supplied.abs().max(1e-300);
+    let accounted =
+        s.minimum_work + s.exergy_lost + s.exergy_destroyed + s.precooling_exergy_outside;
+    s.exergy_closure = (s.exergy_supplied - accounted) / s.exergy_supplied.abs().max(1e-300);
     Ok(Solution {
         title: plant.title.clone(),
         source: plant.source.clone(),
