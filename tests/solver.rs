@@ -322,11 +322,14 @@ fn exchanger_finds_an_internal_pinch() {
             .temperature;
         fine_min = fine_min.min(th - tc);
     }
+    // The reported pinch is refined between the nodes: within 1 mK of the fine
+    // profile (it was within 0.02 K when read off the 50 nodes alone).
     assert!(
-        (fine_min - report.min_approach).abs() < 0.02,
+        (fine_min - report.min_approach).abs() < 1e-3,
         "fine {fine_min} vs segmented {}",
         report.min_approach
     );
+    assert!((fine_min - 2.0).abs() < 1e-3, "fine {fine_min}");
     // Energy balance across the exchanger.
     let dh_hot = hot.state.enthalpy - outlets[0].state.enthalpy;
     let dh_cold = cold.flow * (outlets[1].state.enthalpy - cold.state.enthalpy);

@@ -60,6 +60,13 @@ impl EquipmentKind for Exchanger {
         "heat_leak",
         "segments",
     ];
+    const ALTERNATIVE_KEYS: &'static [&'static str] = &[
+        "minimum_approach",
+        "warm_end_approach",
+        "cold_end_approach",
+        "effectiveness",
+        "ua",
+    ];
 
     fn read(r: &mut Reader) -> std::result::Result<Self, FlowsheetError> {
         use Dimension::*;
@@ -160,6 +167,46 @@ pub struct ExchangerReport {
     pub cold_end_approach: f64,
     /// The temperature–duty profile, warm end first.
     pub profile: Vec<ProfilePoint>,
+    /// The duty specification asked for.
+    pub specified: ExchangerSpec,
+    /// The specified quantity as delivered (K for approaches, a fraction for
+    /// effectiveness, W/K for UA).
+    pub delivered: f64,
+    /// Whether the delivered value meets the specification (approaches within
+    /// [`APPROACH_TOLERANCE`], effectiveness and UA within 1e-6 relative).
+    pub specification_met: bool,
+}
+
+/// How far a delivered approach may differ from the one specified and still meet
+/// it, K.
+pub const APPROACH_TOLERANCE: f64 = 1e-3;
+
+/// Below this smallest temperature difference, K, the pinch is taken as zero and the
+/// conductance as unbounded.
+pub const ZERO_PINCH: f64 = 1e-6;
+
+impl ExchangerSpec {
+    /// The specification in words, with its value.
+    pub fn describe(&self) -> String {
+        match *self {
+            ExchangerSpec::MinimumApproach(dt) => format!("a minimum approach of {dt:.3} K"),
+            ExchangerSpec::WarmEndApproach(dt) => format!("a warm-end approach of {dt:.3} K"),
+            ExchangerSpec::ColdEndApproach(dt) => format!("a cold-end approach of {dt:.3} K"),
+            ExchangerSpec::Effectiveness(e) => format!("an effectiveness of {e:.6}"),
+            ExchangerSpec::Conductance(ua) => format!("a UA of {:.4} kW/K", ua / 1e3),
+        }
+    }
+
+    /// The value asked for.
+    pub fn value(&self) -> f64 {
+        match *self {
+            ExchangerSpec::MinimumApproach(v)
+            | ExchangerSpec::WarmEndApproach(v)
+            | ExchangerSpec::ColdEndApproach(v)
+            | ExchangerSpec::Effectiveness(v)
+            | ExchangerSpec::Conductance(v) => v,
+        }
+    }
 }
 
 struct Sides<'a> {
@@ -219,13 +266,31 @@ impl Sides<'_> {
             .collect())
     }
 
-    fn min_approach(&self, q: f64) -> Result<(f64, usize)> {
+    /// The hot-minus-cold temperature difference at position `f` (0 at the warm end,
+    /// 1 at the cold end) for duty `q`, flashing both sides from the given neighbours.
+    fn difference_at(&self, q: f64, f: f64, near: &(f64, State, State)) -> Result<f64> {
+        let (hot, cold) = (&self.hot.state, &self.cold.state);
+        let hot_state = hot.fluid().state_ph_near(
+            hot.pressure - self.design.hot_pressure_drop * f,
+            hot.enthalpy - q * f / self.hot.flow,
+            &near.1,
+        )?;
+        let along = 1.0 - f;
+        let cold_state = cold.fluid().state_ph_near(
+            cold.pressure - self.design.cold_pressure_drop * along,
+            cold.enthalpy + (q + self.design.heat_leak) * along / self.cold.flow,
+            &near.2,
+        )?;
+        Ok(hot_state.temperature - cold_state.temperature)
+    }
+
+    /// The smallest temperature difference for duty `q` and where it lies (fraction
+    /// of the duty from the warm end): the smallest at the profile's nodes, then
+    /// refined between the neighbouring nodes by successive parabolic interpolation,
+    /// since an internal pinch can fall between nodes.
+    fn min_approach(&self, q: f64) -> Result<(f64, f64)> {
         let profile = self.profile(q)?;
-        Ok(profile
-            .iter()
-            .enumerate()
-            .map(|(i, (_, h, c))| (h.temperature - c.temperature, i))
-            .fold((f64::INFINITY, 0), |a, b| if b.0 < a.0 { b } else { a }))
+        refined_minimum(&profile, |f, near| self.difference_at(q, f, near))
     }
 
     /// The duty at which either outlet would reach the other stream's inlet
@@ -289,6 +354,91 @@ impl Sides<'_> {
         }
         Ok(ua)
     }
+}
+
+/// Steps of the parabolic refinement of the smallest temperature difference.
+const REFINE_STEPS: usize = 12;
+
+/// The refinement stops when the smallest difference changes by less than this, K
+/// (well inside the 1 mK the reported minimum approach is held to).
+const REFINE_TOLERANCE: f64 = 1e-6;
+
+/// The smallest hot-minus-cold difference along `profile` and its position (0 warm,
+/// 1 cold), refined between the nodes around the smallest node by successive
+/// parabolic interpolation of `difference(position, nearest node)`.
+fn refined_minimum(
+    profile: &[(f64, State, State)],
+    difference: impl Fn(f64, &(f64, State, State)) -> Result<f64>,
+) -> Result<(f64, f64)> {
+    let n = profile.len() - 1;
+    let node = |k: usize| profile[k].1.temperature - profile[k].2.temperature;
+    let position = |k: usize| k as f64 / n.max(1) as f64;
+    let (mut fb, i) = (0..=n)
+        .map(|k| (node(k), k))
+        .fold((f64::INFINITY, 0), |a, b| if b.0 < a.0 { b } else { a });
+    if n < 2 {
+        return Ok((fb, position(i)));
+    }
+    // Three nodes around the smallest (at an end, the end three).
+    let centre = i.clamp(1, n - 1);
+    let (mut a, mut b, mut c) = (position(centre - 1), position(i), position(centre + 1));
+    let (mut fa, mut fc) = (node(centre - 1), node(centre + 1));
+    if i == 0 || i == n {
+        // At an end, the smallest lies inside only if the parabola through the end
+        // three has its vertex in the end segment.
+        let (x0, x1, x2) = (a, position(centre), c);
+        let (y0, y1, y2) = (fa, node(centre), fc);
+        match parabola_vertex((x0, y0), (x1, y1), (x2, y2)) {
+            Some(x) if i == 0 && x > x0 && x < x1 => {
+                (a, b, c, fa, fc) = (x0, x0, x1, y0, y1);
+            }
+            Some(x) if i == n && x > x1 && x < x2 => {
+                (a, b, c, fa, fc) = (x1, x2, x2, y1, y2);
+            }
+            _ => return Ok((fb, b)),
+        }
+    }
+    let nearest = |x: f64| &profile[((x * n as f64).round() as usize).min(n)];
+    for _ in 0..REFINE_STEPS {
+        let Some(x) = parabola_vertex((a, fa), (b, fb), (c, fc)) else {
+            break;
+        };
+        if !(x > a && x < c) || (x - b).abs() <= 1e-9 * (c - a) {
+            break;
+        }
+        let fx = difference(x, nearest(x))?;
+        let before = fb;
+        if fx < fb {
+            if x < b {
+                (c, fc) = (b, fb);
+            } else {
+                (a, fa) = (b, fb);
+            }
+            (b, fb) = (x, fx);
+        } else if x < b {
+            (a, fa) = (x, fx);
+        } else {
+            (c, fc) = (x, fx);
+        }
+        if (before - fb).abs() < REFINE_TOLERANCE && fx >= before - REFINE_TOLERANCE {
+            break;
+        }
+    }
+    Ok((fb, b))
+}
+
+/// The abscissa of the vertex of the parabola through three points, where it has a
+/// minimum (None for a maximum or a straight line).
+fn parabola_vertex(p0: (f64, f64), p1: (f64, f64), p2: (f64, f64)) -> Option<f64> {
+    let ((x0, y0), (x1, y1), (x2, y2)) = (p0, p1, p2);
+    let numerator = (x1 - x0).powi(2) * (y1 - y2) - (x1 - x2).powi(2) * (y1 - y0);
+    let denominator = (x1 - x0) * (y1 - y2) - (x1 - x2) * (y1 - y0);
+    // The curvature's sign: a minimum needs the middle point below the chord.
+    let chord = y0 + (y2 - y0) * (x1 - x0) / (x2 - x0);
+    if !(denominator != 0.0 && y1 < chord) {
+        return None;
+    }
+    Some(x1 - 0.5 * numerator / denominator)
 }
 
 /// A few secant steps on g from the previous pass's duty; `None` unless they settle
@@ -456,25 +606,60 @@ pub fn exchange(
             cold_temperature: c.temperature,
         })
         .collect();
-    let (min_approach, at) = points
-        .iter()
-        .enumerate()
-        .map(|(i, p)| (p.hot_temperature - p.cold_temperature, i))
-        .fold((f64::INFINITY, 0), |a, b| if b.0 < a.0 { b } else { a });
+    let (min_approach, at) = if degenerate {
+        let (d, i) = points
+            .iter()
+            .enumerate()
+            .map(|(i, p)| (p.hot_temperature - p.cold_temperature, i))
+            .fold((f64::INFINITY, 0), |a, b| if b.0 < a.0 { b } else { a });
+        (d, i as f64 / (points.len().max(2) - 1) as f64)
+    } else {
+        refined_minimum(&profile, |f, near| sides.difference_at(duty, f, near))?
+    };
     let max_duty = match design.spec {
         ExchangerSpec::Effectiveness(_) | ExchangerSpec::Conductance(_) => sides.max_duty(upper)?,
         _ if degenerate => 0.0,
         _ => sides.max_duty(upper)?,
     };
+    let ua = if degenerate {
+        0.0
+    } else if min_approach <= ZERO_PINCH {
+        f64::INFINITY
+    } else {
+        sides.ua(duty)?
+    };
+    let effectiveness = if max_duty > 0.0 { duty / max_duty } else { 0.0 };
+    let warm_end_approach = hot.state.temperature - cold_out.temperature;
+    let cold_end_approach = hot_out.temperature - cold.state.temperature;
+    let (delivered, specification_met) = match design.spec {
+        _ if degenerate => (0.0, true),
+        ExchangerSpec::MinimumApproach(dt) => (
+            min_approach,
+            (min_approach - dt).abs() <= APPROACH_TOLERANCE,
+        ),
+        ExchangerSpec::WarmEndApproach(dt) => (
+            warm_end_approach,
+            (warm_end_approach - dt).abs() <= APPROACH_TOLERANCE,
+        ),
+        ExchangerSpec::ColdEndApproach(dt) => (
+            cold_end_approach,
+            (cold_end_approach - dt).abs() <= APPROACH_TOLERANCE,
+        ),
+        ExchangerSpec::Effectiveness(e) => (effectiveness, (effectiveness - e).abs() <= 1e-6),
+        ExchangerSpec::Conductance(asked) => (ua, (ua - asked).abs() <= 1e-6 * asked.max(1.0)),
+    };
     let report = ExchangerReport {
-        ua: if degenerate { 0.0 } else { sides.ua(duty)? },
-        effectiveness: if max_duty > 0.0 { duty / max_duty } else { 0.0 },
+        ua,
+        effectiveness,
         max_duty,
         min_approach,
-        min_approach_position: at as f64 / (points.len().max(2) - 1) as f64,
-        warm_end_approach: hot.state.temperature - cold_out.temperature,
-        cold_end_approach: hot_out.temperature - cold.state.temperature,
+        min_approach_position: at,
+        warm_end_approach,
+        cold_end_approach,
         profile: points,
+        specified: design.spec,
+        delivered,
+        specification_met,
     };
     let performance = Performance {
         heat_in: vec![(design.heat_leak, context.ambient)],

@@ -116,6 +116,9 @@ pub trait EquipmentKind: Equipment + Sized {
     /// The keys it accepts besides `id` and `kind`. A kind that does not list
     /// `fluid` still accepts it: there it asserts the fluid that arrives.
     const KEYS: &'static [&'static str];
+    /// Keys of which one is given (an exchanger's duty specifications): a `--set` of
+    /// one replaces whichever the file gives.
+    const ALTERNATIVE_KEYS: &'static [&'static str] = &[];
 
     /// Reads the parameters from the item's keys; records its inlets and any flow
     /// basis in `reader`.

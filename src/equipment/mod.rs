@@ -53,6 +53,7 @@ macro_rules! register_kinds {
             $(KindEntry {
                 name: <$module::$parameters as EquipmentKind>::NAME,
                 keys: <$module::$parameters as EquipmentKind>::KEYS,
+                alternative_keys: <$module::$parameters as EquipmentKind>::ALTERNATIVE_KEYS,
                 read: |reader| {
                     <$module::$parameters as EquipmentKind>::read(reader).map(UnitSpec::$variant)
                 },
@@ -83,6 +84,8 @@ pub struct KindEntry {
     pub name: &'static str,
     /// Its keys besides `id` and `kind`.
     pub keys: &'static [&'static str],
+    /// Keys of which one is given; an override of one replaces the others.
+    pub alternative_keys: &'static [&'static str],
     /// Reads an item of this kind.
     pub read: fn(&mut Reader) -> Result<UnitSpec, FlowsheetError>,
 }

@@ -114,6 +114,14 @@ fn apply_override(raw: &mut FlowsheetFile, o: &Override) -> Result<(), Flowsheet
             message: "an override cannot change an id or a kind".into(),
         });
     }
+    // Switching an alternative (an exchanger's duty specification) replaces the
+    // one the file gives.
+    let alternatives = equipment::kind_named(&entry.kind).map_or(&[][..], |k| k.alternative_keys);
+    if alternatives.contains(&o.key.as_str()) {
+        entry
+            .params
+            .retain(|key, _| key == &o.key || !alternatives.contains(&key.as_str()));
+    }
     entry.params.insert(o.key.clone(), value);
     Ok(())
 }

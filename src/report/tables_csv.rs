@@ -66,7 +66,12 @@ pub fn write_all(solution: &Solution, dir: &Path) -> Result<Vec<PathBuf>> {
         let (approach, ua, effectiveness) = match &p.details {
             Details::Exchanger(x) => (
                 format!("{:.6}", x.min_approach),
-                format!("{:.6}", x.ua),
+                // Unbounded at a zero pinch: an empty cell, not a number.
+                if x.ua.is_finite() {
+                    format!("{:.6}", x.ua)
+                } else {
+                    String::new()
+                },
                 format!("{:.6}", x.effectiveness),
             ),
             _ => (String::new(), String::new(), String::new()),

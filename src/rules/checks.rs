@@ -2,6 +2,7 @@
 
 use super::{Finding, Severity};
 use crate::equipment::compressor::CompressorModel;
+use crate::equipment::exchanger::{ExchangerReport, ExchangerSpec};
 use crate::equipment::precooler::{Precooler, PrecoolerSource};
 use crate::equipment::{Details, Flow, Performance};
 use crate::flowsheet::{Plant, UnitSpec};
@@ -180,6 +181,9 @@ fn exchangers(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
         }
         let position = report.min_approach_position;
         let where_ = format!("{:.0} % of the duty from the warm end", 100.0 * position);
+        if !report.specification_met {
+            out.push(spec_not_met(&unit.id, report, &where_));
+        }
         if report.min_approach < -1e-9 {
             out.push(
                 Finding::new(
@@ -192,7 +196,7 @@ fn exchangers(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
                 .value("min_approach_K", report.min_approach)
                 .value("position", position),
             );
-        } else if report.min_approach < plant.settings.approach_floor {
+        } else if report.specification_met && report.min_approach < plant.settings.approach_floor {
             out.push(
                 Finding::new(
                     "exchanger-approach-below-floor",
@@ -210,6 +214,34 @@ fn exchangers(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
             );
         }
     }
+}
+
+/// An exchanger whose duty specification the streams cannot meet: what was asked,
+/// what was delivered and where the pinch sits.
+fn spec_not_met(id: &str, report: &ExchangerReport, where_: &str) -> Finding {
+    let delivered = match report.specified {
+        ExchangerSpec::Effectiveness(_) => format!("{:.6}", report.delivered),
+        ExchangerSpec::Conductance(_) if report.delivered.is_infinite() => {
+            "an unbounded UA (zero pinch)".to_string()
+        }
+        ExchangerSpec::Conductance(_) => format!("{:.4} kW/K", report.delivered / 1e3),
+        _ => format!("{:.3} K", report.delivered),
+    };
+    Finding::new(
+        "exchanger-spec-not-met",
+        Severity::Error,
+        Some(id),
+        format!(
+            "asked for {}, the streams deliver {delivered}: the smallest difference is {:.3} K at {where_}",
+            report.specified.describe(),
+            report.min_approach
+        ),
+        "the duty is held where the pinch reaches zero; ask for less (a larger approach), change the flow ratio, or specify a minimum_approach".to_string(),
+    )
+    .value("specified", report.specified.value())
+    .value("delivered", report.delivered)
+    .value("min_approach_K", report.min_approach)
+    .value("position", report.min_approach_position)
 }
 
 fn compressors(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {

@@ -294,10 +294,12 @@ impl Figure for ExchangerCurvesFigure<'_> {
             (a.hot_temperature - a.cold_temperature)
                 .total_cmp(&(b.hot_temperature - b.cold_temperature))
         });
-        let title = format!(
-            "exchanger {id}: temperature against duty (UA {:.2} kW/K)",
-            report.ua / 1e3
-        );
+        let conductance = if report.ua.is_finite() {
+            format!("UA {:.2} kW/K", report.ua / 1e3)
+        } else {
+            "UA unbounded: zero pinch".to_string()
+        };
+        let title = format!("exchanger {id}: temperature against duty ({conductance})");
         let err = drawing(path);
         root.fill(&WHITE).map_err(&err)?;
         let mut chart = chart(
