@@ -67,6 +67,11 @@ pub enum Error {
     #[error("{0}")]
     Input(String),
 
+    /// A study found no feasible case: every case solved broke a design check of
+    /// error severity or the study's constraint.
+    #[error("{0}")]
+    Infeasible(String),
+
     /// A flowsheet that cannot be read or resolved, with the place of the fault.
     #[error("{0}")]
     Flowsheet(#[from] FlowsheetError),

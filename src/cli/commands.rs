@@ -103,8 +103,16 @@ pub fn solve(args: &SolveArgs) -> Result<Output, Failure> {
         }
     }
     let findings = rules::check(&plant, &solution);
+    let errors = design_errors(&findings);
     let stdout = match format {
         Format::Json => report::solution::json(&solution, &findings),
+        // A design with errors says so first.
+        _ if errors > 0 => format!(
+            "{}\n{}\n{}\n",
+            report::solution::findings_text(&findings),
+            report::solution::text(&solution),
+            report::solution::CAUTION
+        ),
         _ => format!(
             "{}\n{}\n{}\n",
             report::solution::text(&solution),
@@ -112,7 +120,31 @@ pub fn solve(args: &SolveArgs) -> Result<Output, Failure> {
             report::solution::CAUTION
         ),
     };
-    Ok(Output { stdout, notes })
+    design_verdict(errors, Output { stdout, notes })
+}
+
+/// How many findings are design errors.
+fn design_errors(findings: &[rules::Finding]) -> usize {
+    findings
+        .iter()
+        .filter(|f| f.severity == Severity::Error)
+        .count()
+}
+
+/// The output as it is when the design has no errors; otherwise a failure with the
+/// design-error code that still prints it.
+fn design_verdict(errors: usize, output: Output) -> Result<Output, Failure> {
+    if errors == 0 {
+        return Ok(output);
+    }
+    Err(Failure {
+        message: format!(
+            "the design has {errors} error{}",
+            if errors == 1 { "" } else { "s" }
+        ),
+        code: exit::DESIGN,
+        partial: output,
+    })
 }
 
 /// The options of `check`.
@@ -143,22 +175,7 @@ pub fn check(args: &CheckArgs) -> Result<Output, Failure> {
             report::solution::CAUTION
         ),
     };
-    let errors = findings
-        .iter()
-        .filter(|f| f.severity == Severity::Error)
-        .count();
-    let output = Output { stdout, notes };
-    if errors > 0 {
-        return Err(Failure {
-            message: format!(
-                "the design has {errors} error{}",
-                if errors == 1 { "" } else { "s" }
-            ),
-            code: exit::DESIGN,
-            partial: output,
-        });
-    }
-    Ok(output)
+    design_verdict(design_errors(&findings), Output { stdout, notes })
 }
 
 /// The options of `sweep`.

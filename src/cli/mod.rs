@@ -113,6 +113,7 @@ impl From<Error> for Failure {
     fn from(error: Error) -> Failure {
         let code = match error {
             Error::NoConvergence { .. } => exit::NOT_CONVERGED,
+            Error::Infeasible(_) => exit::DESIGN,
             _ => exit::INPUT,
         };
         Failure::new(error.to_string(), code)

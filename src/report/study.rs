@@ -28,10 +28,14 @@ pub fn sweep_text(study: &Sweep) -> String {
             Ok(m) => row.extend([
                 format!("{:.5}", m.liquid_yield),
                 format!("{:.3}", m.specific_energy),
-                if m.design_errors > 0 {
-                    format!("ok, {} design errors", m.design_errors)
-                } else {
+                if m.feasible() {
                     "ok".into()
+                } else {
+                    format!(
+                        "INFEASIBLE: {} design error{}",
+                        m.design_errors,
+                        if m.design_errors == 1 { "" } else { "s" }
+                    )
                 },
             ]),
             Err(reason) => row.extend([
@@ -44,19 +48,41 @@ pub fn sweep_text(study: &Sweep) -> String {
     }
     let mut out = table.render();
     let failed = study.cases.iter().filter(|c| c.outcome.is_err()).count();
-    if let Some(best) = study
+    let infeasible = study
+        .cases
+        .iter()
+        .filter(|c| c.outcome.as_ref().is_ok_and(|m| !m.feasible()))
+        .count();
+    let tally = format!(
+        "{infeasible} of {} cases infeasible (design errors), {failed} failed",
+        study.cases.len()
+    );
+    // Only feasible cases can be best.
+    match study
         .cases
         .iter()
         .filter_map(|c| c.outcome.as_ref().ok().map(|m| (c, m)))
+        .filter(|(_, m)| m.feasible())
         .max_by(|a, b| a.1.liquid_yield.total_cmp(&b.1.liquid_yield))
     {
-        out.push_str(&format!(
-            "\nhighest yield {:.5} at {:?}; {} of {} cases failed\n",
-            best.1.liquid_yield,
-            best.0.coordinates,
-            failed,
-            study.cases.len()
-        ));
+        Some((case, m)) => {
+            let at: Vec<String> = study
+                .variables
+                .iter()
+                .zip(&case.coordinates)
+                .map(|(v, c)| {
+                    format!("{} = {c} {}", v.name(), v.unit)
+                        .trim_end()
+                        .to_string()
+                })
+                .collect();
+            out.push_str(&format!(
+                "\nhighest yield of the feasible cases {:.5} at {}; {tally}\n",
+                m.liquid_yield,
+                at.join(", ")
+            ));
+        }
+        None => out.push_str(&format!("\nno feasible case: {tally}\n")),
     }
     out
 }
@@ -78,15 +104,26 @@ pub fn optimum_text(
         best.objective, m.liquid_yield, m.specific_energy, m.min_approach
     ));
     out.push_str(&format!(
-        "  {} solver iterations, {} flowsheet solves; constraint {}\n",
+        "  {} solver iterations, {} flowsheet solves ({} infeasible, never taken as best); constraint {}\n",
         best.iterations,
         best.solves,
-        if best.constraint_met {
-            "met"
-        } else {
-            "NOT met"
-        }
+        best.infeasible_solves,
+        if best.constraint_met { "met" } else { "NOT met" }
     ));
+    if best.stopped_at_cap {
+        out.push_str(&format!(
+            "  stopped at the iteration cap ({}): the optimum may not be reached; raise --iterations\n",
+            best.iterations
+        ));
+    }
+    for (v, bound) in variables.iter().zip(&best.on_bound) {
+        if let Some(bound) = bound {
+            out.push_str(&format!(
+                "  {}.{} sits on its {bound} bound: the optimum may lie outside the range\n",
+                v.target, v.key
+            ));
+        }
+    }
     out
 }
 
@@ -119,6 +156,9 @@ pub fn optimum_json(
         "iterations": best.iterations,
         "solves": best.solves,
         "constraint_met": best.constraint_met,
+        "stopped_at_cap": best.stopped_at_cap,
+        "on_bound": best.on_bound,
+        "infeasible_solves": best.infeasible_solves,
     });
     pretty(&json)
 }

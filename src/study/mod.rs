@@ -171,6 +171,12 @@ pub struct Metrics {
 }
 
 impl Metrics {
+    /// Whether the case can be built: no design check of error severity fails.
+    /// Studies never rank an infeasible case best.
+    pub fn feasible(&self) -> bool {
+        self.design_errors == 0
+    }
+
     /// The figures of a solution.
     pub fn of(plant: &crate::flowsheet::Plant, solution: &Solution) -> Metrics {
         let s = &solution.summary;
@@ -350,7 +356,7 @@ pub fn csv_row(case: &CaseResult) -> Vec<String> {
     row.extend(case.coordinates.iter().map(|c| format!("{c}")));
     match &case.outcome {
         Ok(m) => row.extend([
-            "ok".to_string(),
+            if m.feasible() { "ok" } else { "infeasible" }.to_string(),
             format!("{:e}", m.liquid_yield),
             format!("{:e}", m.liquid_flow),
             format!("{:e}", m.specific_energy),

@@ -9,6 +9,7 @@ use crate::solve::{solve, Options};
 use argmin::core::{CostFunction, Executor, State};
 use argmin::solver::brent::BrentOpt;
 use argmin::solver::neldermead::NelderMead;
+use rayon::prelude::*;
 use std::sync::atomic::{AtomicUsize, Ordering};
 use std::sync::Mutex;
 
@@ -116,8 +117,16 @@ pub struct Optimum {
     pub iterations: u64,
     /// Flowsheet solves made.
     pub solves: usize,
-    /// Whether the constraint holds at the optimum (true without a constraint).
+    /// Whether the constraint holds at the optimum (always: a point that breaks it
+    /// is never taken as the optimum).
     pub constraint_met: bool,
+    /// Whether the solver stopped at its iteration cap rather than on its tolerance.
+    pub stopped_at_cap: bool,
+    /// For each variable, the bound the optimum sits on (`lower` or `upper`), if any:
+    /// the true optimum may then lie outside the range.
+    pub on_bound: Vec<Option<&'static str>>,
+    /// Cases solved that were infeasible (design errors or the constraint broken).
+    pub infeasible_solves: usize,
 }
 
 struct Problem<'a> {
@@ -128,10 +137,16 @@ struct Problem<'a> {
     objective: Objective,
     min_approach: Option<f64>,
     solves: AtomicUsize,
+    infeasible: AtomicUsize,
     best: Mutex<Option<(f64, Vec<f64>, Metrics)>>,
 }
 
 const PENALTY: f64 = 1e6;
+
+/// What each design error (or a broken constraint) adds to the cost: more than any
+/// figure the objectives take, so that every infeasible case costs more than every
+/// feasible one.
+const INFEASIBLE_PENALTY: f64 = 1e4;
 
 impl Problem<'_> {
     fn evaluate(&self, x: &[f64]) -> f64 {
@@ -159,14 +174,24 @@ impl Problem<'_> {
         if !cost.is_finite() {
             return PENALTY;
         }
+        // A case with design errors, or one that breaks the constraint, is a
+        // constraint violation: penalised, and never taken as the optimum.
+        let mut feasible = m.feasible();
+        if !feasible {
+            cost += INFEASIBLE_PENALTY * m.design_errors as f64;
+        }
         if let Some(floor) = self.min_approach {
             if m.min_approach < floor {
-                cost += 1e3 * (floor - m.min_approach);
+                cost += INFEASIBLE_PENALTY + 1e3 * (floor - m.min_approach);
+                feasible = false;
             }
+        }
+        if !feasible {
+            self.infeasible.fetch_add(1, Ordering::Relaxed);
         }
         cost += PENALTY * outside;
         let mut best = self.best.lock().unwrap_or_else(|e| e.into_inner());
-        if outside == 0.0 && best.as_ref().is_none_or(|b| cost < b.0) {
+        if feasible && outside == 0.0 && best.as_ref().is_none_or(|b| cost < b.0) {
             *best = Some((cost, clamped, m));
         }
         cost
@@ -189,6 +214,26 @@ impl CostFunction for Many<'_> {
     fn cost(&self, p: &Vec<f64>) -> std::result::Result<f64, argmin::core::Error> {
         Ok(self.0.evaluate(p))
     }
+}
+
+/// Scan points of a one-variable optimisation before Brent's method refines.
+const SCAN_POINTS_ONE: usize = 13;
+
+/// Scan points per variable of a several-variable optimisation before Nelder–Mead.
+const SCAN_POINTS_MANY: usize = 4;
+
+/// The error when no case solved was feasible.
+fn no_feasible_point(problem: &Problem, min_approach: Option<f64>) -> Error {
+    let solves = problem.solves.load(Ordering::Relaxed);
+    let infeasible = problem.infeasible.load(Ordering::Relaxed);
+    Error::Infeasible(format!(
+        "no feasible point: of {solves} cases tried, {infeasible} had design errors{} and {} could not be solved",
+        match min_approach {
+            Some(floor) => format!(" or a smallest approach below {floor} K"),
+            None => String::new(),
+        },
+        solves - infeasible
+    ))
 }
 
 /// Optimises `objective` over `variables` within their bounds; `min_approach` is an
@@ -215,6 +260,7 @@ pub fn optimize(
         objective,
         min_approach,
         solves: AtomicUsize::new(0),
+        infeasible: AtomicUsize::new(0),
         best: Mutex::new(None),
     };
     let fail = |e: argmin::core::Error| Error::NoConvergence {
@@ -223,20 +269,62 @@ pub fn optimize(
         residual: f64::NAN,
         context: format!(": {e}"),
     };
+    // A coarse scan of the box first (in parallel): the search then starts from the
+    // best feasible point found, so that a region of infeasible cases (penalised,
+    // but with no measure of how far from feasible) cannot lead it astray.
+    let steps = if variables.len() == 1 {
+        SCAN_POINTS_ONE
+    } else {
+        SCAN_POINTS_MANY
+    };
+    let spacing: Vec<f64> = variables
+        .iter()
+        .map(|b| (b.high - b.low) / (steps - 1) as f64)
+        .collect();
+    let grid: Vec<Vec<f64>> = (0..steps.pow(variables.len() as u32))
+        .map(|mut index| {
+            variables
+                .iter()
+                .zip(&spacing)
+                .map(|(b, h)| {
+                    let k = index % steps;
+                    index /= steps;
+                    b.low + k as f64 * h
+                })
+                .collect()
+        })
+        .collect();
+    grid.par_iter().for_each(|x| {
+        problem.evaluate(x);
+    });
+    let Some(start) = problem
+        .best
+        .lock()
+        .unwrap_or_else(|e| e.into_inner())
+        .as_ref()
+        .map(|b| b.1.clone())
+    else {
+        return Err(no_feasible_point(&problem, min_approach));
+    };
     let iterations = if variables.len() == 1 {
         let b = &variables[0];
-        let solver = BrentOpt::new(b.low, b.high).set_tolerance(1e-10, 1e-7 * (b.high - b.low));
+        let (low, high) = (
+            (start[0] - spacing[0]).max(b.low),
+            (start[0] + spacing[0]).min(b.high),
+        );
+        let solver = BrentOpt::new(low, high).set_tolerance(1e-10, 1e-7 * (b.high - b.low));
         let result = Executor::new(One(&problem), solver)
             .configure(|s| s.max_iters(max_iterations))
             .run()
             .map_err(fail)?;
         result.state().get_iter()
     } else {
-        let start: Vec<f64> = variables.iter().map(|b| 0.5 * (b.low + b.high)).collect();
+        // A simplex of half the scan's spacing at the best point, stepping inwards.
         let mut simplex = vec![start.clone()];
         for (i, b) in variables.iter().enumerate() {
             let mut p = start.clone();
-            p[i] += 0.25 * (b.high - b.low);
+            let step = 0.5 * spacing[i];
+            p[i] += if p[i] + step <= b.high { step } else { -step };
             simplex.push(p);
         }
         let solver = NelderMead::new(simplex)
@@ -253,14 +341,32 @@ pub fn optimize(
         .lock()
         .unwrap_or_else(|e| e.into_inner())
         .clone();
-    let (_, values, metrics) =
-        best.ok_or_else(|| Error::Input("no case inside the bounds could be solved".into()))?;
+    let solves = problem.solves.load(Ordering::Relaxed);
+    let infeasible_solves = problem.infeasible.load(Ordering::Relaxed);
+    let (_, values, metrics) = best.ok_or_else(|| no_feasible_point(&problem, min_approach))?;
+    let on_bound = variables
+        .iter()
+        .zip(&values)
+        .map(|(b, v)| {
+            let margin = 1e-4 * (b.high - b.low);
+            if *v <= b.low + margin {
+                Some("lower")
+            } else if *v >= b.high - margin {
+                Some("upper")
+            } else {
+                None
+            }
+        })
+        .collect();
     Ok(Optimum {
         objective: objective.value(&metrics),
         constraint_met: min_approach.is_none_or(|f| metrics.min_approach >= f - 1e-9),
         values,
         metrics,
         iterations,
-        solves: problem.solves.load(Ordering::Relaxed),
+        solves,
+        stopped_at_cap: iterations >= max_iterations,
+        on_bound,
+        infeasible_solves,
     })
 }

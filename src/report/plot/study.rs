@@ -32,9 +32,12 @@ impl Figure for SweepFigure<'_> {
                 format!("{} [{}]", v.name(), v.unit)
             }
         };
+        // Feasible cases carry a yield; infeasible ones (design errors) are drawn
+        // apart, and failed ones have none.
         let yields: Vec<(f64, Option<f64>)> = study
             .cases
             .iter()
+            .filter(|c| c.outcome.as_ref().map_or(true, |m| m.feasible()))
             .map(|c| {
                 (
                     c.coordinates[0],
@@ -42,9 +45,18 @@ impl Figure for SweepFigure<'_> {
                 )
             })
             .collect();
+        let infeasible: Vec<(f64, f64)> = study
+            .cases
+            .iter()
+            .filter_map(|c| match &c.outcome {
+                Ok(m) if !m.feasible() => Some((c.coordinates[0], m.liquid_yield)),
+                _ => None,
+            })
+            .collect();
         let y_max = yields
             .iter()
             .filter_map(|y| y.1)
+            .chain(infeasible.iter().map(|p| p.1))
             .fold(0.0f64, f64::max)
             .max(1e-9)
             * 1.1;
@@ -90,6 +102,18 @@ impl Figure for SweepFigure<'_> {
                 .map_err(&err)?
                 .label("failed cases")
                 .legend(|(x, y)| Cross::new((x + 9, y), 6, RED.stroke_width(2)));
+            if !infeasible.is_empty() {
+                let dark_red = RGBColor(120, 0, 0);
+                chart
+                    .draw_series(
+                        infeasible
+                            .iter()
+                            .map(|&(x, y)| TriangleMarker::new((x, y), 7, dark_red.filled())),
+                    )
+                    .map_err(&err)?
+                    .label("infeasible cases (design errors)")
+                    .legend(move |(x, y)| TriangleMarker::new((x + 9, y), 7, dark_red.filled()));
+            }
             legend(&mut chart, SeriesLabelPosition::UpperRight, path)?;
         } else {
             let v1 = &study.variables[1];
@@ -121,6 +145,8 @@ impl Figure for SweepFigure<'_> {
                 .draw_series(study.cases.iter().map(|c| {
                     let (x, y) = (c.coordinates[0], c.coordinates[1]);
                     let colour = match &c.outcome {
+                        // Infeasible (design errors): a distinct dark red, never a yield.
+                        Ok(m) if !m.feasible() => RGBColor(120, 0, 0),
                         Ok(m) => {
                             let f = (1.1 * m.liquid_yield / y_max).clamp(0.0, 1.0);
                             RGBColor(
@@ -140,7 +166,7 @@ impl Figure for SweepFigure<'_> {
             chart
                 .draw_series([Text::new(
                     format!(
-                        "colour: liquid yield from 0 (blue) to {:.3} (orange); grey: failed",
+                        "colour: liquid yield from 0 (blue) to {:.3} (orange); dark red: infeasible; grey: failed",
                         y_max / 1.1
                     ),
                     (x0, a1 + dy * 0.2),
