@@ -111,13 +111,13 @@ pub fn solve(args: &SolveArgs) -> Result<Output, Failure> {
             "{}\n{}\n{}\n",
             report::solution::findings_text(&findings),
             report::solution::text(&solution),
-            report::solution::CAUTION
+            &report::caution::caution(&solution.fluids)
         ),
         _ => format!(
             "{}\n{}\n{}\n",
             report::solution::text(&solution),
             report::solution::findings_text(&findings),
-            report::solution::CAUTION
+            &report::caution::caution(&solution.fluids)
         ),
     };
     design_verdict(errors, Output { stdout, notes })
@@ -172,7 +172,7 @@ pub fn check(args: &CheckArgs) -> Result<Output, Failure> {
         _ => format!(
             "{}\n{}\n",
             report::solution::findings_text(&findings),
-            report::solution::CAUTION
+            &report::caution::caution(&solution.fluids)
         ),
     };
     design_verdict(design_errors(&findings), Output { stdout, notes })

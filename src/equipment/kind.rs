@@ -105,6 +105,12 @@ pub trait Equipment: std::fmt::Debug + Send + Sync {
         None
     }
 
+    /// Fluids the unit uses that are not streams of the flowsheet (a bath's
+    /// cryogen), so that reports can name their hazards.
+    fn utility_fluids(&self) -> Vec<&'static Fluid> {
+        Vec::new()
+    }
+
     /// The model: outlet flows, in port order, and what the unit did.
     fn run(&self, inlets: &[Flow], context: &Context) -> Result<(Vec<Flow>, Performance)>;
 }

@@ -190,6 +190,13 @@ impl Equipment for Precooler {
         Role::Precooling
     }
 
+    fn utility_fluids(&self) -> Vec<&'static Fluid> {
+        match self.source {
+            PrecoolerSource::Bath { fluid, .. } => vec![fluid],
+            _ => Vec::new(),
+        }
+    }
+
     fn outlet_pressures(&self, inlets: &[Option<f64>]) -> Vec<Option<f64>> {
         let mut out = vec![less_drop(inlets[0], self.pressure_drop)];
         out.extend(inlets.get(1).copied());

@@ -59,8 +59,16 @@ pub struct Settings {
     pub segments: usize,
     /// Starting temperature of every tear stream, K (default: ambient).
     pub initial_temperature: Option<f64>,
-    /// Smallest acceptable exchanger approach, K (common practice: 1 K).
+    /// Smallest acceptable exchanger approach, K, on top of the relative floor
+    /// (default 0 K: the relative floor alone judges).
     pub approach_floor: f64,
+    /// Smallest acceptable exchanger approach as a fraction of the temperature where
+    /// it occurs, ΔT/T (common practice: 0.005, so 1.5 K at 300 K, 0.4 K at 80 K,
+    /// 0.1 K at 20 K; a fixed floor in kelvin would flag normal helium approaches).
+    pub approach_floor_fraction: f64,
+    /// Largest acceptable temperature difference between a mixer's inlets, K (common
+    /// practice: 10 K; mixing streams at different temperatures destroys exergy).
+    pub mixer_temperature_limit: f64,
     /// Highest acceptable compressor discharge temperature, K (common practice: 420 K).
     pub discharge_limit: f64,
     /// Highest acceptable liquid mass fraction at an expander outlet (common
@@ -76,7 +84,9 @@ impl Default for Settings {
             method: Method::Wegstein,
             segments: 50,
             initial_temperature: None,
-            approach_floor: 1.0,
+            approach_floor: 0.0,
+            approach_floor_fraction: 0.005,
+            mixer_temperature_limit: 10.0,
             discharge_limit: 420.0,
             expander_liquid_limit: 0.05,
         }

@@ -7,7 +7,7 @@ use crate::error::FlowsheetError;
 use crate::quantity::{self, Dimension};
 
 /// The settings' names, in the order they are listed in messages.
-const SETTING_NAMES: &str = "tolerance, max_iterations, segments, method, initial_temperature, approach_floor, discharge_limit, expander_liquid_limit";
+const SETTING_NAMES: &str = "tolerance, max_iterations, segments, method, initial_temperature, approach_floor, approach_floor_fraction, mixer_temperature_limit, discharge_limit, expander_liquid_limit";
 
 impl Resolver<'_> {
     pub(super) fn settings(&self) -> Result<Settings, FlowsheetError> {
@@ -68,6 +68,17 @@ impl Resolver<'_> {
                 }
                 "approach_floor" => {
                     s.approach_floor = temperature(Dimension::TemperatureDifference, 0.0, 100.0)?
+                }
+                "approach_floor_fraction" => {
+                    s.approach_floor_fraction = quantity::parse(&text, Dimension::Fraction)
+                        .map_err(|e| bad(e.to_string()))?;
+                    if !(0.0..=0.5).contains(&s.approach_floor_fraction) {
+                        return Err(bad("must lie between 0 and 0.5".into()));
+                    }
+                }
+                "mixer_temperature_limit" => {
+                    s.mixer_temperature_limit =
+                        temperature(Dimension::TemperatureDifference, 0.0, 1000.0)?
                 }
                 "discharge_limit" => {
                     s.discharge_limit = temperature(Dimension::Temperature, 250.0, 1000.0)?

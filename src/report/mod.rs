@@ -1,6 +1,7 @@
 //! Turning results into text people read and JSON or CSV that programs read. The
 //! report never computes thermodynamics beyond reading states.
 
+pub mod caution;
 pub mod fluids;
 pub mod inversion;
 pub mod plot;

@@ -7,9 +7,6 @@ use crate::rules::Finding;
 use crate::solve::Solution;
 use serde::{Deserialize, Serialize};
 
-/// The caution printed with every report.
-pub const CAUTION: &str = "Caution: high-pressure gas, cryogenic liquids (cold burns, asphyxiation in\nclosed spaces, oxygen enrichment near liquid-nitrogen-cooled surfaces) and hydrogen\n(flammable) are hazards. These figures are for planning: follow local codes and licensed\nengineering practice. See docs/safety.md.";
-
 /// One stream in the JSON output.
 #[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct StreamRecord {
@@ -297,7 +294,7 @@ impl SolutionRecord {
             streams,
             equipment,
             findings: findings.to_vec(),
-            caution: CAUTION.replace('\n', " "),
+            caution: super::caution::caution(&solution.fluids).replace('\n', " "),
         }
     }
 }

@@ -20,6 +20,7 @@ pub fn check(plant: &Plant, solution: &Solution) -> Vec<Finding> {
     coolers_and_precoolers(plant, solution, &mut findings);
     expanders(plant, solution, &mut findings);
     cryogen_feeds(plant, solution, &mut findings);
+    mixers(plant, solution, &mut findings);
     ranges(plant, solution, &mut findings);
     balances(solution, &mut findings);
     findings.sort_by_key(|f| f.severity);
@@ -196,21 +197,88 @@ fn exchangers(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
                 .value("min_approach_K", report.min_approach)
                 .value("position", position),
             );
-        } else if report.specification_met && report.min_approach < plant.settings.approach_floor {
+        } else if report.specification_met {
+            let at = temperature_at_pinch(report);
+            let floor = plant
+                .settings
+                .approach_floor
+                .max(plant.settings.approach_floor_fraction * at);
+            if report.min_approach < floor {
+                out.push(
+                    Finding::new(
+                        "exchanger-approach-below-floor",
+                        Severity::Warning,
+                        Some(&unit.id),
+                        format!(
+                            "the smallest temperature difference is {:.3} K at {where_} (cold side at {at:.2} K), below the floor of {floor:.3} K there ({:.2} % of the temperature)",
+                            report.min_approach,
+                            100.0 * plant.settings.approach_floor_fraction
+                        ),
+                        "an approach this small needs a very large exchanger; allow more (the floor is settings.approach_floor_fraction of the temperature, and settings.approach_floor in kelvin)".to_string(),
+                    )
+                    .value("min_approach_K", report.min_approach)
+                    .value("approach_floor_K", floor)
+                    .value("pinch_temperature_K", at)
+                    .value("position", position),
+                );
+            }
+        }
+    }
+}
+
+/// The cold-side temperature where the smallest difference lies, interpolated on
+/// the profile.
+fn temperature_at_pinch(report: &ExchangerReport) -> f64 {
+    let profile = &report.profile;
+    let Some(last) = profile.last() else {
+        return f64::NAN;
+    };
+    let duty = report.min_approach_position * last.duty;
+    profile
+        .windows(2)
+        .find(|w| duty >= w[0].duty && duty <= w[1].duty && w[1].duty > w[0].duty)
+        .map_or(last.cold_temperature, |w| {
+            let f = (duty - w[0].duty) / (w[1].duty - w[0].duty);
+            w[0].cold_temperature + f * (w[1].cold_temperature - w[0].cold_temperature)
+        })
+}
+
+/// A mixer joining streams at very different temperatures destroys exergy; warn
+/// above the flowsheet's limit, with what is destroyed.
+fn mixers(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
+    for (unit, result) in plant.units.iter().zip(&solution.units) {
+        let UnitSpec::Mixer(_) = unit.spec else {
+            continue;
+        };
+        let temperatures: Vec<f64> = unit
+            .inlets
+            .iter()
+            .map(|&i| &solution.streams[i])
+            .filter(|f| f.flow > 0.0)
+            .map(|f| f.state.temperature)
+            .collect();
+        let (low, high) = temperatures
+            .iter()
+            .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), t| {
+                (a.min(*t), b.max(*t))
+            });
+        let spread = high - low;
+        let limit = plant.settings.mixer_temperature_limit;
+        if spread > limit {
             out.push(
                 Finding::new(
-                    "exchanger-approach-below-floor",
+                    "mixer-temperature-difference",
                     Severity::Warning,
                     Some(&unit.id),
                     format!(
-                        "the smallest temperature difference is {:.3} K at {where_}, below the flowsheet's floor of {:.2} K",
-                        report.min_approach, plant.settings.approach_floor
+                        "the mixer joins streams at {low:.2} K and {high:.2} K, {spread:.2} K apart (limit {limit:.1} K), destroying {:.3} kW of exergy",
+                        result.exergy_destroyed / 1e3
                     ),
-                    "an approach this small needs a very large exchanger; allow more (the floor is settings.approach_floor)".to_string(),
+                    "join the colder stream where the other is as cold (for an expander's exhaust, at the cold end of the return through the exchangers), or raise settings.mixer_temperature_limit".to_string(),
                 )
-                .value("min_approach_K", report.min_approach)
-                .value("approach_floor_K", plant.settings.approach_floor)
-                .value("position", position),
+                .value("temperature_difference_K", spread)
+                .value("limit_K", limit)
+                .value("exergy_destroyed_W", result.exergy_destroyed),
             );
         }
     }

@@ -119,6 +119,8 @@ pub struct Solution {
     pub recycles: Vec<Vec<String>>,
     /// The converged (scaled) tear vector, to warm-start a neighbouring case.
     pub tear_vector: Vec<f64>,
+    /// Canonical names of the fluids the plant uses: its streams' and its baths'.
+    pub fluids: Vec<String>,
 }
 
 /// The dead state of each fluid met, found once.
@@ -314,12 +316,26 @@ pub fn assemble(
             .map(|&t| plant.streams[t].name.clone())
             .collect(),
         tear_vector: Vec::new(),
+        fluids: fluids_used(plant),
         recycles: sequence
             .recycles
             .iter()
             .map(|r| r.iter().map(|&u| plant.units[u].id.clone()).collect())
             .collect(),
     })
+}
+
+/// The fluids of the streams, then those the units use besides (baths), each once.
+fn fluids_used(plant: &Plant) -> Vec<String> {
+    let mut names: Vec<String> = Vec::new();
+    let streams = plant.streams.iter().map(|s| s.fluid);
+    let utilities = plant.units.iter().flat_map(|u| u.spec.utility_fluids());
+    for fluid in streams.chain(utilities) {
+        if !names.contains(&fluid.name) {
+            names.push(fluid.name.clone());
+        }
+    }
+    names
 }
 
 fn dedup(mut v: Vec<usize>) -> Vec<usize> {
