@@ -86,7 +86,8 @@ fn throttle_reports_outlet_and_verdict() {
     ]);
     assert_eq!(code, 0, "{err}");
     let v: serde_json::Value = serde_json::from_str(&out).unwrap();
-    assert_eq!(v["verdict"], "inside-cools");
+    assert_eq!(v["verdict"], "cools");
+    assert_eq!(v["inlet_effect"], "inside-cools");
     assert_eq!(v["outlet"]["phase"], "two-phase");
     let dt = v["temperature_change_K"].as_f64().unwrap();
     assert!(dt < -50.0, "{dt}");
@@ -94,6 +95,30 @@ fn throttle_reports_outlet_and_verdict() {
     assert_eq!(code, 0);
     assert!(out.contains("above the maximum inversion temperature"));
     assert!(out.contains("precool"));
+}
+
+/// Hydrogen at 70 K and 150 bar lies outside the curve (below its lower branch at
+/// that pressure), yet the expansion to 1 bar cools by about 21 K: the verdict is
+/// about the whole expansion, the inlet's differential effect is stated apart, and
+/// the two never contradict (the old text said "the expansion cools" above
+/// "throttling warms").
+#[test]
+fn the_verdict_and_the_inlet_effect_never_contradict() {
+    let (code, out, err) = cryochain(&[
+        "throttle", "hydrogen", "T=70K", "p=150bar", "--to", "1bar", "--json",
+    ]);
+    assert_eq!(code, 0, "{err}");
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    assert_eq!(v["verdict"], "cools");
+    assert_eq!(v["inlet_effect"], "outside-warms");
+    assert!((v["temperature_change_K"].as_f64().unwrap() + 21.08).abs() < 0.01);
+    let (_, text, _) = cryochain(&["throttle", "hydrogen", "T=70K", "p=150bar", "--to", "1bar"]);
+    let flat = text.replace("\n   ", "");
+    assert!(
+        flat.contains("the expansion as a whole cools the stream"),
+        "{text}"
+    );
+    assert!(!flat.contains("throttling warms"), "{text}");
 }
 
 #[test]

@@ -27,10 +27,14 @@ impl InletVerdict {
     /// A plain-words name.
     pub fn words(self) -> &'static str {
         match self {
-            InletVerdict::InsideCools => "inside the inversion curve: throttling cools",
-            InletVerdict::OutsideWarms => "outside the inversion curve: throttling warms",
+            InletVerdict::InsideCools => {
+                "the inlet lies inside the inversion curve: a small pressure drop there cools"
+            }
+            InletVerdict::OutsideWarms => {
+                "the inlet lies outside the inversion curve: a small pressure drop there warms"
+            }
             InletVerdict::AboveMaximumInversionTemperature => {
-                "above the maximum inversion temperature: throttling warms at any pressure"
+                "the inlet lies above the maximum inversion temperature: throttling warms from any pressure"
             }
             InletVerdict::TwoPhaseInlet => {
                 "two-phase inlet: the temperature follows saturation down"

@@ -1,5 +1,6 @@
 //! Inversion-curve figures and throttling results as text and JSON.
 
+use super::solution::wrap;
 use super::table::{Align, TextTable};
 use crate::fluids::inversion::InversionCurve;
 use crate::fluids::throttling::Throttling;
@@ -104,10 +105,18 @@ pub struct ThrottleRecord {
     pub temperature_change_k: f64,
     /// Vapour mass fraction at the outlet.
     pub vapour_fraction: f64,
-    /// Where the inlet lies against the inversion curve.
+    /// What the whole expansion does (the integral effect): `cools`, `warms` or
+    /// `no-change`.
     pub verdict: String,
     /// The verdict in words.
     pub verdict_words: String,
+    /// Where the inlet lies against the inversion curve, which decides what a small
+    /// pressure drop there does (the differential effect, the sign of μJT):
+    /// `inside-cools`, `outside-warms`, `above-maximum-inversion-temperature`,
+    /// `two-phase-inlet`.
+    pub inlet_effect: String,
+    /// The inlet effect in words.
+    pub inlet_effect_words: String,
     /// Maximum inversion temperature, K.
     #[serde(rename = "max_inversion_temperature_K")]
     pub max_inversion_temperature_k: f64,
@@ -119,6 +128,38 @@ pub struct ThrottleRecord {
     pub lower_inversion_k: Option<f64>,
 }
 
+/// What the whole expansion does to the temperature: the integral effect.
+fn expansion_key(t: &Throttling) -> &'static str {
+    if t.temperature_change < 0.0 {
+        "cools"
+    } else if t.temperature_change > 0.0 {
+        "warms"
+    } else {
+        "no-change"
+    }
+}
+
+/// The whole expansion's effect in words, reconciled with the inlet's: an inlet
+/// outside the curve whose expansion still cools is said so, not contradicted.
+fn expansion_words(t: &Throttling) -> String {
+    let change = t.temperature_change.abs();
+    let whole = match expansion_key(t) {
+        "cools" => format!("the expansion as a whole cools the stream by {change:.4} K"),
+        "warms" => format!("the expansion as a whole warms the stream by {change:.4} K"),
+        _ => "the expansion leaves the temperature unchanged".to_string(),
+    };
+    use crate::fluids::throttling::InletVerdict::*;
+    match (t.verdict, expansion_key(t)) {
+        (OutsideWarms, "cools") => format!(
+            "{whole}: its first part warms, but the path crosses into the inversion curve, where the rest cools more"
+        ),
+        (InsideCools, "warms") => format!(
+            "{whole}: its first part cools, but the path leaves the inversion curve, where the rest warms more"
+        ),
+        _ => whole,
+    }
+}
+
 /// The throttling result as JSON.
 pub fn throttle_json(t: &Throttling) -> String {
     let record = ThrottleRecord {
@@ -126,8 +167,10 @@ pub fn throttle_json(t: &Throttling) -> String {
         outlet: super::state::StateRecord::of(&t.outlet),
         temperature_change_k: t.temperature_change,
         vapour_fraction: t.vapour_fraction,
-        verdict: t.verdict.key().to_string(),
-        verdict_words: t.verdict.words().to_string(),
+        verdict: expansion_key(t).to_string(),
+        verdict_words: expansion_words(t),
+        inlet_effect: t.verdict.key().to_string(),
+        inlet_effect_words: t.verdict.words().to_string(),
         max_inversion_temperature_k: t.max_inversion_temperature,
         upper_inversion_k: t.inversion_at_inlet.upper,
         lower_inversion_k: t.inversion_at_inlet.lower,
@@ -155,19 +198,21 @@ pub fn throttle_text(t: &Throttling) -> String {
     };
     out.push_str(&line("inlet", &t.inlet));
     out.push_str(&line("outlet", &t.outlet));
-    let change = if t.temperature_change < 0.0 {
-        "cools"
-    } else {
-        "warms"
-    };
-    out.push_str(&format!(
-        "  ΔT      {:+.4} K: the expansion {change} the stream\n",
-        t.temperature_change
+    out.push_str(&format!("  ΔT      {:+.4} K\n", t.temperature_change));
+    out.push_str(&wrap(
+        &format!("  verdict: {}", expansion_words(t)),
+        98,
+        "    ",
     ));
-    if let Some(mu) = t.inlet.joule_thomson() {
-        out.push_str(&format!("  μJT at the inlet {:.5} K/bar\n", mu * 1e5));
-    }
-    out.push_str(&format!("  verdict  {}\n", t.verdict.words()));
+    let mu = t
+        .inlet
+        .joule_thomson()
+        .map_or(String::new(), |mu| format!(" (μJT {:+.5} K/bar)", mu * 1e5));
+    out.push_str(&wrap(
+        &format!("  at the inlet: {}{mu}", t.verdict.words()),
+        98,
+        "    ",
+    ));
     let inv = &t.inversion_at_inlet;
     match (inv.lower, inv.upper) {
         (_, None) => out.push_str(&format!(
@@ -185,9 +230,13 @@ pub fn throttle_text(t: &Throttling) -> String {
             "  maximum inversion temperature {:.2} K: precool the stream below it (for example in a recuperator against the cold return gas, or in a liquid-nitrogen bath) before the valve\n",
             t.max_inversion_temperature
         )),
-        OutsideWarms => out.push_str(&format!(
-            "  maximum inversion temperature {:.2} K; move the inlet inside the curve: lower the inlet pressure towards the inversion pressure at this temperature, or precool further\n",
-            t.max_inversion_temperature
+        OutsideWarms => out.push_str(&wrap(
+            &format!(
+                "  maximum inversion temperature {:.2} K. An inlet outside the curve is normal in a recuperative loop; there the best high pressure is the inversion pressure at the recuperator's warm end (the design checks work it out)",
+                t.max_inversion_temperature
+            ),
+            98,
+            "    ",
         )),
         _ => out.push_str(&format!(
             "  maximum inversion temperature {:.2} K\n",

@@ -6,12 +6,44 @@ use crate::equipment::exchanger::{ExchangerReport, ExchangerSpec};
 use crate::equipment::precooler::{Precooler, PrecoolerSource};
 use crate::equipment::{Details, Flow, Performance};
 use crate::flowsheet::{Plant, UnitSpec};
-use crate::fluids::inversion::InversionCurve;
 use crate::fluids::{Fluid, Phase};
 use crate::solve::Solution;
 
-/// Every finding for a solved plant, errors first.
+/// Every finding for a solved plant, errors first: the checks of the solution as
+/// it is, then the high-pressure advice, which re-solves the flowsheet to confirm
+/// itself (see [`super::pressure`]).
 pub fn check(plant: &Plant, solution: &Solution) -> Vec<Finding> {
+    let mut findings = local_checks(plant, solution);
+    let advice = super::pressure::advice(plant, solution);
+    // A plant that makes no liquid: point at a confirmed better pressure.
+    for finding in findings.iter_mut().filter(|f| f.id == "no-liquid") {
+        if let Some(a) = advice.iter().find(|a| a.confirmed()) {
+            finding.hint = format!(
+                "set {}.outlet_pressure to about {:.0} bar, the inversion pressure at the warm end of {} (re-solved there the yield is {:.5}), or precool further",
+                a.compressor,
+                a.best_high_pressure / 1e5,
+                a.exchanger,
+                a.yield_at_best.clone().unwrap_or(0.0)
+            );
+        }
+    }
+    findings.extend(super::pressure::findings(plant, solution, &advice));
+    findings.sort_by_key(|f| f.severity);
+    findings
+}
+
+/// How many design errors the solution has. The high-pressure advice, which never
+/// gives an error, is left out, so this costs no re-solve (studies call it for
+/// every case).
+pub fn design_errors(plant: &Plant, solution: &Solution) -> usize {
+    local_checks(plant, solution)
+        .iter()
+        .filter(|f| f.severity == Severity::Error)
+        .count()
+}
+
+/// The checks of the solution as it is.
+fn local_checks(plant: &Plant, solution: &Solution) -> Vec<Finding> {
     let mut findings = Vec::new();
     valves(plant, solution, &mut findings);
     no_liquid(plant, solution, &mut findings);
@@ -25,21 +57,6 @@ pub fn check(plant: &Plant, solution: &Solution) -> Vec<Finding> {
     balances(solution, &mut findings);
     findings.sort_by_key(|f| f.severity);
     findings
-}
-
-const OUTSIDE_CURVE_HINT: &str = "lower the high pressure towards the inversion pressure at the inlet temperature, or precool further: a Linde-Hampson loop's yield peaks when the high pressure equals the inversion pressure at the warm end of the last recuperator";
-
-/// The pressure of the inversion curve at temperature T, where the curve reaches it.
-fn inversion_pressure_at(curve: &InversionCurve, t: f64) -> Option<f64> {
-    curve.curve.windows(2).find_map(|w| {
-        let (a, b) = (w[0], w[1]);
-        if (a.temperature >= t && b.temperature <= t) && a.temperature != b.temperature {
-            let f = (a.temperature - t) / (a.temperature - b.temperature);
-            Some(a.pressure + f * (b.pressure - a.pressure))
-        } else {
-            None
-        }
-    })
 }
 
 fn precooling_advice(fluid: &Fluid) -> &'static str {
@@ -83,39 +100,25 @@ fn valves(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
             );
             continue;
         }
-        let warms = outlet.state.temperature > t_in + 1e-9;
-        let outside = inlet.state.joule_thomson().is_some_and(|mu| mu < 0.0);
-        if warms || outside {
-            let p_inv = inversion_pressure_at(curve, t_in);
-            let at_this_temperature = p_inv.map_or(String::new(), |p| {
-                format!(", whose pressure at this temperature is {:.1} bar", p / 1e5)
-            });
-            let warming = if warms {
-                format!(
-                    "; the expansion warms the stream by {:.3} K",
-                    outlet.state.temperature - t_in
-                )
-            } else {
-                String::new()
-            };
+        // The integral effect: an expansion that warms the stream as a whole.
+        // (An inlet outside the curve whose expansion still cools is normal in a
+        // recuperative loop; the high-pressure advice mentions it.)
+        if outlet.state.temperature > t_in + 1e-9 {
             let mut finding = Finding::new(
-                if warms {
-                    "valve-warms"
-                } else {
-                    "valve-outside-inversion-curve"
-                },
-                Severity::Warning,
-                Some(id),
-                format!(
-                    "the valve inlet ({t_in:.2} K, {:.2} bar) lies outside the inversion curve{at_this_temperature}{warming}",
-                    inlet.state.pressure / 1e5,
-                ),
-                OUTSIDE_CURVE_HINT.to_string(),
-            )
-            .value("inlet_temperature_K", t_in)
-            .value("inlet_pressure_Pa", inlet.state.pressure)
-            .value("temperature_change_K", outlet.state.temperature - t_in);
-            if let Some(p) = p_inv {
+                    "valve-warms",
+                    Severity::Warning,
+                    Some(id),
+                    format!(
+                        "the expansion from {t_in:.2} K, {:.2} bar warms the stream by {:.3} K: the valve gives no cooling",
+                        inlet.state.pressure / 1e5,
+                        outlet.state.temperature - t_in
+                    ),
+                    format!("precool the stream further before the valve — {}", precooling_advice(fluid)),
+                )
+                .value("inlet_temperature_K", t_in)
+                .value("inlet_pressure_Pa", inlet.state.pressure)
+                .value("temperature_change_K", outlet.state.temperature - t_in);
+            if let Some(p) = super::pressure::inversion_pressure_at(curve, t_in) {
                 finding = finding.value("inversion_pressure_Pa", p);
             }
             out.push(finding);
@@ -166,7 +169,7 @@ fn no_liquid(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
             Severity::Error,
             liquid_products.first().map(|u| u.id.as_str()),
             format!("the plant makes no liquid: {cause}"),
-            "precool the high-pressure stream further before the valve, raise the high pressure towards the inversion pressure, or improve the recuperators".to_string(),
+            "precool the high-pressure stream further before the valve or improve the recuperators; the high pressure is best at the inversion pressure at the recuperator's warm end".to_string(),
         )
         .value("liquid_flow_kg_s", solution.summary.liquid_flow),
     );

@@ -3,8 +3,9 @@
 //! behind it and a hint that says what to change. docs/checks.md lists them all.
 
 mod checks;
+pub mod pressure;
 
-pub use checks::check;
+pub use checks::{check, design_errors};
 
 use serde::{Deserialize, Serialize};
 use std::collections::BTreeMap;

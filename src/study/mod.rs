@@ -199,10 +199,7 @@ impl Metrics {
             figure_of_merit: s.figure_of_merit.unwrap_or(f64::NAN),
             shaft_power: s.shaft_power,
             min_approach,
-            design_errors: rules::check(plant, solution)
-                .iter()
-                .filter(|f| f.severity == rules::Severity::Error)
-                .count(),
+            design_errors: rules::design_errors(plant, solution),
             iterations: solution.iterations,
         }
     }
