@@ -90,7 +90,7 @@ impl Figure for SweepFigure<'_> {
                     BLUE.stroke_width(3),
                 ))
                 .map_err(&err)?
-                .label("solved cases")
+                .label("feasible cases")
                 .legend(|(x, y)| PathElement::new([(x, y), (x + 18, y)], BLUE.stroke_width(3)));
             chart
                 .draw_series(
