@@ -67,6 +67,23 @@ pub enum Error {
     #[error("{0}")]
     Input(String),
 
+    /// A file that could not be read or written (or a folder that could not be
+    /// made), with the path and the system's reason.
+    #[error("cannot {action} {path}: {reason}")]
+    File {
+        /// `read`, `write` or `create`.
+        action: &'static str,
+        /// The path.
+        path: String,
+        /// Why, in the system's words.
+        reason: String,
+    },
+
+    /// A fault of cryochain itself (a state the solver should never reach); please
+    /// report it with the flowsheet.
+    #[error("internal error (please report it with the flowsheet): {0}")]
+    Internal(String),
+
     /// A study found no feasible case: every case solved broke a design check of
     /// error severity or the study's constraint.
     #[error("{0}")]
@@ -105,6 +122,54 @@ impl std::fmt::Display for FlowsheetError {
 }
 
 impl std::error::Error for FlowsheetError {}
+
+impl Error {
+    /// A file error for `path`.
+    pub fn file(
+        action: &'static str,
+        path: &std::path::Path,
+        reason: impl std::fmt::Display,
+    ) -> Error {
+        Error::File {
+            action,
+            path: path.display().to_string(),
+            reason: reason.to_string(),
+        }
+    }
+
+    /// The same error seen from inside equipment `id`: its kind (and so its exit
+    /// code) kept, the equipment named.
+    pub fn in_equipment(self, id: &str) -> Error {
+        match self {
+            Error::NoConvergence {
+                solver,
+                iterations,
+                residual,
+                context,
+            } => Error::NoConvergence {
+                solver,
+                iterations,
+                residual,
+                context: format!("{context} in equipment '{id}'"),
+            },
+            Error::OutOfRange {
+                fluid,
+                what,
+                detail,
+            } => Error::OutOfRange {
+                fluid,
+                what: format!("in equipment '{id}', {what}"),
+                detail,
+            },
+            Error::ImpossibleState { fluid, detail } => Error::ImpossibleState {
+                fluid,
+                detail: format!("in equipment '{id}': {detail}"),
+            },
+            Error::Input(message) => Error::Input(format!("equipment '{id}': {message}")),
+            other => other,
+        }
+    }
+}
 
 /// Shorthand for results in this crate.
 pub type Result<T> = std::result::Result<T, Error>;

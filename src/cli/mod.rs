@@ -14,14 +14,20 @@ pub use format::{Format, FormatArgs};
 pub mod exit {
     /// Success.
     pub const OK: i32 = 0;
-    /// Bad input: arguments, files, units, names, states outside a range.
+    /// Bad input: a flowsheet's content, values, units, names, states outside a
+    /// range, a batch with failed rows.
     pub const INPUT: i32 = 1;
-    /// `check` found errors in the design.
+    /// The design has errors (`check`, `solve`), or no feasible point (`optimize`).
     pub const DESIGN: i32 = 2;
     /// A solver did not converge.
     pub const NOT_CONVERGED: i32 = 3;
-    /// A file could not be read or written.
+    /// A file could not be read or written, or a folder made.
     pub const IO: i32 = 4;
+    /// The command line itself is wrong: an unknown command or option, a missing
+    /// argument.
+    pub const USAGE: i32 = 5;
+    /// A fault of cryochain itself.
+    pub const INTERNAL: i32 = 6;
 }
 
 /// cryochain: plans Linde-Hampson liquefaction cycles on reference-quality
@@ -114,6 +120,8 @@ impl From<Error> for Failure {
         let code = match error {
             Error::NoConvergence { .. } => exit::NOT_CONVERGED,
             Error::Infeasible(_) => exit::DESIGN,
+            Error::File { .. } => exit::IO,
+            Error::Internal(_) => exit::INTERNAL,
             _ => exit::INPUT,
         };
         Failure::new(error.to_string(), code)

@@ -575,11 +575,11 @@ pub fn exchange(
     let (_, hot_out, _) = profile
         .last()
         .cloned()
-        .ok_or_else(|| Error::Input("empty profile".into()))?;
+        .ok_or_else(|| Error::Internal("empty exchanger profile".into()))?;
     let (_, _, cold_out) = profile
         .first()
         .cloned()
-        .ok_or_else(|| Error::Input("empty profile".into()))?;
+        .ok_or_else(|| Error::Internal("empty exchanger profile".into()))?;
     let hot_out = if degenerate {
         hot_fluid.state_ph(sides.hot_outlet_pressure(), hot.state.enthalpy)?
     } else {

@@ -3,7 +3,7 @@
 
 use super::plant::{flow_networks, static_pressures, Plant};
 use super::resolve::Resolver;
-use crate::equipment;
+use crate::equipment::{self, FeedFlow, Role};
 use crate::error::FlowsheetError;
 use crate::reading::Params;
 use std::collections::{BTreeMap, BTreeSet};
@@ -23,6 +23,24 @@ impl Resolver<'_> {
                     bases.entry(network[s]).or_default().push(ui);
                 }
             }
+        }
+        // Two make-up feeds in one network would split the make-up by an arbitrary
+        // rule: refuse.
+        let mut balance_feeds: BTreeMap<usize, Vec<usize>> = BTreeMap::new();
+        for (ui, unit) in plant.units.iter().enumerate() {
+            if unit.spec.role() == Role::Feed(FeedFlow::Balance) {
+                if let Some(&s) = unit.outlets.first() {
+                    balance_feeds.entry(network[s]).or_default().push(ui);
+                }
+            }
+        }
+        if let Some(many) = balance_feeds.values().find(|feeds| feeds.len() > 1) {
+            let names: Vec<&str> = many.iter().map(|&u| plant.units[u].id.as_str()).collect();
+            let message = format!(
+                "{} are all 'flow: balance' feeds of one flow network; the make-up would be split between them by no stated rule: keep one, and give the others a fixed flow",
+                names.join(" and ")
+            );
+            return Err(self.item_error(many[1], message));
         }
         let mut reported = BTreeSet::new();
         for (s, &root) in network.iter().enumerate() {

@@ -49,25 +49,106 @@ impl Override {
     }
 }
 
-/// Reads and resolves the flowsheet file at `path`.
-pub fn load(path: &std::path::Path, overrides: &[Override]) -> Result<Plant, FlowsheetError> {
+/// Reads and resolves the flowsheet file at `path`: a file that cannot be read is
+/// a file error, anything wrong inside it a flowsheet error.
+pub fn load(path: &std::path::Path, overrides: &[Override]) -> crate::error::Result<Plant> {
     let name = path.display().to_string();
-    let text = std::fs::read_to_string(path).map_err(|e| FlowsheetError {
-        file: name.clone(),
-        position: None,
-        equipment: None,
-        message: format!("cannot read the file: {e}"),
+    let bytes = std::fs::read(path).map_err(|e| crate::error::Error::file("read", path, e))?;
+    let text = std::str::from_utf8(&bytes).map_err(|e| {
+        let good = &bytes[..e.valid_up_to()];
+        let line = good.iter().filter(|b| **b == b'\n').count() + 1;
+        let column = good.iter().rev().take_while(|b| **b != b'\n').count() + 1;
+        FlowsheetError {
+            file: name.clone(),
+            position: Some((line, column)),
+            equipment: None,
+            message: format!(
+                "the file stops being UTF-8 text here (byte {}): a flowsheet is plain text",
+                e.valid_up_to()
+            ),
+        }
     })?;
-    load_str(&text, &name, overrides)
+    Ok(load_str(text, &name, overrides)?)
+}
+
+/// The largest flowsheet file read, bytes (a hand-written flowsheet is a few KB).
+pub const MAX_FILE_BYTES: usize = 1 << 20;
+
+/// The deepest nesting of `[` and `{` accepted (a flowsheet needs two or three).
+pub const MAX_NESTING: usize = 32;
+
+/// Refuses oversized text and deep bracket nesting quickly, before the YAML parser
+/// spends long on them.
+fn check_shape(text: &str, file: &str) -> Result<(), FlowsheetError> {
+    let refuse = |position: Option<(usize, usize)>, message: String| FlowsheetError {
+        file: file.to_string(),
+        position,
+        equipment: None,
+        message,
+    };
+    if text.len() > MAX_FILE_BYTES {
+        return Err(refuse(
+            None,
+            format!(
+                "the file is {} bytes; a flowsheet may be at most {MAX_FILE_BYTES} bytes",
+                text.len()
+            ),
+        ));
+    }
+    let (mut depth, mut line, mut column) = (0usize, 1usize, 0usize);
+    let mut quote: Option<char> = None;
+    let mut comment = false;
+    for c in text.chars() {
+        column += 1;
+        match c {
+            '\n' => {
+                line += 1;
+                column = 0;
+                comment = false;
+                quote = None;
+            }
+            _ if comment => {}
+            '"' | '\'' if quote == Some(c) => quote = None,
+            '"' | '\'' if quote.is_none() => quote = Some(c),
+            _ if quote.is_some() => {}
+            '#' => comment = true,
+            '[' | '{' => {
+                depth += 1;
+                if depth > MAX_NESTING {
+                    return Err(refuse(
+                        Some((line, column)),
+                        format!("brackets nest deeper than {MAX_NESTING} levels here; a flowsheet needs two or three"),
+                    ));
+                }
+            }
+            ']' | '}' => depth = depth.saturating_sub(1),
+            _ => {}
+        }
+    }
+    Ok(())
+}
+
+/// The YAML reader's message, with its words for the whole file put plainly.
+fn plain_yaml_message(message: &str) -> String {
+    if let Some(rest) = message.strip_prefix("invalid type: ") {
+        if let Some((found, _)) = rest.split_once(", expected struct FlowsheetFile") {
+            return format!(
+                "the file holds a {}; a flowsheet is a mapping of title, ambient, fluids, settings (optional) and equipment (docs/flowsheet-format.md)",
+                if found == "sequence" { "list" } else { found }
+            );
+        }
+    }
+    message.to_string()
 }
 
 /// Resolves flowsheet `text`; `file` names it in errors.
 pub fn load_str(text: &str, file: &str, overrides: &[Override]) -> Result<Plant, FlowsheetError> {
+    check_shape(text, file)?;
     let mut raw: FlowsheetFile = serde_yaml::from_str(text).map_err(|e| FlowsheetError {
         file: file.to_string(),
         position: e.location().map(|l| (l.line(), l.column())),
         equipment: None,
-        message: e.to_string(),
+        message: plain_yaml_message(&e.to_string()),
     })?;
     let mut overridden = BTreeSet::new();
     for o in overrides {
@@ -144,6 +225,19 @@ impl<'a> Resolver<'a> {
     }
 
     pub(super) fn top_error(&self, key: &str, message: impl Into<String>) -> FlowsheetError {
+        // A value replaced by `--set flowsheet.KEY=…` is blamed on the override.
+        if self
+            .place
+            .overridden
+            .contains(&("flowsheet".to_string(), key.to_string()))
+        {
+            return FlowsheetError {
+                file: format!("--set flowsheet.{key}"),
+                position: None,
+                equipment: None,
+                message: message.into(),
+            };
+        }
         FlowsheetError {
             file: self.place.file.to_string(),
             position: self.place.locator.top(key),
@@ -164,6 +258,7 @@ impl<'a> Resolver<'a> {
     fn resolve(&self) -> Result<Plant, FlowsheetError> {
         let ambient_text = match &self.raw.ambient {
             serde_yaml::Value::String(s) => s.clone(),
+            serde_yaml::Value::Number(n) => n.to_string(),
             other => format!("{other:?}"),
         };
         let ambient = quantity::parse(&ambient_text, Dimension::Temperature)
@@ -210,6 +305,20 @@ impl<'a> Resolver<'a> {
                         self.place.locator.item(first).map_or(0, |p| p.0)
                     ),
                 ));
+            }
+        }
+        // A key given twice in one item: YAML would keep the last silently.
+        for index in 0..self.raw.equipment.len() {
+            if let Some((key, first, second)) = self.place.locator.duplicate_key(index) {
+                return Err(FlowsheetError {
+                    file: self.place.file.to_string(),
+                    position: Some(second),
+                    equipment: self.raw.equipment.get(index).map(|e| e.id.clone()),
+                    message: format!(
+                        "'{key}' is given twice, on lines {} and {}; keep one",
+                        first.0, second.0
+                    ),
+                });
             }
         }
         // Each item read by its kind; the inlets each names.

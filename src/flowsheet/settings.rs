@@ -18,9 +18,22 @@ impl Resolver<'_> {
                 serde_yaml::Value::Number(n) => n.to_string(),
                 other => format!("{other:?}"),
             };
+            // A setting replaced by `--set settings.KEY=…` is blamed on the override.
+            let overridden = self
+                .place
+                .overridden
+                .contains(&("settings".to_string(), key.clone()));
             let bad = |m: String| FlowsheetError {
-                file: self.place.file.to_string(),
-                position: self.place.locator.top("settings"),
+                file: if overridden {
+                    format!("--set settings.{key}")
+                } else {
+                    self.place.file.to_string()
+                },
+                position: if overridden {
+                    None
+                } else {
+                    self.place.locator.top("settings")
+                },
                 equipment: None,
                 message: format!("settings.{key}: {m}"),
             };

@@ -77,6 +77,21 @@ impl Locator {
             .or(Some((*line, 1)))
     }
 
+    /// A key written twice at the same level of equipment item `index` (YAML would
+    /// keep the last silently): the key and the (line, column) of both.
+    pub fn duplicate_key(&self, index: usize) -> Option<(String, (usize, usize), (usize, usize))> {
+        let (_, keys) = self.items.get(index)?;
+        // The item's own keys: those at the column of its first key line's keys.
+        let level = keys.iter().map(|(_, _, c)| *c).min()?;
+        let own: Vec<&KeyPlace> = keys.iter().filter(|(_, _, c)| *c == level).collect();
+        own.iter().enumerate().find_map(|(i, (key, line, column))| {
+            own[..i]
+                .iter()
+                .find(|(k, _, _)| k == key)
+                .map(|(_, l, c)| (key.clone(), (*l, *c), (*line, *column)))
+        })
+    }
+
     /// Line of the equipment item `index`.
     pub fn item(&self, index: usize) -> Option<(usize, usize)> {
         self.items.get(index).map(|(line, _)| (*line, 1))

@@ -7,22 +7,18 @@ use crate::solve::Solution;
 use std::path::{Path, PathBuf};
 
 fn write(path: &Path, rows: Vec<Vec<String>>) -> Result<()> {
-    let mut writer = csv::Writer::from_path(path)
-        .map_err(|e| Error::Input(format!("cannot write {}: {e}", path.display())))?;
+    let mut writer = csv::Writer::from_path(path).map_err(|e| Error::file("write", path, e))?;
     for row in rows {
         writer
             .write_record(&row)
-            .map_err(|e| Error::Input(format!("cannot write {}: {e}", path.display())))?;
+            .map_err(|e| Error::file("write", path, e))?;
     }
-    writer
-        .flush()
-        .map_err(|e| Error::Input(format!("cannot write {}: {e}", path.display())))
+    writer.flush().map_err(|e| Error::file("write", path, e))
 }
 
 /// Writes `streams.csv` and `equipment.csv` into `dir`; returns their paths.
 pub fn write_all(solution: &Solution, dir: &Path) -> Result<Vec<PathBuf>> {
-    std::fs::create_dir_all(dir)
-        .map_err(|e| Error::Input(format!("cannot create {}: {e}", dir.display())))?;
+    crate::report::output_folder(dir)?;
     let header = |names: &[&str]| names.iter().map(|s| s.to_string()).collect::<Vec<_>>();
     let mut streams = vec![header(&[
         "stream",

@@ -103,7 +103,10 @@ impl Problem<'_> {
                 .iter()
                 .map(|&s| {
                     flows[s].clone().ok_or_else(|| {
-                        Error::Input(format!("stream {} has no value yet", plant.streams[s].name))
+                        Error::Internal(format!(
+                            "stream {} has no value yet",
+                            plant.streams[s].name
+                        ))
                     })
                 })
                 .collect::<Result<_>>()?;
@@ -120,7 +123,7 @@ impl Problem<'_> {
             let (mut outlets, performance) = unit
                 .spec
                 .run(&inlets, &context)
-                .map_err(|e| Error::Input(format!("equipment '{}': {e}", unit.id)))?;
+                .map_err(|e| e.in_equipment(&unit.id))?;
             self.duty_hints.borrow_mut()[u] = performance.duty;
             if let (Some(basis), Some(first)) = (unit.flow_basis, outlets.first_mut()) {
                 if !matches!(role, Role::Feed(_)) {
@@ -146,7 +149,7 @@ impl Problem<'_> {
                 Variable::Flow(s) => computed[s].as_ref().map(|f| f.flow),
                 Variable::MakeUp(u) => Some(self.make_up_target(u, &computed)),
             }
-            .ok_or_else(|| Error::Input("a tear stream was not computed".into()))?;
+            .ok_or_else(|| Error::Internal("a tear stream was not computed".into()))?;
             g[k] = v / self.scales[k];
         }
         Ok((g, computed, performances))
@@ -311,13 +314,13 @@ pub fn solve(plant: &Plant, options: &Options) -> Result<Solution> {
     let (flows, performances) = problem
         .last
         .take()
-        .ok_or_else(|| Error::Input("no pass was made".into()))?;
+        .ok_or_else(|| Error::Internal("no pass was made".into()))?;
     let flows: Vec<Flow> = flows
         .into_iter()
         .enumerate()
         .map(|(s, f)| {
             f.ok_or_else(|| {
-                Error::Input(format!("stream {} was not computed", plant.streams[s].name))
+                Error::Internal(format!("stream {} was not computed", plant.streams[s].name))
             })
         })
         .collect::<Result<_>>()?;

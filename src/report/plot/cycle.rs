@@ -24,8 +24,7 @@ const STATE: RGBColor = RGBColor(0, 120, 90);
 /// files written.
 pub fn write_all(plant: &Plant, solution: &Solution, dir: &Path) -> Result<Vec<PathBuf>> {
     ensure_font()?;
-    std::fs::create_dir_all(dir)
-        .map_err(|e| crate::error::Error::Input(format!("cannot create {}: {e}", dir.display())))?;
+    crate::report::output_folder(dir)?;
     let mut written = Vec::new();
     let mut fluids: Vec<&'static crate::fluids::Fluid> = Vec::new();
     for f in &solution.streams {

@@ -85,9 +85,18 @@ pub(crate) fn write_figure(figure: &impl Figure, size: (u32, u32), path: &Path) 
     }
 }
 
+/// The system's reason inside a drawing error's debug text (plotters wraps an
+/// `Os { code, kind, message: "…" }`): its message, or the text as it is.
+fn plain_reason(debug: &str) -> String {
+    match debug.split_once("message: \"") {
+        Some((_, rest)) => rest.split('"').next().unwrap_or(rest).to_string(),
+        None => debug.to_string(),
+    }
+}
+
 /// Turns a drawing error into ours.
 pub(crate) fn drawing<E: std::fmt::Debug>(path: &Path) -> impl Fn(E) -> Error + '_ {
-    move |e| Error::Input(format!("cannot draw {}: {e:?}", path.display()))
+    move |e| Error::file("write", path, plain_reason(&format!("{e:?}")))
 }
 
 /// The chart type every plot here uses: f64 against f64.
