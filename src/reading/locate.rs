@@ -4,6 +4,9 @@
 /// A key written in the file: its name, line and column.
 type KeyPlace = (String, usize, usize);
 
+/// A (line, column) in the file, both 1-based.
+pub type Position = (usize, usize);
+
 /// Positions of the equipment items and their keys in the file's text.
 #[derive(Debug, Clone, Default)]
 pub struct Locator {
@@ -79,7 +82,7 @@ impl Locator {
 
     /// A key written twice at the same level of equipment item `index` (YAML would
     /// keep the last silently): the key and the (line, column) of both.
-    pub fn duplicate_key(&self, index: usize) -> Option<(String, (usize, usize), (usize, usize))> {
+    pub fn duplicate_key(&self, index: usize) -> Option<(String, Position, Position)> {
         let (_, keys) = self.items.get(index)?;
         // The item's own keys: those at the column of its first key line's keys.
         let level = keys.iter().map(|(_, _, c)| *c).min()?;
