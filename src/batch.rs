@@ -63,7 +63,8 @@ pub fn run(input: &str, source: &str, default_fluid: Option<&str>) -> Result<Bat
     let mut reader = csv::ReaderBuilder::new()
         .trim(csv::Trim::All)
         .comment(Some(b'#'))
-        .flexible(false)
+        // Ragged rows are read, then refused one by one (keeping their place).
+        .flexible(true)
         .from_reader(input.as_bytes());
     let headers = reader
         .headers()
@@ -105,11 +106,28 @@ pub fn run(input: &str, source: &str, default_fluid: Option<&str>) -> Result<Bat
         .map_err(|e| Error::Input(e.to_string()))?;
     let mut rows = 0;
     let mut failures = Vec::new();
+    let width = headers.len();
+    let text_lines: Vec<&str> = input.lines().collect();
     for (number, record) in reader.records().enumerate() {
-        let line = number + 2;
-        let record = record.map_err(|e| Error::Input(format!("{source}: line {line}: {e}")))?;
+        let record =
+            record.map_err(|e| Error::Input(format!("{source}: row {}: {e}", number + 1)))?;
+        // The line in the file, comment lines counted: the reader's position can
+        // stand on comment lines just before the record, so step past them.
+        let mut line = record.position().map_or(number + 2, |p| p.line() as usize);
+        while text_lines
+            .get(line - 1)
+            .is_some_and(|l| l.trim().is_empty() || l.trim_start().starts_with('#'))
+        {
+            line += 1;
+        }
         rows += 1;
         let computed = (|| -> Result<Vec<String>> {
+            if record.len() != width {
+                return Err(Error::Input(format!(
+                    "this row has {} cells where the header has {width}",
+                    record.len()
+                )));
+            }
             let name = match fluid_column {
                 Some(i) => record.get(i).unwrap_or(""),
                 None => default_fluid.unwrap_or(""),
@@ -141,7 +159,11 @@ pub fn run(input: &str, source: &str, default_fluid: Option<&str>) -> Result<Bat
                 String::new(),
             ])
         })();
-        let mut row: Vec<String> = record.iter().map(str::to_string).collect();
+        // The copied input cells, as many as the header names (a ragged row's
+        // padded or cut, its error saying so).
+        let mut row: Vec<String> = (0..width)
+            .map(|i| record.get(i).unwrap_or("").to_string())
+            .collect();
         match computed {
             Ok(cells) => row.extend(cells),
             Err(e) => {
@@ -196,6 +218,22 @@ mod tests {
             "{:?}",
             out.failures
         );
+    }
+
+    /// A ragged row keeps its place with its error; line numbers count comment
+    /// lines (both failed before: the first aborted the batch, the second was off).
+    #[test]
+    fn ragged_rows_and_comments() {
+        let input =
+            "# made by hand\nT [K],p [bar]\n80,1\n# a note\n90\n100,1,extra\n5000,1\n95,1\n";
+        let out = run(input, "t.csv", Some("nitrogen")).unwrap();
+        assert_eq!(out.rows, 5);
+        let lines: Vec<usize> = out.failures.iter().map(|f| f.0).collect();
+        assert_eq!(lines, vec![5, 6, 7], "{:?}", out.failures);
+        assert!(out.failures[0].1.contains("1 cells where the header has 2"));
+        let csv: Vec<&str> = out.csv.lines().collect();
+        assert_eq!(csv.len(), 6);
+        assert!(csv[5].starts_with("95,1,95.0"), "{}", csv[5]);
     }
 
     #[test]

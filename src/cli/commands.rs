@@ -202,6 +202,22 @@ pub struct SweepArgs {
     pub format: FormatArgs,
 }
 
+/// The same parameter given to two `--vary` options is an error (the last would
+/// silently replace the first).
+fn refuse_repeats(names: impl Iterator<Item = String>) -> Result<(), Failure> {
+    let mut seen: Vec<String> = Vec::new();
+    for name in names {
+        if seen.contains(&name) {
+            return Err(Failure::new(
+                format!("--vary {name} is given twice; give each parameter once"),
+                exit::INPUT,
+            ));
+        }
+        seen.push(name);
+    }
+    Ok(())
+}
+
 fn parse_shard(text: &str) -> Result<(usize, usize), Failure> {
     text.split_once('/')
         .and_then(|(k, n)| Some((k.trim().parse().ok()?, n.trim().parse().ok()?)))
@@ -243,6 +259,7 @@ pub fn sweep(args: &SweepArgs) -> Result<Output, Failure> {
         .iter()
         .map(|v| study::Variable::parse_range(v))
         .collect::<Result<Vec<_>, _>>()?;
+    refuse_repeats(variables.iter().map(|v| v.name()))?;
     let shard = args.shard.as_deref().map(parse_shard).transpose()?;
     let total: usize = variables.iter().map(|v| v.values.len()).product();
     let bar = progress_bar(total);
@@ -277,6 +294,7 @@ pub fn sweep(args: &SweepArgs) -> Result<Output, Failure> {
 #[derive(Debug, Args)]
 pub struct MergeShardsArgs {
     /// The shard files.
+    #[arg(required = true)]
     pub files: Vec<PathBuf>,
     /// Write here instead of stdout.
     #[arg(long, short)]
@@ -341,6 +359,7 @@ pub fn optimize(args: &OptimizeArgs) -> Result<Output, Failure> {
         .iter()
         .map(|v| Bounded::parse(v))
         .collect::<Result<Vec<_>, _>>()?;
+    refuse_repeats(variables.iter().map(|v| format!("{}.{}", v.target, v.key)))?;
     let objective = Objective::parse(args.maximize.as_deref(), args.minimize.as_deref())?;
     let floor = args
         .min_approach
@@ -366,6 +385,7 @@ pub fn optimize(args: &OptimizeArgs) -> Result<Output, Failure> {
 #[derive(Debug, Args)]
 pub struct CompareArgs {
     /// The flowsheet files.
+    #[arg(required = true)]
     pub files: Vec<PathBuf>,
     /// Write a bar chart here (.svg or .png).
     #[arg(long)]
@@ -386,7 +406,7 @@ pub fn compare(args: &CompareArgs) -> Result<Output, Failure> {
         let figure = |f: fn(&cryochain::solve::Summary) -> Option<f64>| -> Vec<f64> {
             cases
                 .iter()
-                .map(|c| f(&c.summary).unwrap_or(f64::NAN))
+                .map(|c| c.outcome.as_ref().ok().and_then(f).unwrap_or(f64::NAN))
                 .collect()
         };
         let yields = figure(|s| s.liquid_yield);
@@ -399,7 +419,21 @@ pub fn compare(args: &CompareArgs) -> Result<Output, Failure> {
         Format::Csv => report::study::comparison_csv(&cases)?,
         Format::Text => report::study::comparison_text(&cases),
     };
-    Ok(Output { stdout, notes })
+    let output = Output { stdout, notes };
+    // The table is printed whole; a flowsheet that failed then fails the command
+    // with its own error's code.
+    match cases
+        .into_iter()
+        .find_map(|c| c.outcome.err().map(|e| (c.name, e)))
+    {
+        None => Ok(output),
+        Some((name, error)) => {
+            let mut failure = Failure::from(error);
+            failure.message = format!("{name}: {}", failure.message);
+            failure.partial = output;
+            Err(failure)
+        }
+    }
 }
 
 /// The options of `fluids`.

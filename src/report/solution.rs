@@ -299,6 +299,19 @@ impl SolutionRecord {
     }
 }
 
+/// A stream's phase in a few letters for the stream table: liquid, vapour, gas,
+/// `supercrit.`, `sat. liq.` or `sat. vap.`, or two-phase with its vapour quality
+/// (`x 0.9298`).
+pub fn phase_label(state: &crate::fluids::State) -> String {
+    match state.quality {
+        Some(x) if state.is_two_phase() && x <= 1e-12 => "sat. liq.".to_string(),
+        Some(x) if state.is_two_phase() && x >= 1.0 - 1e-12 => "sat. vap.".to_string(),
+        Some(x) if state.is_two_phase() => format!("x {x:.4}"),
+        _ if state.phase == crate::fluids::Phase::Supercritical => "supercrit.".to_string(),
+        _ => state.phase.name().to_string(),
+    }
+}
+
 /// The solution as pretty JSON.
 pub fn json(solution: &Solution, findings: &[Finding]) -> String {
     serde_json::to_string_pretty(&SolutionRecord::of(solution, findings)).unwrap_or_default() + "\n"
@@ -470,9 +483,9 @@ pub fn text(solution: &Solution) -> String {
         ("T [K]", Align::Right),
         ("p [bar]", Align::Right),
         ("h [kJ/kg]", Align::Right),
-        ("s [kJ/kg/K]", Align::Right),
+        ("s [kJ/kgK]", Align::Right),
         ("flow [g/s]", Align::Right),
-        ("vapour", Align::Right),
+        ("phase", Align::Left),
     ]);
     for (name, f) in solution.stream_names.iter().zip(&solution.streams) {
         table.row(vec![
@@ -483,7 +496,7 @@ pub fn text(solution: &Solution) -> String {
             format!("{:.3}", f.state.enthalpy / 1e3),
             format!("{:.4}", f.state.entropy / 1e3),
             format!("{:.4}", f.flow * 1e3),
-            format!("{:.4}", f.state.vapour_fraction()),
+            phase_label(&f.state),
         ]);
     }
     out.push_str(&table.render());

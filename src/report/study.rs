@@ -163,30 +163,33 @@ pub fn optimum_json(
     pretty(&json)
 }
 
-/// The headline figures of each flowsheet of a comparison, as (header, cell) columns.
-fn comparison_columns(case: &Compared) -> Vec<(&'static str, String)> {
-    let s = &case.summary;
+/// The text cells of one flowsheet of a comparison: its figures, or its error.
+fn comparison_cells(case: &Compared) -> Vec<String> {
+    let s = match &case.outcome {
+        Ok(s) => s,
+        Err(e) => {
+            let mut cells = vec![case.name.clone()];
+            cells.push(format!(
+                "failed: {}",
+                e.to_string().chars().take(70).collect::<String>()
+            ));
+            cells.extend(std::iter::repeat_n(String::new(), 5));
+            return cells;
+        }
+    };
     vec![
-        ("flowsheet", case.name.clone()),
-        (
-            "yield",
-            s.liquid_yield.map_or("—".into(), |y| format!("{y:.4}")),
-        ),
-        ("liquid [kg/h]", format!("{:.3}", s.liquid_flow * 3600.0)),
-        ("power [kW]", format!("{:.2}", s.shaft_power / 1e3)),
-        ("precool [kW]", format!("{:.2}", s.precooling_work / 1e3)),
-        (
-            "kWh/kg",
-            s.specific_energy.map_or("—".into(), |e| format!("{e:.3}")),
-        ),
-        (
-            "FOM",
-            s.figure_of_merit.map_or("—".into(), |f| format!("{f:.4}")),
-        ),
+        case.name.clone(),
+        s.liquid_yield.map_or("—".into(), |y| format!("{y:.4}")),
+        format!("{:.3}", s.liquid_flow * 3600.0),
+        format!("{:.2}", s.shaft_power / 1e3),
+        format!("{:.2}", s.precooling_work / 1e3),
+        s.specific_energy.map_or("—".into(), |e| format!("{e:.3}")),
+        s.figure_of_merit.map_or("—".into(), |f| format!("{f:.4}")),
     ]
 }
 
-/// A comparison as a text table.
+/// A comparison as a text table; a flowsheet that failed keeps its row with its
+/// error.
 pub fn comparison_text(cases: &[Compared]) -> String {
     let mut table = TextTable::new(&[
         ("flowsheet", Align::Left),
@@ -198,18 +201,13 @@ pub fn comparison_text(cases: &[Compared]) -> String {
         ("FOM", Align::Right),
     ]);
     for case in cases {
-        table.row(
-            comparison_columns(case)
-                .into_iter()
-                .map(|(_, c)| c)
-                .collect(),
-        );
+        table.row(comparison_cells(case));
     }
     table.render()
 }
 
 /// A comparison as CSV, SI units in the headers; empty cells where a figure does
-/// not exist.
+/// not exist, and the reason in `error` where a flowsheet failed.
 pub fn comparison_csv(cases: &[Compared]) -> Result<String> {
     let mut writer = csv::Writer::from_writer(Vec::new());
     let bad = |e: csv::Error| Error::Input(format!("cannot write the CSV: {e}"));
@@ -222,13 +220,13 @@ pub fn comparison_csv(cases: &[Compared]) -> Result<String> {
             "precooling_work [W]",
             "specific_energy [kWh/kg]",
             "figure_of_merit [-]",
+            "error",
         ])
         .map_err(bad)?;
     let cell = |v: Option<f64>| v.map_or(String::new(), |x| x.to_string());
     for case in cases {
-        let s = &case.summary;
-        writer
-            .write_record([
+        let row = match &case.outcome {
+            Ok(s) => vec![
                 case.name.clone(),
                 cell(s.liquid_yield),
                 s.liquid_flow.to_string(),
@@ -236,8 +234,16 @@ pub fn comparison_csv(cases: &[Compared]) -> Result<String> {
                 s.precooling_work.to_string(),
                 cell(s.specific_energy),
                 cell(s.figure_of_merit),
-            ])
-            .map_err(bad)?;
+                String::new(),
+            ],
+            Err(e) => {
+                let mut row = vec![case.name.clone()];
+                row.extend(std::iter::repeat_n(String::new(), 6));
+                row.push(e.to_string());
+                row
+            }
+        };
+        writer.write_record(row).map_err(bad)?;
     }
     let bytes = writer
         .into_inner()
@@ -245,13 +251,12 @@ pub fn comparison_csv(cases: &[Compared]) -> Result<String> {
     String::from_utf8(bytes).map_err(|e| Error::Input(format!("cannot write the CSV: {e}")))
 }
 
-/// A comparison as a JSON array, SI units.
+/// A comparison as a JSON array, SI units; a failed flowsheet carries `error`.
 pub fn comparison_json(cases: &[Compared]) -> String {
     let rows: Vec<serde_json::Value> = cases
         .iter()
-        .map(|case| {
-            let s = &case.summary;
-            serde_json::json!({
+        .map(|case| match &case.outcome {
+            Ok(s) => serde_json::json!({
                 "flowsheet": case.name,
                 "liquid_yield": s.liquid_yield,
                 "liquid_flow_kg_s": s.liquid_flow,
@@ -259,7 +264,8 @@ pub fn comparison_json(cases: &[Compared]) -> String {
                 "precooling_work_W": s.precooling_work,
                 "specific_energy_kWh_per_kg": s.specific_energy,
                 "figure_of_merit": s.figure_of_merit,
-            })
+            }),
+            Err(e) => serde_json::json!({"flowsheet": case.name, "error": e.to_string()}),
         })
         .collect();
     pretty(&serde_json::Value::Array(rows))

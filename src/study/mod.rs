@@ -415,9 +415,33 @@ pub fn merge_csv(parts: &[String]) -> Result<String> {
             rows.push((case, record));
         }
     }
+    if parts.is_empty() {
+        return Err(Error::Input("merge-shards needs the shard files".into()));
+    }
     rows.sort_by_key(|r| r.0);
     if rows.windows(2).any(|w| w[0].0 == w[1].0) {
         return Err(Error::Input("a case appears in two shards".into()));
+    }
+    // Cases are numbered 0.. over the whole grid: a gap is a shard not given.
+    let missing: Vec<usize> = rows
+        .iter()
+        .map(|r| r.0)
+        .enumerate()
+        .filter(|(i, case)| i != case)
+        .map(|(i, _)| i)
+        .take(1)
+        .collect();
+    if let Some(&first) = missing.first() {
+        let next = rows
+            .iter()
+            .map(|r| r.0)
+            .find(|&c| c > first)
+            .unwrap_or(first);
+        return Err(Error::Input(format!(
+            "cases {first} to {} are in none of the {} files given: a shard is missing (each shard holds every N-th row of the grid)",
+            next.saturating_sub(1),
+            parts.len()
+        )));
     }
     let mut w = csv::Writer::from_writer(Vec::new());
     if let Some(h) = header {
