@@ -227,6 +227,24 @@ fn comparisons_and_shards_keep_their_rows() {
     assert!(err.contains("a shard is missing"), "{err}");
 }
 
+/// An oversized file is refused before parsing; a batch table keeps a ragged row
+/// in its place with its error (one ragged row aborted the whole batch), with line
+/// numbers that count comment lines.
+#[test]
+fn oversized_files_and_ragged_tables() {
+    let big = format!("title: t\n{}", "# padding\n".repeat(200_000));
+    let path = temp_file("big.yaml", big.as_bytes());
+    let (code, _, err) = run(&["solve", path.to_str().unwrap()]);
+    assert_eq!(code, 1);
+    assert!(err.contains("at most 1048576 bytes"), "{err}");
+    let table = temp_file("states.csv", b"# by hand\nT [K],p [bar]\n80,1\n90\n95,1\n");
+    let (code, out, err) = run(&["table", table.to_str().unwrap(), "--fluid", "nitrogen"]);
+    assert_eq!(code, 1, "{err}");
+    assert_eq!(out.lines().count(), 4, "{out}");
+    assert!(out.lines().nth(3).unwrap().starts_with("95,1,95.0"), "{out}");
+    assert!(err.contains("line 4: this row has 1 cells where the header has 2"), "{err}");
+}
+
 /// Supercritical streams are labelled so, not "vapour 1.0000".
 #[test]
 fn phases_are_labelled_truthfully() {
