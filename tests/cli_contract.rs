@@ -241,8 +241,14 @@ fn oversized_files_and_ragged_tables() {
     let (code, out, err) = run(&["table", table.to_str().unwrap(), "--fluid", "nitrogen"]);
     assert_eq!(code, 1, "{err}");
     assert_eq!(out.lines().count(), 4, "{out}");
-    assert!(out.lines().nth(3).unwrap().starts_with("95,1,95.0"), "{out}");
-    assert!(err.contains("line 4: this row has 1 cells where the header has 2"), "{err}");
+    assert!(
+        out.lines().nth(3).unwrap().starts_with("95,1,95.0"),
+        "{out}"
+    );
+    assert!(
+        err.contains("line 4: this row has 1 cells where the header has 2"),
+        "{err}"
+    );
 }
 
 /// Supercritical streams are labelled so, not "vapour 1.0000".

@@ -59,7 +59,9 @@ fn flowsheet(fluid: usize, t: f64, p: f64, chain: &[(u8, f64, f64)]) -> String {
         text.push_str(&unit(kind, &id, &inlet, a, b));
         inlet = id;
     }
-    text.push_str(&format!("  - {{id: out, kind: product, role: vent, inlet: {inlet}}}\n"));
+    text.push_str(&format!(
+        "  - {{id: out, kind: product, role: vent, inlet: {inlet}}}\n"
+    ));
     text
 }
 
