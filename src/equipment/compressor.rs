@@ -123,7 +123,7 @@ pub fn compress(
     model: &CompressorModel,
     context: &Context,
 ) -> Result<(Vec<Flow>, Performance)> {
-    let fluid = inlet.state.fluid();
+    let fluid = inlet.state.material();
     let m = inlet.flow;
     let s_in = &inlet.state;
     match *model {

@@ -55,7 +55,7 @@ impl Equipment for Cooler {
     /// goes to ambient.
     fn run(&self, inlets: &[Flow], context: &Context) -> Result<(Vec<Flow>, Performance)> {
         let inlet = &inlets[0];
-        let fluid = inlet.state.fluid();
+        let fluid = inlet.state.material();
         let out = fluid.state_tp(
             self.outlet_temperature,
             inlet.state.pressure - self.pressure_drop,

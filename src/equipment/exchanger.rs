@@ -8,6 +8,7 @@
 use super::kind::{less_drop, Coupling, EquipmentKind, Ports, Reader};
 use super::{Context, Details, Equipment, Flow, Performance};
 use crate::error::{Error, FlowsheetError, Result};
+use crate::fluids::conversion::StreamPath;
 use crate::fluids::State;
 use crate::numeric::bracketed_root;
 use crate::quantity::Dimension;
@@ -43,6 +44,29 @@ pub struct Exchanger {
     pub heat_leak: f64,
     /// Number of segments.
     pub segments: usize,
+    /// The side that carries an ortho–para catalyst, if any.
+    pub catalyst: Option<CatalystSide>,
+}
+
+/// Which side of an exchanger carries an ortho–para catalyst.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum CatalystSide {
+    /// The hot (cooled) side.
+    Hot,
+    /// The cold (warmed) side.
+    Cold,
+    /// Both sides.
+    Both,
+}
+
+impl CatalystSide {
+    fn hot(side: Option<CatalystSide>) -> bool {
+        matches!(side, Some(CatalystSide::Hot | CatalystSide::Both))
+    }
+
+    fn cold(side: Option<CatalystSide>) -> bool {
+        matches!(side, Some(CatalystSide::Cold | CatalystSide::Both))
+    }
 }
 
 impl EquipmentKind for Exchanger {
@@ -59,6 +83,7 @@ impl EquipmentKind for Exchanger {
         "cold_pressure_drop",
         "heat_leak",
         "segments",
+        "catalyst",
     ];
     const ALTERNATIVE_KEYS: &'static [&'static str] = &[
         "minimum_approach",
@@ -107,6 +132,16 @@ impl EquipmentKind for Exchanger {
             cold_pressure_drop: r.pressure_drop("cold_pressure_drop")?,
             heat_leak: r.heat_leak()?,
             segments: r.whole_opt("segments", 10, 5000)?.unwrap_or(r.default_segments),
+            catalyst: match r.choice(
+                "catalyst",
+                "a catalyst side",
+                &["none", "hot", "cold", "both"],
+            )? {
+                1 => Some(CatalystSide::Hot),
+                2 => Some(CatalystSide::Cold),
+                3 => Some(CatalystSide::Both),
+                _ => None,
+            },
         })
     }
 }
@@ -213,6 +248,10 @@ struct Sides<'a> {
     hot: &'a Flow,
     cold: &'a Flow,
     design: &'a Exchanger,
+    /// The states the hot side passes through (over a catalyst or frozen).
+    hot_path: StreamPath,
+    /// The states the cold side passes through.
+    cold_path: StreamPath,
 }
 
 impl Sides<'_> {
@@ -230,8 +269,6 @@ impl Sides<'_> {
         let n = self.design.segments.max(1);
         let (hot, cold) = (&self.hot.state, &self.cold.state);
         let (mh, mc) = (self.hot.flow, self.cold.flow);
-        let hot_fluid = hot.fluid();
-        let cold_fluid = cold.fluid();
         let leak = self.design.heat_leak;
         let mut hot_states = Vec::with_capacity(n + 1);
         hot_states.push(hot.clone());
@@ -240,7 +277,7 @@ impl Sides<'_> {
             let p = hot.pressure - self.design.hot_pressure_drop * f;
             let h = hot.enthalpy - q * f / mh;
             let previous = &hot_states[k - 1];
-            hot_states.push(hot_fluid.state_ph_near(p, h, previous)?);
+            hot_states.push(self.hot_path.state(p, h, previous)?);
         }
         let mut cold_states: Vec<State> = Vec::with_capacity(n + 1);
         cold_states.push(cold.clone());
@@ -251,7 +288,7 @@ impl Sides<'_> {
             let p = cold.pressure - self.design.cold_pressure_drop * along;
             let h = cold.enthalpy + (q + leak) * along / mc;
             let previous = cold_states.last().unwrap_or(cold);
-            let state = cold_fluid.state_ph_near(p, h, previous)?;
+            let state = self.cold_path.state(p, h, previous)?;
             cold_states.push(state);
         }
         cold_states.reverse();
@@ -270,13 +307,13 @@ impl Sides<'_> {
     /// 1 at the cold end) for duty `q`, flashing both sides from the given neighbours.
     fn difference_at(&self, q: f64, f: f64, near: &(f64, State, State)) -> Result<f64> {
         let (hot, cold) = (&self.hot.state, &self.cold.state);
-        let hot_state = hot.fluid().state_ph_near(
+        let hot_state = self.hot_path.state(
             hot.pressure - self.design.hot_pressure_drop * f,
             hot.enthalpy - q * f / self.hot.flow,
             &near.1,
         )?;
         let along = 1.0 - f;
-        let cold_state = cold.fluid().state_ph_near(
+        let cold_state = self.cold_path.state(
             cold.pressure - self.design.cold_pressure_drop * along,
             cold.enthalpy + (q + self.design.heat_leak) * along / self.cold.flow,
             &near.2,
@@ -311,9 +348,17 @@ impl Sides<'_> {
         let t_cold = cold.temperature.max(coldest_hot);
         let t_hot = hot.temperature.min(cold_fluid.temperature_max);
         let hot_limit = self.hot.flow
-            * (hot.enthalpy - state_at(hot_fluid, t_cold, self.hot_outlet_pressure())?.enthalpy);
+            * (hot.enthalpy
+                - self
+                    .hot_path
+                    .state_at(t_cold, self.hot_outlet_pressure())?
+                    .enthalpy);
         let cold_limit = self.cold.flow
-            * (state_at(cold_fluid, t_hot, self.cold_outlet_pressure())?.enthalpy - cold.enthalpy)
+            * (self
+                .cold_path
+                .state_at(t_hot, self.cold_outlet_pressure())?
+                .enthalpy
+                - cold.enthalpy)
             - self.design.heat_leak;
         Ok(hot_limit.min(cold_limit).max(0.0))
     }
@@ -469,13 +514,6 @@ fn secant_from(g: &dyn Fn(f64) -> f64, hint: f64, upper: f64) -> Option<f64> {
     None
 }
 
-/// A state at (T, p), nudged off the saturation line where (T, p) lies on it.
-fn state_at(fluid: &'static crate::fluids::Fluid, t: f64, p: f64) -> Result<State> {
-    fluid
-        .state_tp(t, p)
-        .or_else(|_| fluid.state_tp(t * (1.0 + 1e-9), p))
-}
-
 /// Solves the exchanger for its hot and cold inlets; the context's duty hint (the
 /// last pass's duty) starts a duty search.
 pub fn exchange(
@@ -485,8 +523,19 @@ pub fn exchange(
     context: &Context,
 ) -> Result<(Vec<Flow>, Performance)> {
     let duty_hint = context.duty_hint;
-    let sides = Sides { hot, cold, design };
-    let (hot_fluid, cold_fluid) = (hot.state.fluid(), cold.state.fluid());
+    let unit = "exchanger";
+    let sides = Sides {
+        hot,
+        cold,
+        design,
+        hot_path: StreamPath::new(&hot.state, CatalystSide::hot(design.catalyst), unit)?,
+        cold_path: StreamPath::new(
+            &cold.state,
+            CatalystSide::cold(design.catalyst),
+            unit,
+        )?,
+    };
+    let (hot_material, cold_material) = (hot.state.material(), cold.state.material());
     let degenerate = !(hot.flow > 0.0 && cold.flow > 0.0);
     let upper = if degenerate {
         0.0
@@ -496,16 +545,14 @@ pub fn exchange(
     let duty = match design.spec {
         _ if upper <= 0.0 => 0.0,
         ExchangerSpec::WarmEndApproach(dt) => {
-            let out = state_at(
-                cold_fluid,
+            let out = sides.cold_path.state_at(
                 (hot.state.temperature - dt).max(cold.state.temperature),
                 sides.cold_outlet_pressure(),
             )?;
             (cold.flow * (out.enthalpy - cold.state.enthalpy) - design.heat_leak).clamp(0.0, upper)
         }
         ExchangerSpec::ColdEndApproach(dt) => {
-            let out = state_at(
-                hot_fluid,
+            let out = sides.hot_path.state_at(
                 (cold.state.temperature + dt).min(hot.state.temperature),
                 sides.hot_outlet_pressure(),
             )?;
@@ -548,13 +595,15 @@ pub fn exchange(
     };
     if !context.detailed && !degenerate {
         // Outlets only: no profile needed for this pass.
-        let hot_out = hot_fluid.state_ph(
+        let hot_out = sides.hot_path.state(
             sides.hot_outlet_pressure(),
             hot.state.enthalpy - duty / hot.flow,
+            &hot.state,
         )?;
-        let cold_out = cold_fluid.state_ph(
+        let cold_out = sides.cold_path.state(
             sides.cold_outlet_pressure(),
             cold.state.enthalpy + (duty + design.heat_leak) / cold.flow,
+            &cold.state,
         )?;
         let performance = Performance {
             heat_in: vec![(design.heat_leak, context.ambient)],
@@ -581,12 +630,12 @@ pub fn exchange(
         .cloned()
         .ok_or_else(|| Error::Internal("empty exchanger profile".into()))?;
     let hot_out = if degenerate {
-        hot_fluid.state_ph(sides.hot_outlet_pressure(), hot.state.enthalpy)?
+        hot_material.state_ph(sides.hot_outlet_pressure(), hot.state.enthalpy)?
     } else {
         hot_out
     };
     let cold_out = if degenerate {
-        cold_fluid.state_ph(
+        cold_material.state_ph(
             sides.cold_outlet_pressure(),
             cold.state.enthalpy
                 + if cold.flow > 0.0 {

@@ -67,7 +67,7 @@ impl Equipment for Expander {
     /// Expands the inlet to the outlet pressure with the isentropic efficiency.
     fn run(&self, inlets: &[Flow], context: &Context) -> Result<(Vec<Flow>, Performance)> {
         let inlet = &inlets[0];
-        let fluid = inlet.state.fluid();
+        let fluid = inlet.state.material();
         let ideal = fluid.state_ps(self.outlet_pressure, inlet.state.entropy)?;
         let h = inlet.state.enthalpy
             - self.isentropic_efficiency * (inlet.state.enthalpy - ideal.enthalpy);

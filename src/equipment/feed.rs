@@ -5,7 +5,7 @@ use super::kind::{EquipmentKind, FeedFlow, Ports, Reader, Role};
 use super::precooler::ASSUMED_CRYOGEN_PLANT_FIGURE_OF_MERIT;
 use super::{Context, Equipment, Flow, Performance};
 use crate::error::{FlowsheetError, Result};
-use crate::fluids::{DeadState, Fluid};
+use crate::fluids::{spin, DeadState, Fluid, Material};
 use crate::quantity::Dimension;
 
 /// A feed colder than ambient by more than this, K, is bought cryogen (common
@@ -33,6 +33,9 @@ pub struct Feed {
     pub pressure: f64,
     /// How its flow is set.
     pub flow: FeedFlow,
+    /// Hydrogen given a `para_fraction`: the ortho–para solution with this para
+    /// fraction (`None`: the fluid as it is, frozen normal for `hydrogen`).
+    pub para_fraction: Option<f64>,
     /// The charge for bought cryogen: a feed colder than ambient, or one given a
     /// `liquid_work`.
     pub cryogen: Option<CryogenCharge>,
@@ -41,7 +44,7 @@ pub struct Feed {
 impl EquipmentKind for Feed {
     const NAME: &'static str = "feed";
     const KEYS: &'static [&'static str] =
-        &["fluid", "temperature", "pressure", "flow", "liquid_work"];
+        &["fluid", "temperature", "pressure", "flow", "liquid_work", "para_fraction"];
 
     fn read(r: &mut Reader) -> std::result::Result<Self, FlowsheetError> {
         let fluid = r.fluid("fluid", &r.text("fluid")?)?;
@@ -57,6 +60,25 @@ impl EquipmentKind for Feed {
             Some("balance") => FeedFlow::Balance,
             Some(_) => FeedFlow::Fixed(r.quantity("flow", Dimension::MassFlow, 1e-9, 1e5)?),
         };
+        let para_fraction = match r.text_opt("para_fraction")?.as_deref() {
+            None => None,
+            _ if fluid.name != "hydrogen" => {
+                return Err(r.error(
+                    "para_fraction",
+                    format!(
+                        "'para_fraction' belongs to a `hydrogen` feed; this feed is {}",
+                        fluid.name
+                    ),
+                ))
+            }
+            Some("equilibrium") => Some(spin::equilibrium_para_fraction(temperature)),
+            Some(_) => Some(r.quantity("para_fraction", Dimension::Fraction, 0.0, 1.0)?),
+        };
+        let material = match para_fraction {
+            Some(x) => Material::hydrogen_solution(x)
+                .map_err(|e| r.error("para_fraction", e.to_string()))?,
+            None => Material::plain(fluid),
+        };
         let liquid_work = r.quantity_opt("liquid_work", Dimension::SpecificEnergy, 0.0, 1e8)?;
         let cryogen = match liquid_work {
             Some(work_per_kg) => Some(CryogenCharge {
@@ -64,7 +86,7 @@ impl EquipmentKind for Feed {
                 is_default: false,
             }),
             None if temperature < r.ambient - CRYOGEN_BELOW_AMBIENT => {
-                let state = fluid
+                let state = material
                     .state_tp(temperature, pressure)
                     .map_err(|e| r.error("temperature", e.to_string()))?;
                 let dead = DeadState::of(fluid, r.ambient)
@@ -86,6 +108,7 @@ impl EquipmentKind for Feed {
             temperature,
             pressure,
             flow,
+            para_fraction,
             cryogen,
         })
     }
@@ -106,6 +129,10 @@ impl Equipment for Feed {
         Role::Feed(self.flow)
     }
 
+    fn gives_para_fraction(&self) -> Option<bool> {
+        (self.fluid.name == "hydrogen").then_some(self.para_fraction.is_some())
+    }
+
     fn outlet_pressures(&self, _inlets: &[Option<f64>]) -> Vec<Option<f64>> {
         vec![Some(self.pressure)]
     }
@@ -113,7 +140,11 @@ impl Equipment for Feed {
     /// The outlet at (T, p) with the flow the solver gives the feed; bought
     /// cryogen is charged its work equivalent as precooling work.
     fn run(&self, _inlets: &[Flow], context: &Context) -> Result<(Vec<Flow>, Performance)> {
-        let state = self.fluid.state_tp(self.temperature, self.pressure)?;
+        let material = match self.para_fraction {
+            Some(x) => Material::hydrogen_solution(x)?,
+            None => Material::plain(self.fluid),
+        };
+        let state = material.state_tp(self.temperature, self.pressure)?;
         let performance = Performance {
             precooling_work: self
                 .cryogen

@@ -111,6 +111,12 @@ pub trait Equipment: std::fmt::Debug + Send + Sync {
         Vec::new()
     }
 
+    /// For a hydrogen feed, whether it gives the stream a para fraction (the
+    /// ortho–para solution) rather than frozen normal hydrogen; `None` otherwise.
+    fn gives_para_fraction(&self) -> Option<bool> {
+        None
+    }
+
     /// The model: outlet flows, in port order, and what the unit did.
     fn run(&self, inlets: &[Flow], context: &Context) -> Result<(Vec<Flow>, Performance)>;
 }
@@ -328,7 +334,7 @@ pub fn with_heat_leak(
     };
     let state = inlet
         .state
-        .fluid()
+        .material()
         .state_ph(pressure, inlet.state.enthalpy + gain)?;
     let performance = Performance {
         heat_in: vec![(heat_leak, context.ambient)],

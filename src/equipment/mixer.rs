@@ -78,7 +78,32 @@ impl Equipment for Mixer {
             .map(|f| f.flow * f.state.enthalpy)
             .sum::<f64>()
             / flow;
-        let state = first.state.fluid().state_ph(pressure, enthalpy)?;
+        let material = mixed_material(inlets)?;
+        let state = material.state_ph(pressure, enthalpy)?;
         Ok((vec![Flow { state, flow }], Performance::default()))
     }
+}
+
+/// The material of mixed inlets: their fluid, and for the ortho–para solution the
+/// mole-weighted para fraction. Solution and frozen normal hydrogen do not mix.
+fn mixed_material(inlets: &[Flow]) -> Result<crate::fluids::Material> {
+    let first = inlets[0].state.material();
+    let solutions = inlets.iter().filter(|f| f.state.para_fraction.is_some()).count();
+    if solutions == 0 {
+        return Ok(first);
+    }
+    if solutions < inlets.len() {
+        return Err(crate::error::Error::Input(
+            "a mixer joins hydrogen that carries its para fraction with frozen normal hydrogen; give every hydrogen feed a `para_fraction`".into(),
+        ));
+    }
+    let blend = crate::fluids::blend::Blend::get()?;
+    let (mut moles, mut para) = (0.0, 0.0);
+    for inlet in inlets {
+        let x = inlet.state.para_fraction.unwrap_or_default();
+        let n = inlet.flow.max(0.0) / blend.molar_mass(x);
+        moles += n;
+        para += n * x;
+    }
+    Ok(first.with_para_fraction(if moles > 0.0 { para / moles } else { first.para_fraction.unwrap_or_default() }))
 }

@@ -75,6 +75,7 @@ register_kinds! {
     Splitter(splitter::Splitter),
     Expander(expander::Expander),
     TransferLine(transfer_line::TransferLine),
+    Converter(converter::Converter),
 }
 
 /// One registered kind: its name, its keys and its reader.

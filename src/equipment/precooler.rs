@@ -4,7 +4,8 @@
 use super::kind::{less_drop, Coupling, EquipmentKind, Ports, Reader, Role};
 use super::{Context, Details, Equipment, Flow, Performance};
 use crate::error::{FlowsheetError, Result};
-use crate::fluids::{self, DeadState, Fluid};
+use crate::fluids::conversion::StreamPath;
+use crate::fluids::{self, DeadState, Fluid, State};
 use crate::quantity::{Dimension, STANDARD_ATMOSPHERE};
 
 /// Where a precooler puts its heat.
@@ -42,6 +43,8 @@ pub struct Precooler {
     pub approach: f64,
     /// Heat sink.
     pub source: PrecoolerSource,
+    /// Whether the process side carries an ortho–para catalyst.
+    pub catalyst: bool,
 }
 
 /// The figure of merit assumed for the plant that makes a bath's cryogen, when the
@@ -72,6 +75,7 @@ impl EquipmentKind for Precooler {
         "coolant",
         "vacuum_pump_efficiency",
         "flow",
+        "catalyst",
     ];
 
     fn read(r: &mut Reader) -> std::result::Result<Self, FlowsheetError> {
@@ -91,7 +95,39 @@ impl EquipmentKind for Precooler {
             return Err(r.error("kind", ONE_SINK));
         }
         let source = if let Some(name) = bath {
-            let fluid = fluids::fluid(&name).map_err(|e| r.error("bath", e.to_string()))?;
+            bath_source(r, &name, bath_pressure, liquid_work)?
+        } else if let Some(fraction) = refrigerator {
+            PrecoolerSource::Refrigerator {
+                fraction_of_carnot: fraction,
+            }
+        } else {
+            r.add_inlet("coolant-in", "coolant", coolant.unwrap_or_default());
+            PrecoolerSource::Coolant
+        };
+        if bath_pressure.is_some() && !matches!(source, PrecoolerSource::Bath { .. }) {
+            return Err(r.error("bath_pressure", "'bath_pressure' goes with 'bath'"));
+        }
+        let pressure_drop = r.pressure_drop("pressure_drop")?;
+        r.flow_basis()?;
+        Ok(Precooler {
+            outlet_temperature,
+            pressure_drop,
+            approach,
+            source,
+            catalyst: r.choice("catalyst", "a catalyst setting", &["false", "true"])? == 1,
+        })
+    }
+}
+
+/// A bath of the cryogen `name` read from the keys `bath`, `bath_pressure`,
+/// `liquid_work` and `vacuum_pump_efficiency` (shared by the units that boil a bath).
+pub fn bath_source(
+    r: &Reader,
+    name: &str,
+    bath_pressure: Option<f64>,
+    liquid_work: Option<f64>,
+) -> std::result::Result<PrecoolerSource, FlowsheetError> {
+            let fluid = fluids::fluid(name).map_err(|e| r.error("bath", e.to_string()))?;
             let pressure =
                 bath_pressure.ok_or_else(|| r.error("bath_pressure", MISSING_BATH_PRESSURE))?;
             // Cryogen is bought at one atmosphere or above; a bath below it is
@@ -114,32 +150,12 @@ impl EquipmentKind for Precooler {
             } else {
                 0.0
             };
-            PrecoolerSource::Bath {
+            Ok(PrecoolerSource::Bath {
                 fluid,
                 pressure,
                 liquid_work,
                 pump_work,
-            }
-        } else if let Some(fraction) = refrigerator {
-            PrecoolerSource::Refrigerator {
-                fraction_of_carnot: fraction,
-            }
-        } else {
-            r.add_inlet("coolant-in", "coolant", coolant.unwrap_or_default());
-            PrecoolerSource::Coolant
-        };
-        if bath_pressure.is_some() && !matches!(source, PrecoolerSource::Bath { .. }) {
-            return Err(r.error("bath_pressure", "'bath_pressure' goes with 'bath'"));
-        }
-        let pressure_drop = r.pressure_drop("pressure_drop")?;
-        r.flow_basis()?;
-        Ok(Precooler {
-            outlet_temperature,
-            pressure_drop,
-            approach,
-            source,
-        })
-    }
+            })
 }
 
 const ONE_SINK: &str = "a precooler needs exactly one heat sink: 'bath' (a cryogen name, with bath_pressure), 'refrigerator' (its fraction of Carnot) or 'coolant' (a stream of the flowsheet)";
@@ -209,85 +225,31 @@ impl Equipment for Precooler {
             self.outlet_temperature,
             self.pressure_drop,
             &self.source,
+            self.catalyst,
             context,
         )
     }
 }
 
-/// Cools `inlets[0]` to `outlet_temperature`; `inlets[1]` is the coolant stream,
-/// when there is one.
+/// Cools `inlets[0]` to `outlet_temperature` (over an ortho–para catalyst when
+/// `catalyst`, so that a hydrogen stream leaves in equilibrium); `inlets[1]` is the
+/// coolant stream, when there is one.
 pub fn precool(
     inlets: &[Flow],
     outlet_temperature: f64,
     pressure_drop: f64,
     source: &PrecoolerSource,
+    catalyst: bool,
     context: &Context,
 ) -> Result<(Vec<Flow>, Performance)> {
     let process = &inlets[0];
-    let fluid = process.state.fluid();
+    let path = StreamPath::new(&process.state, catalyst, "precooler")?;
     let p_out = process.state.pressure - pressure_drop;
-    let target = fluid.state_tp(outlet_temperature, p_out)?;
+    let target = path.state_at(outlet_temperature, p_out)?;
     let m = process.flow;
     match *source {
-        PrecoolerSource::Bath {
-            fluid: cryogen,
-            pressure,
-            liquid_work,
-            pump_work,
-        } => {
-            let duty = m * (process.state.enthalpy - target.enthalpy);
-            let saturation = cryogen.saturation_at_pressure(pressure)?;
-            let liquid =
-                cryogen.properties(saturation.liquid.temperature, saturation.liquid.density);
-            let vapour =
-                cryogen.properties(saturation.vapour.temperature, saturation.vapour.density);
-            let boil_off = duty / (vapour.enthalpy - liquid.enthalpy);
-            // The bath boils at its bubble temperature (for air, between bubble and dew).
-            let bath = 0.5 * (saturation.liquid.temperature + saturation.vapour.temperature);
-            // The vacuum pump compresses the boil-off isothermally at ambient and
-            // rejects its work there as heat.
-            let pump = boil_off.max(0.0) * pump_work;
-            let performance = Performance {
-                work_in: pump,
-                heat_in: vec![(-duty, bath), (-pump, context.ambient)],
-                duty: Some(duty),
-                precooling_work: boil_off.max(0.0) * liquid_work,
-                details: Details::Precooler {
-                    sink_temperature: bath,
-                    boil_off: Some(boil_off),
-                },
-                ..Performance::default()
-            };
-            Ok((
-                vec![Flow {
-                    state: target,
-                    flow: m,
-                }],
-                performance,
-            ))
-        }
-        PrecoolerSource::Refrigerator { fraction_of_carnot } => {
-            let duty = m * (process.state.enthalpy - target.enthalpy);
-            let ds = process.state.entropy - target.entropy;
-            // The thermodynamic mean temperature at which the heat is removed.
-            let mean = if ds.abs() > 1e-12 {
-                (process.state.enthalpy - target.enthalpy) / ds
-            } else {
-                outlet_temperature
-            };
-            let carnot = (context.ambient / mean - 1.0).max(0.0);
-            let power = duty.max(0.0) * carnot / fraction_of_carnot;
-            let performance = Performance {
-                heat_in: vec![(-duty, mean)],
-                duty: Some(duty),
-                precooling_work: power,
-                extra_destroyed: power - duty.max(0.0) * carnot,
-                details: Details::Precooler {
-                    sink_temperature: mean,
-                    boil_off: None,
-                },
-                ..Performance::default()
-            };
+        PrecoolerSource::Bath { .. } | PrecoolerSource::Refrigerator { .. } => {
+            let performance = sink_charge(m, &process.state, &target, source, context)?;
             Ok((
                 vec![Flow {
                     state: target,
@@ -298,7 +260,7 @@ pub fn precool(
         }
         PrecoolerSource::Coolant => {
             let coolant = &inlets[1];
-            let coolant_fluid = coolant.state.fluid();
+            let coolant_fluid = coolant.state.material();
             let needed = m * (process.state.enthalpy - target.enthalpy);
             // The coolant cannot be warmed past the process inlet temperature.
             let warmest = coolant_fluid
@@ -315,7 +277,11 @@ pub fn precool(
             let capacity = (coolant.flow * (warmest.enthalpy - coolant.state.enthalpy)).max(0.0);
             let duty = needed.min(capacity).max(0.0);
             let process_out = if duty < needed {
-                fluid.state_ph(p_out, process.state.enthalpy - duty / m.max(1e-300))?
+                path.state(
+                    p_out,
+                    process.state.enthalpy - duty / m.max(1e-300),
+                    &process.state,
+                )?
             } else {
                 target
             };
@@ -349,5 +315,74 @@ pub fn precool(
                 performance,
             ))
         }
+    }
+}
+
+/// What taking `inlet` down to `outlet` (flow `m`, kg/s) costs against a bath or a
+/// refrigerator: the duty, the heat at the sink's temperature, the cryogen boiled
+/// and its work equivalent, or the refrigerator's power.
+pub fn sink_charge(
+    m: f64,
+    inlet: &State,
+    outlet: &State,
+    source: &PrecoolerSource,
+    context: &Context,
+) -> Result<Performance> {
+    let duty = m * (inlet.enthalpy - outlet.enthalpy);
+    match *source {
+        PrecoolerSource::Bath {
+            fluid: cryogen,
+            pressure,
+            liquid_work,
+            pump_work,
+        } => {
+            let saturation = cryogen.saturation_at_pressure(pressure)?;
+            let liquid =
+                cryogen.properties(saturation.liquid.temperature, saturation.liquid.density);
+            let vapour =
+                cryogen.properties(saturation.vapour.temperature, saturation.vapour.density);
+            let boil_off = duty / (vapour.enthalpy - liquid.enthalpy);
+            // The bath boils at its bubble temperature (for air, between bubble and dew).
+            let bath = 0.5 * (saturation.liquid.temperature + saturation.vapour.temperature);
+            // The vacuum pump compresses the boil-off isothermally at ambient and
+            // rejects its work there as heat.
+            let pump = boil_off.max(0.0) * pump_work;
+            Ok(Performance {
+                work_in: pump,
+                heat_in: vec![(-duty, bath), (-pump, context.ambient)],
+                duty: Some(duty),
+                precooling_work: boil_off.max(0.0) * liquid_work,
+                details: Details::Precooler {
+                    sink_temperature: bath,
+                    boil_off: Some(boil_off),
+                },
+                ..Performance::default()
+            })
+        }
+        PrecoolerSource::Refrigerator { fraction_of_carnot } => {
+            let ds = inlet.entropy - outlet.entropy;
+            // The thermodynamic mean temperature at which the heat is removed.
+            let mean = if ds.abs() > 1e-12 {
+                (inlet.enthalpy - outlet.enthalpy) / ds
+            } else {
+                outlet.temperature
+            };
+            let carnot = (context.ambient / mean - 1.0).max(0.0);
+            let power = duty.max(0.0) * carnot / fraction_of_carnot;
+            Ok(Performance {
+                heat_in: vec![(-duty, mean)],
+                duty: Some(duty),
+                precooling_work: power,
+                extra_destroyed: power - duty.max(0.0) * carnot,
+                details: Details::Precooler {
+                    sink_temperature: mean,
+                    boil_off: None,
+                },
+                ..Performance::default()
+            })
+        }
+        PrecoolerSource::Coolant => Err(crate::error::Error::Internal(
+            "a coolant stream is not charged as a sink".into(),
+        )),
     }
 }

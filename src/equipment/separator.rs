@@ -41,7 +41,7 @@ impl Equipment for Separator {
 /// Splits `inlet` into liquid and vapour.
 pub fn separate(inlet: &Flow) -> Result<(Vec<Flow>, Performance)> {
     let state = &inlet.state;
-    let fluid = state.fluid();
+    let fluid = state.material();
     let p = state.pressure;
     let saturated = |x: f64| {
         fluid

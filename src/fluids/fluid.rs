@@ -313,6 +313,19 @@ impl Fluid {
         self.gas_constant * temperature * (1.0 + tau * i.alpha_tau)
     }
 
+    /// The ideal-gas enthalpy (J/kg) and entropy (J/(kg·K)) at (T, p), from the
+    /// ideal part of the equation alone.
+    pub fn ideal_gas_enthalpy_entropy(&self, temperature: f64, pressure: f64) -> (f64, f64) {
+        let tau = self.tau(temperature);
+        let i = self.ideal.evaluate(tau);
+        let delta = self.delta(self.ideal_gas_density(temperature, pressure));
+        let tau_alpha = tau * i.alpha_tau;
+        (
+            self.gas_constant * temperature * (1.0 + tau_alpha),
+            self.gas_constant * (tau_alpha - i.alpha - delta.ln()),
+        )
+    }
+
     /// The ideal-gas isobaric heat capacity at T, J/(kg·K).
     pub fn ideal_gas_cp(&self, temperature: f64) -> f64 {
         let tau = self.tau(temperature);

@@ -6,6 +6,8 @@
 //! [`Fluid::state_t_rho`], [`Fluid::state_t_quality`], [`Fluid::state_p_quality`]).
 
 pub mod ancillary;
+pub mod blend;
+pub mod conversion;
 pub mod density;
 pub mod diagram;
 pub mod exergy;
@@ -14,15 +16,19 @@ pub mod flash;
 mod fluid;
 pub mod helmholtz;
 pub mod inversion;
+pub mod material;
 pub mod saturation;
 pub mod saturation_table;
 pub mod spec;
+pub mod spin;
 pub mod state;
+pub mod storage;
 pub mod throttling;
 
 pub use density::Branch;
 pub use exergy::DeadState;
 pub use fluid::{Fluid, Point, Properties};
+pub use material::Material;
 pub use saturation::Saturation;
 pub use spec::{Property, Spec};
 pub use state::{Phase, SaturatedPair, State};

@@ -68,6 +68,10 @@ pub struct State {
     pub single_phase: Option<Properties>,
     /// The saturated states, two-phase states only.
     pub saturated: Option<SaturatedPair>,
+    /// The para mole fraction of a hydrogen state of the ortho–para solution
+    /// ([`super::blend`]); `None` for every other state, frozen normal `hydrogen`
+    /// included.
+    pub para_fraction: Option<f64>,
 }
 
 impl State {
@@ -149,6 +153,7 @@ impl State {
             quality: None,
             single_phase: Some(properties),
             saturated: None,
+            para_fraction: None,
         }
     }
 
@@ -169,6 +174,34 @@ impl State {
             quality: Some(quality),
             single_phase: None,
             saturated: Some(pair),
+            para_fraction: None,
+        }
+    }
+
+    /// This state marked as one of the ortho–para solution with para fraction x.
+    pub(crate) fn with_para_fraction(mut self, para_fraction: f64) -> State {
+        self.para_fraction = Some(para_fraction);
+        self
+    }
+
+    /// The material of this state: its fluid and, for the ortho–para solution, its
+    /// para fraction; new states built from it stay of the same kind.
+    pub fn material(&self) -> super::Material {
+        super::Material {
+            fluid: self.fluid,
+            para_fraction: self.para_fraction,
+        }
+    }
+
+    /// The para fraction to show for a hydrogen state: the solution's own, or 0.25
+    /// for frozen normal hydrogen; `None` for other fluids.
+    pub fn shown_para_fraction(&self) -> Option<f64> {
+        match self.para_fraction {
+            Some(x) => Some(x),
+            None if self.fluid.name == "hydrogen" => Some(super::spin::NORMAL_PARA_FRACTION),
+            None if self.fluid.name == "parahydrogen" => Some(1.0),
+            None if self.fluid.name == "orthohydrogen" => Some(0.0),
+            None => None,
         }
     }
 }

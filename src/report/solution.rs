@@ -34,6 +34,34 @@ pub struct StreamRecord {
     pub vapour_fraction: f64,
     /// Phase name.
     pub phase: String,
+    /// Para mole fraction of a hydrogen stream (0.25 for frozen normal hydrogen).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub para_fraction: Option<f64>,
+}
+
+/// A liquid hydrogen product's para fraction and its losses in storage.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
+pub struct HydrogenStorageRecord {
+    /// The product's para fraction.
+    pub para_fraction: f64,
+    /// Whether the product is frozen normal hydrogen (no para fraction followed).
+    pub frozen_normal: bool,
+    /// The equilibrium para fraction at the product's temperature.
+    pub equilibrium_para_fraction: f64,
+    /// Ortho–para conversion enthalpy of the liquid, J/kg.
+    #[serde(rename = "conversion_enthalpy_J_kg")]
+    pub conversion_enthalpy_j_kg: f64,
+    /// Latent heat at the product's pressure, J/kg.
+    #[serde(rename = "latent_heat_J_kg")]
+    pub latent_heat_j_kg: f64,
+    /// Storage times, h.
+    pub storage_hours: Vec<f64>,
+    /// Para fraction after each storage time.
+    pub para_fraction_after: Vec<f64>,
+    /// Fraction of the liquid boiled off by conversion after each storage time.
+    pub boiled_off_after: Vec<f64>,
+    /// Liquid yield counting only what is left after each storage time.
+    pub effective_liquid_yield_after: Option<Vec<f64>>,
 }
 
 /// One unit in the JSON output.
@@ -190,6 +218,9 @@ pub struct SolutionRecord {
     pub streams: Vec<StreamRecord>,
     /// Equipment.
     pub equipment: Vec<EquipmentRecord>,
+    /// A liquid hydrogen product's para fraction and storage losses.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub hydrogen_storage: Option<HydrogenStorageRecord>,
     /// Design-check findings: `{id, severity, equipment, message, values, hint}`.
     pub findings: Vec<Finding>,
     /// The safety caution carried by every report.
@@ -215,6 +246,7 @@ impl SolutionRecord {
                 mass_flow_kg_s: f.flow,
                 vapour_fraction: f.state.vapour_fraction(),
                 phase: f.state.phase.name().to_string(),
+                para_fraction: f.state.shown_para_fraction(),
             })
             .collect();
         let equipment = solution
@@ -293,10 +325,37 @@ impl SolutionRecord {
             },
             streams,
             equipment,
+            hydrogen_storage: storage_record(solution),
             findings: findings.to_vec(),
             caution: super::caution::caution(&solution.fluids).replace('\n', " "),
         }
     }
+}
+
+/// The storage record of a solution's liquid hydrogen product, if it has one.
+pub fn storage_record(solution: &Solution) -> Option<HydrogenStorageRecord> {
+    let outlook = solution.summary.hydrogen_storage?;
+    let frozen_normal = solution
+        .streams
+        .iter()
+        .all(|f| f.state.para_fraction.is_none());
+    Some(HydrogenStorageRecord {
+        para_fraction: outlook.para_fraction,
+        frozen_normal,
+        equilibrium_para_fraction: outlook.equilibrium_para_fraction,
+        conversion_enthalpy_j_kg: outlook.conversion_enthalpy,
+        latent_heat_j_kg: outlook.latent_heat,
+        storage_hours: crate::fluids::storage::STORAGE_HOURS.to_vec(),
+        para_fraction_after: outlook.para_fraction_after.to_vec(),
+        boiled_off_after: outlook.boiled_off_after.to_vec(),
+        effective_liquid_yield_after: solution.summary.liquid_yield.map(|y| {
+            outlook
+                .boiled_off_after
+                .iter()
+                .map(|b| y * (1.0 - b))
+                .collect()
+        }),
+    })
 }
 
 /// A stream's phase in a few letters for the stream table: liquid, vapour, gas,
@@ -406,6 +465,34 @@ pub fn text(solution: &Solution) -> String {
             format!("{y:.5} (liquid per mass compressed)")
         }),
     ));
+    if let Some(storage) = storage_record(solution) {
+        let model = if storage.frozen_normal {
+            " (frozen normal)"
+        } else {
+            ""
+        };
+        out.push_str(&line(
+            "para fraction",
+            format!(
+                "{:.4}{model}; equilibrium {:.4} at the product's temperature",
+                storage.para_fraction, storage.equilibrium_para_fraction
+            ),
+        ));
+        out.push_str(&line(
+            "storage boil-off",
+            format!(
+                "{:.1} % after a day, {:.1} % after a week (residual conversion)",
+                storage.boiled_off_after[0] * 100.0,
+                storage.boiled_off_after[1] * 100.0
+            ),
+        ));
+        if let Some(y) = &storage.effective_liquid_yield_after {
+            out.push_str(&line(
+                "yield after storage",
+                format!("{:.5} after a day, {:.5} after a week", y[0], y[1]),
+            ));
+        }
+    }
     out.push_str(&line(
         "shaft power",
         format!(
@@ -487,8 +574,29 @@ pub fn text(solution: &Solution) -> String {
         ("flow [g/s]", Align::Right),
         ("phase", Align::Left),
     ]);
+    let any_para = solution
+        .streams
+        .iter()
+        .any(|f| f.state.shown_para_fraction().is_some());
+    if any_para {
+        table = TextTable::new(&[
+            ("stream", Align::Left),
+            ("fluid", Align::Left),
+            ("T [K]", Align::Right),
+            ("p [bar]", Align::Right),
+            ("h [kJ/kg]", Align::Right),
+            ("s [kJ/kgK]", Align::Right),
+            ("flow [g/s]", Align::Right),
+            ("phase", Align::Left),
+            ("para", Align::Right),
+        ]);
+    }
     for (name, f) in solution.stream_names.iter().zip(&solution.streams) {
-        table.row(vec![
+        let para = f
+            .state
+            .shown_para_fraction()
+            .map_or(String::new(), |x| format!("{x:.4}"));
+        let mut row = vec![
             name.clone(),
             f.state.fluid().name.clone(),
             format!("{:.3}", f.state.temperature),
@@ -497,7 +605,11 @@ pub fn text(solution: &Solution) -> String {
             format!("{:.4}", f.state.entropy / 1e3),
             format!("{:.4}", f.flow * 1e3),
             phase_label(&f.state),
-        ]);
+        ];
+        if any_para {
+            row.push(para);
+        }
+        table.row(row);
     }
     out.push_str(&table.render());
     out.push_str("\nEquipment\n");

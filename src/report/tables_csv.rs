@@ -31,6 +31,7 @@ pub fn write_all(solution: &Solution, dir: &Path) -> Result<Vec<PathBuf>> {
         "mass flow [kg/s]",
         "vapour fraction [-]",
         "phase",
+        "para fraction [-]",
     ])];
     for (name, f) in solution.stream_names.iter().zip(&solution.streams) {
         streams.push(vec![
@@ -44,6 +45,9 @@ pub fn write_all(solution: &Solution, dir: &Path) -> Result<Vec<PathBuf>> {
             format!("{:.9e}", f.flow),
             format!("{:.9}", f.state.vapour_fraction()),
             f.state.phase.name().to_string(),
+            f.state
+                .shown_para_fraction()
+                .map_or(String::new(), |x| format!("{x:.6}")),
         ]);
     }
     let mut equipment = vec![header(&[

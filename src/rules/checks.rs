@@ -54,6 +54,7 @@ fn local_checks(plant: &Plant, solution: &Solution) -> Vec<Finding> {
     cryogen_feeds(plant, solution, &mut findings);
     mixers(plant, solution, &mut findings);
     ranges(plant, solution, &mut findings);
+    hydrogen_product(plant, solution, &mut findings);
     balances(solution, &mut findings);
     findings.sort_by_key(|f| f.severity);
     findings
@@ -124,6 +125,68 @@ fn valves(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
             out.push(finding);
         }
     }
+}
+
+/// How far below equilibrium a liquid hydrogen product's para fraction may lie
+/// before it is flagged (common practice: stored liquid is made above 95 % para).
+pub const PARA_SHORTFALL_LIMIT: f64 = 0.05;
+
+/// A liquid hydrogen product far from ortho–para equilibrium boils itself off in
+/// storage.
+fn hydrogen_product(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
+    let Some(storage) = crate::report::solution::storage_record(solution) else {
+        return;
+    };
+    let shortfall = storage.equilibrium_para_fraction - storage.para_fraction;
+    if shortfall <= PARA_SHORTFALL_LIMIT {
+        return;
+    }
+    let product = plant
+        .liquid_products()
+        .find(|u| solution.streams[u.inlets[0]].state.fluid().name == "hydrogen")
+        .map(|u| u.id.as_str());
+    let effective = storage
+        .effective_liquid_yield_after
+        .as_ref()
+        .map_or(String::new(), |y| {
+            format!(
+                "; the yield that remains is {:.5} after a day and {:.5} after a week",
+                y[0], y[1]
+            )
+        });
+    let what = if storage.frozen_normal {
+        "normal hydrogen (frozen at 25 % para: no conversion is followed in this flowsheet)"
+            .to_string()
+    } else {
+        format!("hydrogen of para fraction {:.4}", storage.para_fraction)
+    };
+    let hint = if storage.frozen_normal {
+        "give the hydrogen feed `para_fraction: 0.25` so that the streams carry their para fraction, then convert on catalyst where the conversion heat is cheapest to remove: the liquid-nitrogen bath (`catalyst: true`), the cold exchangers (`catalyst: hot`, or `both` where the return gas comes back over-converted) and a final converter in the liquid (`kind: converter`); this is the usual practice, not re-solved here"
+    } else {
+        "convert further on catalyst at the lowest temperatures the plant reaches: the cold exchangers (`catalyst: hot` or `both`) and a final converter in the liquid (`kind: converter`); this is the usual practice, not re-solved here"
+    };
+    let mut finding = Finding::new(
+        "hydrogen-product-unconverted",
+        Severity::Warning,
+        product,
+        format!(
+            "the liquid product is {what}, {shortfall:.3} below equilibrium ({:.4} at its temperature): residual ortho–para conversion boils off {:.1} % of it in a day and {:.1} % in a week of storage{effective}",
+            storage.equilibrium_para_fraction,
+            storage.boiled_off_after[0] * 100.0,
+            storage.boiled_off_after[1] * 100.0,
+        ),
+        hint.to_string(),
+    )
+    .value("para_fraction", storage.para_fraction)
+    .value("equilibrium_para_fraction", storage.equilibrium_para_fraction)
+    .value("boiled_off_after_one_day", storage.boiled_off_after[0])
+    .value("boiled_off_after_one_week", storage.boiled_off_after[1]);
+    if let Some(y) = &storage.effective_liquid_yield_after {
+        finding = finding
+            .value("effective_yield_after_one_day", y[0])
+            .value("effective_yield_after_one_week", y[1]);
+    }
+    out.push(finding);
 }
 
 fn no_liquid(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {

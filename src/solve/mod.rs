@@ -40,6 +40,8 @@ enum Variable {
     Pressure(usize),
     Enthalpy(usize),
     Flow(usize),
+    /// The para fraction of a hydrogen tear stream of the ortho–para solution.
+    ParaFraction(usize),
     MakeUp(usize),
 }
 
@@ -62,13 +64,19 @@ impl Problem<'_> {
         let value = |i: usize| x[i] * self.scales[i];
         // Tear streams and make-up flows from the iterate.
         let mut make_up = vec![0.0; plant.units.len()];
-        let mut tear_values: Vec<(usize, f64, f64, f64)> = Vec::new();
+        let mut tear_values: Vec<(usize, f64, f64, f64, Option<f64>)> = Vec::new();
         let mut i = 0;
         while i < self.variables.len() {
             match self.variables[i] {
                 Variable::Pressure(s) => {
-                    tear_values.push((s, value(i), value(i + 1), value(i + 2).max(0.0)));
-                    i += 3;
+                    let para = match self.variables.get(i + 3) {
+                        Some(Variable::ParaFraction(t)) if *t == s => {
+                            Some(value(i + 3).clamp(0.0, 1.0))
+                        }
+                        _ => None,
+                    };
+                    tear_values.push((s, value(i), value(i + 1), value(i + 2).max(0.0), para));
+                    i += if para.is_some() { 4 } else { 3 };
                 }
                 Variable::MakeUp(u) => {
                     make_up[u] = value(i).max(0.0);
@@ -77,8 +85,11 @@ impl Problem<'_> {
                 _ => i += 1,
             }
         }
-        for &(s, p, h, m) in &tear_values {
-            let fluid = plant.streams[s].fluid;
+        for &(s, p, h, m, para) in &tear_values {
+            let fluid = match para {
+                Some(x) => crate::fluids::Material::hydrogen_solution(x)?,
+                None => crate::fluids::Material::plain(plant.streams[s].fluid),
+            };
             // An accelerated step may propose an enthalpy outside the fluid's range
             // at this pressure: hold it at the range's edge instead of failing.
             let state = match fluid.state_ph(p, h) {
@@ -147,6 +158,11 @@ impl Problem<'_> {
                 Variable::Pressure(s) => computed[s].as_ref().map(|f| f.state.pressure),
                 Variable::Enthalpy(s) => computed[s].as_ref().map(|f| f.state.enthalpy),
                 Variable::Flow(s) => computed[s].as_ref().map(|f| f.flow),
+                Variable::ParaFraction(s) => computed[s].as_ref().map(|f| {
+                    f.state
+                        .para_fraction
+                        .unwrap_or(crate::fluids::spin::NORMAL_PARA_FRACTION)
+                }),
                 Variable::MakeUp(u) => Some(self.make_up_target(u, &computed)),
             }
             .ok_or_else(|| Error::Internal("a tear stream was not computed".into()))?;
@@ -214,9 +230,25 @@ pub fn solve(plant: &Plant, options: &Options) -> Result<Solution> {
     let mut variables = Vec::new();
     let mut scales = Vec::new();
     let mut start = Vec::new();
+    let hydrogen_feeds: Vec<bool> = plant
+        .units
+        .iter()
+        .filter_map(|u| u.spec.gives_para_fraction())
+        .collect();
+    let solution = hydrogen_feeds.iter().any(|given| *given);
+    if solution && hydrogen_feeds.iter().any(|given| !given) {
+        return Err(Error::Input(
+            "some hydrogen feeds give a `para_fraction` and some do not: give every hydrogen feed one (0.25 for normal hydrogen) so that all hydrogen streams carry their para fraction".into(),
+        ));
+    }
     for &s in &sequence.tears {
         let stream = &plant.streams[s];
-        let fluid = stream.fluid;
+        let carries_para = solution && stream.fluid.name == "hydrogen";
+        let fluid = if carries_para {
+            crate::fluids::Material::hydrogen_solution(crate::fluids::spin::NORMAL_PARA_FRACTION)?
+        } else {
+            crate::fluids::Material::plain(stream.fluid)
+        };
         let p = pressures[s].unwrap_or(STANDARD_ATMOSPHERE);
         let t = initial_t.clamp(fluid.temperature_min * 1.001, fluid.temperature_max);
         let guess = fluid
@@ -231,6 +263,11 @@ pub fn solve(plant: &Plant, options: &Options) -> Result<Solution> {
         ]);
         scales.extend([p, h_scale, basis]);
         start.extend([1.0, guess.enthalpy / h_scale, fraction]);
+        if carries_para {
+            variables.push(Variable::ParaFraction(s));
+            scales.push(1.0);
+            start.push(crate::fluids::spin::NORMAL_PARA_FRACTION);
+        }
     }
     for (u, unit) in plant.units.iter().enumerate() {
         if unit.spec.role() == Role::Feed(FeedFlow::Balance) {
@@ -256,6 +293,7 @@ pub fn solve(plant: &Plant, options: &Options) -> Result<Solution> {
             Some(Variable::Pressure(s)) => format!("the pressure of {}", name(*s)),
             Some(Variable::Enthalpy(s)) => format!("the enthalpy of {}", name(*s)),
             Some(Variable::Flow(s)) => format!("the mass flow of {}", name(*s)),
+            Some(Variable::ParaFraction(s)) => format!("the para fraction of {}", name(*s)),
             Some(Variable::MakeUp(u)) => format!("the make-up flow of {}", plant.units[*u].id),
             None => "—".into(),
         };

@@ -23,6 +23,7 @@ use crate::equipment::{Details, Flow, Performance, ProductRole, Role};
 use crate::error::Result;
 use crate::flowsheet::plant::flow_networks;
 use crate::flowsheet::Plant;
+use crate::fluids::storage::StorageOutlook;
 use crate::fluids::{DeadState, Fluid};
 use std::collections::HashMap;
 
@@ -83,6 +84,9 @@ pub struct Summary {
     /// Work equivalent of the cryogen that enters as feed streams, W (part of the
     /// precooling work).
     pub cryogen_feed_work: f64,
+    /// For a liquid hydrogen product: its para fraction and what residual
+    /// conversion boils off in storage.
+    pub hydrogen_storage: Option<StorageOutlook>,
     /// (feeds − products)/feeds.
     pub mass_closure: f64,
     /// Energy in − out over the energy flows.
@@ -291,6 +295,7 @@ pub fn assemble(
     if total_work > 0.0 && s.liquid_flow > 0.0 {
         s.figure_of_merit = Some(s.minimum_work / total_work);
     }
+    s.hydrogen_storage = hydrogen_storage(plant, &streams)?;
     s.mass_closure = if feed_mass > 0.0 {
         (feed_mass - product_mass) / feed_mass
     } else {
@@ -323,6 +328,42 @@ pub fn assemble(
             .map(|r| r.iter().map(|&u| plant.units[u].id.clone()).collect())
             .collect(),
     })
+}
+
+/// The storage outlook of the plant's liquid hydrogen product (the liquid products
+/// of hydrogen together, flow-weighted; at the first one's temperature and pressure).
+fn hydrogen_storage(plant: &Plant, streams: &[Flow]) -> Result<Option<StorageOutlook>> {
+    let products: Vec<&Flow> = plant
+        .liquid_products()
+        .map(|u| &streams[u.inlets[0]])
+        .filter(|f| f.state.fluid().name == "hydrogen" && f.flow > 0.0)
+        .collect();
+    let Some(first) = products.first() else {
+        return Ok(None);
+    };
+    let mass: f64 = products.iter().map(|f| f.flow).sum();
+    let para = products
+        .iter()
+        .map(|f| f.flow * f.state.shown_para_fraction().unwrap_or_default())
+        .sum::<f64>()
+        / mass;
+    let blend = crate::fluids::blend::Blend::get()?;
+    let (t, p) = (first.state.temperature, first.state.pressure);
+    // Where the product's pressure has no saturation (a compressed liquid above the
+    // solution's two-phase range), there is no latent heat and no outlook.
+    let pair = match first.state.para_fraction {
+        Some(x) => blend.saturated_pair(p, x),
+        None => first.state.fluid().saturated_pair_at_pressure(p),
+    };
+    let (Ok(pair), Ok(conversion)) = (pair, blend.liquid_conversion_enthalpy(t, p)) else {
+        return Ok(None);
+    };
+    Ok(Some(StorageOutlook::of(
+        para,
+        crate::fluids::spin::equilibrium_para_fraction(t),
+        conversion,
+        pair.vapour.enthalpy - pair.liquid.enthalpy,
+    )))
 }
 
 /// The fluids of the streams, then those the units use besides (baths), each once.

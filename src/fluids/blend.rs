@@ -1,0 +1,621 @@
+//! Hydrogen of any para fraction: an ideal solution of the parahydrogen and
+//! orthohydrogen equations of Leachman et al. (2009) on one datum.
+//!
+//! Each species keeps its published equation. The ortho equation's enthalpy and
+//! entropy are shifted by constants (A, B) so that, in the ideal gas, h_o − h_p is the
+//! rotational energy difference and μ_o − μ_p = −RT ln(3 Z_odd/Z_even) (see
+//! [`super::spin`]); A and B are the least-squares constants over 20–300 K and the
+//! largest misfit is kept in [`Alignment`]. A common shift then puts the 25 % solution
+//! on the normal-hydrogen equation's value at 300 K and 101.325 kPa, so that blend
+//! states and frozen-normal `hydrogen` states share one datum.
+//!
+//! At (T, p) and para mole fraction x, each species sits at its own density on the
+//! same branch; volumes, enthalpies, heat capacities add by mass fraction, and the
+//! ideal mixing entropy −R Σ xᵢ ln xᵢ (per mole) is added. Two phases share one
+//! composition (no fractionation): the blend boils at the temperature where the
+//! mole-weighted Gibbs energies of liquid and vapour are equal, between the two
+//! species' saturation temperatures. Between the two critical points the model is
+//! refused (see [`Blend::check`]).
+
+use super::density::Branch;
+use super::fluid::{Fluid, Properties};
+use super::spin;
+use super::state::{SaturatedPair, State};
+use crate::error::{Error, Result};
+use std::sync::OnceLock;
+
+/// The highest pressure at which the blend is given two phases, Pa: below the
+/// parahydrogen critical pressure (1.2858 MPa) by a margin, since the pseudo-pure
+/// saturation of the solution loses meaning as the para liquid vanishes.
+pub const BLEND_SATURATION_PRESSURE_MAX: f64 = 1.2e6;
+
+/// How well the aligned equations meet the two ideal-gas conditions, J/mol: the
+/// largest misfit over the fit's temperatures.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Alignment {
+    /// The ortho enthalpy shift A, J/mol.
+    pub ortho_enthalpy_shift: f64,
+    /// The ortho entropy shift B, J/(mol·K).
+    pub ortho_entropy_shift: f64,
+    /// Largest |h_o − h_p − ΔE_rot| over 20–300 K, J/mol.
+    pub enthalpy_misfit: f64,
+    /// Largest |μ_o − μ_p + RT ln(3 Z_odd/Z_even)| over 20–300 K, J/mol.
+    pub gibbs_misfit: f64,
+}
+
+/// The ortho–para solution model: the two species' equations, the normal-hydrogen
+/// equation whose datum it shares, and the shifts.
+#[derive(Debug)]
+pub struct Blend {
+    /// The parahydrogen equation.
+    pub para: &'static Fluid,
+    /// The orthohydrogen equation.
+    pub ortho: &'static Fluid,
+    /// The normal-hydrogen equation (the fluid blend states report as theirs).
+    pub normal: &'static Fluid,
+    /// The alignment constants and their misfit.
+    pub alignment: Alignment,
+    /// Added to every ortho enthalpy, J/kg (A/M_o).
+    ortho_enthalpy: f64,
+    /// Added to every ortho entropy, J/(kg·K) (B/M_o).
+    ortho_entropy: f64,
+    /// Added to every blend enthalpy, J/kg.
+    common_enthalpy: f64,
+    /// Added to every blend entropy, J/(kg·K).
+    common_entropy: f64,
+}
+
+/// The ideal-gas enthalpy and entropy of one species at (T, p), per mole.
+fn ideal_gas_molar(fluid: &Fluid, temperature: f64, pressure: f64) -> (f64, f64) {
+    let (enthalpy, entropy) = fluid.ideal_gas_enthalpy_entropy(temperature, pressure);
+    (enthalpy * fluid.molar_mass, entropy * fluid.molar_mass)
+}
+
+/// Temperatures over which the alignment constants are fitted, K.
+fn fit_temperatures() -> impl Iterator<Item = f64> {
+    (20..=300).map(f64::from)
+}
+
+impl Blend {
+    /// The model, built on first use.
+    pub fn get() -> Result<&'static Blend> {
+        static BLEND: OnceLock<std::result::Result<Blend, Error>> = OnceLock::new();
+        BLEND
+            .get_or_init(|| {
+                Blend::build(
+                    super::fluid("parahydrogen")?,
+                    super::fluid("orthohydrogen")?,
+                    super::fluid("hydrogen")?,
+                )
+            })
+            .as_ref()
+            .map_err(Clone::clone)
+    }
+
+    fn build(para: &'static Fluid, ortho: &'static Fluid, normal: &'static Fluid) -> Result<Blend> {
+        let pressure = 1.0; // Pa; the ideal-gas parts do not depend on it except by ln p.
+        let differences: Vec<(f64, f64, f64)> = fit_temperatures()
+            .map(|t| {
+                let (hp, sp) = ideal_gas_molar(para, t, pressure);
+                let (ho, so) = ideal_gas_molar(ortho, t, pressure);
+                (t, ho - hp, so - sp)
+            })
+            .collect();
+        let count = differences.len() as f64;
+        let a = differences
+            .iter()
+            .map(|&(t, dh, _)| spin::ortho_para_energy_difference(t) - dh)
+            .sum::<f64>()
+            / count;
+        // μ_o − μ_p = (Δh + A) − T(Δs + B) = Δμ_rot: least squares for B in T·B.
+        let (mut numerator, mut denominator) = (0.0, 0.0);
+        for &(t, dh, ds) in &differences {
+            let residual = dh + a - t * ds - spin::ortho_para_gibbs_difference(t);
+            numerator += t * residual;
+            denominator += t * t;
+        }
+        let b = numerator / denominator;
+        let mut enthalpy_misfit: f64 = 0.0;
+        let mut gibbs_misfit: f64 = 0.0;
+        for &(t, dh, ds) in &differences {
+            enthalpy_misfit =
+                enthalpy_misfit.max((dh + a - spin::ortho_para_energy_difference(t)).abs());
+            gibbs_misfit = gibbs_misfit
+                .max((dh + a - t * (ds + b) - spin::ortho_para_gibbs_difference(t)).abs());
+        }
+        let mut blend = Blend {
+            para,
+            ortho,
+            normal,
+            alignment: Alignment {
+                ortho_enthalpy_shift: a,
+                ortho_entropy_shift: b,
+                enthalpy_misfit,
+                gibbs_misfit,
+            },
+            ortho_enthalpy: a / ortho.molar_mass,
+            ortho_entropy: b / ortho.molar_mass,
+            common_enthalpy: 0.0,
+            common_entropy: 0.0,
+        };
+        // The common datum: the 25 % solution equals normal hydrogen at 300 K, 1 atm.
+        let (t0, p0) = (300.0, crate::quantity::STANDARD_ATMOSPHERE);
+        let reference = blend.tp_properties(t0, p0, spin::NORMAL_PARA_FRACTION, false)?;
+        let normal_state = normal.state_tp(t0, p0)?;
+        blend.common_enthalpy = normal_state.enthalpy - reference.enthalpy;
+        blend.common_entropy = normal_state.entropy - reference.entropy;
+        Ok(blend)
+    }
+
+    /// The para mass fraction of a para mole fraction x.
+    pub fn para_mass_fraction(&self, para_fraction: f64) -> f64 {
+        let para = para_fraction * self.para.molar_mass;
+        para / (para + (1.0 - para_fraction) * self.ortho.molar_mass)
+    }
+
+    /// The para mole fraction of a para mass fraction w.
+    pub fn para_mole_fraction(&self, mass_fraction: f64) -> f64 {
+        let para = mass_fraction / self.para.molar_mass;
+        para / (para + (1.0 - mass_fraction) / self.ortho.molar_mass)
+    }
+
+    /// The molar mass of the solution, kg/mol.
+    pub fn molar_mass(&self, para_fraction: f64) -> f64 {
+        para_fraction * self.para.molar_mass + (1.0 - para_fraction) * self.ortho.molar_mass
+    }
+
+    /// The ideal mixing entropy, J/(kg·K).
+    fn mixing_entropy(&self, para_fraction: f64) -> f64 {
+        let term = |x: f64| if x > 0.0 { x * x.ln() } else { 0.0 };
+        -spin::MOLAR_GAS_CONSTANT * (term(para_fraction) + term(1.0 - para_fraction))
+            / self.molar_mass(para_fraction)
+    }
+
+    /// An ortho enthalpy difference at equal T and p: h_o − h_p on the aligned datum,
+    /// J/kg, from two species' properties.
+    fn ortho_minus_para(&self, para: &Properties, ortho: &Properties) -> f64 {
+        ortho.enthalpy + self.ortho_enthalpy - para.enthalpy
+    }
+
+    /// Checks a para fraction and the (T, p) against both species' ranges and the
+    /// window between the critical points where the model is refused.
+    pub fn check(&self, temperature: f64, pressure: f64, para_fraction: f64) -> Result<()> {
+        if !(0.0..=1.0).contains(&para_fraction) {
+            return Err(Error::OutOfRange {
+                fluid: "hydrogen".into(),
+                what: format!("para fraction {para_fraction}"),
+                detail: "a para fraction is a mole fraction from 0 to 1".into(),
+            });
+        }
+        self.para.check_range(temperature, pressure)?;
+        self.ortho.check_range(temperature, pressure)?;
+        let t_high = self
+            .ortho
+            .critical
+            .temperature
+            .max(self.para.critical.temperature);
+        let p_high = self
+            .ortho
+            .critical
+            .pressure
+            .max(self.para.critical.pressure);
+        if temperature < t_high && pressure > BLEND_SATURATION_PRESSURE_MAX && pressure < p_high {
+            return Err(Error::OutOfRange {
+                fluid: "hydrogen (ortho–para solution)".into(),
+                what: format!(
+                    "T = {temperature:.4} K, p = {:.4} MPa",
+                    pressure / 1e6
+                ),
+                detail: format!(
+                    "next to the critical points of parahydrogen and orthohydrogen (below {t_high} K at {:.2}–{:.4} MPa) the solution model is not defined; move the pressure or use frozen normal `hydrogen`",
+                    BLEND_SATURATION_PRESSURE_MAX / 1e6,
+                    p_high / 1e6
+                ),
+            });
+        }
+        Ok(())
+    }
+
+    /// One species' density at (T, p) on the liquid or vapour side (metastable where
+    /// the other species' saturation has been crossed), or its unique root above its
+    /// critical temperature.
+    fn species_density(
+        fluid: &Fluid,
+        temperature: f64,
+        pressure: f64,
+        liquid: bool,
+    ) -> Result<f64> {
+        let factors = fluid.tau_factors(temperature);
+        if temperature >= fluid.saturation_temperature_max() {
+            return fluid.density_on_branch(
+                &factors,
+                temperature,
+                pressure,
+                Branch::Supercritical,
+                None,
+                None,
+            );
+        }
+        let (liquid_density, vapour_density) = fluid.approximate_saturated_densities(temperature);
+        if liquid {
+            let critical = fluid.critical.density;
+            let low = (0.8 * liquid_density).max(critical);
+            fluid.solve_density(
+                &factors,
+                temperature,
+                pressure,
+                liquid_density,
+                low,
+                f64::INFINITY,
+            )
+        } else {
+            let seed = fluid
+                .ideal_gas_density(temperature, pressure)
+                .min(vapour_density);
+            let high = (1.6 * vapour_density).min(fluid.critical.density);
+            fluid.solve_density(&factors, temperature, pressure, seed, 0.0, high)
+        }
+    }
+
+    /// Both species' properties at (T, p) on one side.
+    fn species(
+        &self,
+        temperature: f64,
+        pressure: f64,
+        liquid: bool,
+    ) -> Result<(Properties, Properties)> {
+        let para_density = Self::species_density(self.para, temperature, pressure, liquid)?;
+        let ortho_density = Self::species_density(self.ortho, temperature, pressure, liquid)?;
+        Ok((
+            self.para.properties(temperature, para_density),
+            self.ortho.properties(temperature, ortho_density),
+        ))
+    }
+
+    /// The solution's properties from its species' properties at one (T, p).
+    fn mix(&self, para_fraction: f64, para: &Properties, ortho: &Properties) -> Properties {
+        let w = self.para_mass_fraction(para_fraction);
+        let wo = 1.0 - w;
+        let (t, p) = (para.temperature, para.pressure);
+        let volume = w / para.density + wo / ortho.density;
+        let dv_dt = |x: &Properties| (x.dp_dt / x.dp_drho) / (x.density * x.density);
+        let dv_dp = |x: &Properties| -1.0 / (x.density * x.density * x.dp_drho);
+        let volume_t = w * dv_dt(para) + wo * dv_dt(ortho);
+        let volume_p = w * dv_dp(para) + wo * dv_dp(ortho);
+        let enthalpy =
+            w * para.enthalpy + wo * (ortho.enthalpy + self.ortho_enthalpy) + self.common_enthalpy;
+        let entropy = w * para.entropy
+            + wo * (ortho.entropy + self.ortho_entropy)
+            + self.mixing_entropy(para_fraction)
+            + self.common_entropy;
+        let cp = w * para.cp + wo * ortho.cp;
+        let cv = cp + t * volume_t * volume_t / volume_p;
+        let dp_drho = -volume * volume / volume_p;
+        let gas_constant = spin::MOLAR_GAS_CONSTANT / self.molar_mass(para_fraction);
+        Properties {
+            temperature: t,
+            density: 1.0 / volume,
+            pressure: p,
+            internal_energy: enthalpy - p * volume,
+            enthalpy,
+            entropy,
+            gibbs: enthalpy - t * entropy,
+            cv,
+            cp,
+            speed_of_sound: ((cp / cv) * dp_drho).max(0.0).sqrt(),
+            joule_thomson: (t * volume_t - volume) / cp,
+            compressibility: p * volume / (gas_constant * t),
+            dp_drho,
+            dp_dt: -volume_t / volume_p,
+        }
+    }
+
+    /// The blend's saturation temperature at p for para fraction x (K), where the
+    /// mole-weighted Gibbs energies of the liquid and vapour solutions are equal.
+    pub fn saturation_temperature(&self, pressure: f64, para_fraction: f64) -> Result<f64> {
+        let para_pair = self.para.saturated_pair_at_pressure(pressure)?;
+        let ortho_pair = self.ortho.saturated_pair_at_pressure(pressure)?;
+        let (tp, to) = (para_pair.liquid.temperature, ortho_pair.liquid.temperature);
+        if para_fraction >= 1.0 {
+            return Ok(tp);
+        }
+        if para_fraction <= 0.0 {
+            return Ok(to);
+        }
+        let gap = |t: f64| -> f64 {
+            match (
+                self.species(t, pressure, true),
+                self.species(t, pressure, false),
+            ) {
+                (Ok((pl, ol)), Ok((pv, ov))) => {
+                    para_fraction * self.para.molar_mass * (pl.gibbs - pv.gibbs)
+                        + (1.0 - para_fraction) * self.ortho.molar_mass * (ol.gibbs - ov.gibbs)
+                }
+                _ => f64::NAN,
+            }
+        };
+        let (low, high) = (tp.min(to), tp.max(to));
+        crate::numeric::bracketed_root(
+            "ortho–para solution saturation temperature",
+            gap,
+            low,
+            high,
+            1e-11 * high,
+        )
+    }
+
+    /// The saturated liquid and vapour solutions at p for para fraction x.
+    pub fn saturated_pair(&self, pressure: f64, para_fraction: f64) -> Result<SaturatedPair> {
+        self.check_saturation_pressure(pressure)?;
+        let t = self.saturation_temperature(pressure, para_fraction)?;
+        let (pl, ol) = self.species(t, pressure, true)?;
+        let (pv, ov) = self.species(t, pressure, false)?;
+        Ok(SaturatedPair {
+            liquid: self.mix(para_fraction, &pl, &ol),
+            vapour: self.mix(para_fraction, &pv, &ov),
+        })
+    }
+
+    fn check_saturation_pressure(&self, pressure: f64) -> Result<()> {
+        let low = self
+            .para
+            .triple_pressures
+            .0
+            .max(self.ortho.triple_pressures.0);
+        if !(pressure >= low && pressure <= BLEND_SATURATION_PRESSURE_MAX) {
+            return Err(Error::OutOfRange {
+                fluid: "hydrogen (ortho–para solution)".into(),
+                what: format!("saturation at p = {:.4} kPa", pressure / 1e3),
+                detail: format!(
+                    "the solution has two phases from {:.3} kPa to {:.0} kPa",
+                    low / 1e3,
+                    BLEND_SATURATION_PRESSURE_MAX / 1e3
+                ),
+            });
+        }
+        Ok(())
+    }
+
+    /// True when (T, p) lies where the blend can have two phases.
+    fn has_saturation(&self, temperature: f64, pressure: f64) -> bool {
+        let t_high = self
+            .ortho
+            .critical
+            .temperature
+            .max(self.para.critical.temperature);
+        temperature < t_high && pressure <= BLEND_SATURATION_PRESSURE_MAX
+    }
+
+    /// The solution's properties at (T, p, x); `liquid` chooses the side below the
+    /// saturation temperature (ignored where there is no saturation).
+    fn tp_properties(&self, t: f64, p: f64, x: f64, liquid: bool) -> Result<Properties> {
+        let (para, ortho) = self.species(t, p, liquid)?;
+        let properties = self.mix(x, &para, &ortho);
+        if [
+            properties.enthalpy,
+            properties.entropy,
+            properties.density,
+            properties.cp,
+        ]
+        .iter()
+        .all(|v| v.is_finite())
+        {
+            Ok(properties)
+        } else {
+            Err(Error::ImpossibleState {
+                fluid: "hydrogen (ortho–para solution)".into(),
+                detail: format!("no finite properties at T = {t} K, p = {p} Pa, para fraction {x}"),
+            })
+        }
+    }
+
+    /// Which side of saturation (T, p) lies on, for para fraction x: `true` for the
+    /// liquid side. Above the saturation range, the dense side (false is returned for
+    /// gas-like states above the critical temperature).
+    fn liquid_side(&self, t: f64, p: f64, x: f64) -> Result<bool> {
+        if !self.has_saturation(t, p) {
+            return Ok(p > self.normal.critical.pressure && t < self.normal.critical.temperature);
+        }
+        let para_sat = self.para.saturation_at_pressure(p)?.liquid.temperature;
+        let ortho_sat = self.ortho.saturation_at_pressure(p)?.liquid.temperature;
+        if t < para_sat.min(ortho_sat) {
+            return Ok(true);
+        }
+        if t > para_sat.max(ortho_sat) {
+            return Ok(false);
+        }
+        Ok(t < self.saturation_temperature(p, x)?)
+    }
+
+    fn state(&self, properties: Properties, liquid_side: bool, x: f64) -> State {
+        State::single(self.normal, properties, liquid_side).with_para_fraction(x)
+    }
+
+    /// The state at (T, p) with para fraction x.
+    pub fn state_tp(&self, temperature: f64, pressure: f64, para_fraction: f64) -> Result<State> {
+        self.check(temperature, pressure, para_fraction)?;
+        let liquid = self.liquid_side(temperature, pressure, para_fraction)?;
+        let properties = self.tp_properties(temperature, pressure, para_fraction, liquid)?;
+        Ok(self.state(properties, liquid, para_fraction))
+    }
+
+    /// The saturated state at p with vapour quality q and para fraction x.
+    pub fn state_p_quality(
+        &self,
+        pressure: f64,
+        quality: f64,
+        para_fraction: f64,
+    ) -> Result<State> {
+        if !(0.0..=1.0).contains(&quality) {
+            return Err(Error::OutOfRange {
+                fluid: "hydrogen".into(),
+                what: format!("quality {quality}"),
+                detail: "a quality lies from 0 to 1".into(),
+            });
+        }
+        let pair = self.saturated_pair(pressure, para_fraction)?;
+        Ok(State::two_phase(self.normal, pair, quality).with_para_fraction(para_fraction))
+    }
+
+    /// The temperature range of single-phase searches at p: both species' ranges.
+    fn temperature_range(&self) -> (f64, f64) {
+        (
+            self.para.temperature_min.max(self.ortho.temperature_min),
+            self.para.temperature_max.min(self.ortho.temperature_max),
+        )
+    }
+
+    /// The state at p where `property` (enthalpy or entropy, picked by `pick`) equals
+    /// `target`, with the para fraction a function of temperature.
+    fn state_p_property(
+        &self,
+        pressure: f64,
+        target: f64,
+        para_at: &dyn Fn(f64) -> f64,
+        pick: fn(&Properties) -> f64,
+        what: &'static str,
+    ) -> Result<State> {
+        let (mut low, mut high) = self.temperature_range();
+        // Not into the solid of either species.
+        for species in [self.para, self.ortho] {
+            if let Some(melting) = species.melting_temperature(pressure) {
+                low = low.max(melting);
+            }
+        }
+        low *= 1.0 + 1e-6;
+        let mut liquid_below = false;
+        if pressure <= BLEND_SATURATION_PRESSURE_MAX {
+            let x = self.two_phase_para_fraction(pressure, para_at)?;
+            let pair = self.saturated_pair(pressure, x)?;
+            let (l, v) = (pick(&pair.liquid), pick(&pair.vapour));
+            if target >= l && target <= v {
+                let quality = (target - l) / (v - l);
+                return Ok(State::two_phase(self.normal, pair, quality).with_para_fraction(x));
+            }
+            let t_sat = pair.liquid.temperature;
+            if target < l {
+                high = t_sat;
+                liquid_below = true;
+            } else {
+                low = t_sat;
+            }
+        }
+        let value = |t: f64| -> f64 {
+            let x = para_at(t);
+            let liquid = if liquid_below {
+                true
+            } else {
+                self.liquid_side(t, pressure, x).unwrap_or(false)
+            };
+            self.tp_properties(t, pressure, x, liquid)
+                .map(|props| pick(&props) - target)
+                .unwrap_or(f64::NAN)
+        };
+        let (f_low, f_high) = (value(low), value(high));
+        if !(f_low <= 0.0 && f_high >= 0.0) {
+            return Err(Error::OutOfRange {
+                fluid: "hydrogen (ortho–para solution)".into(),
+                what: format!("{what} {target:.6} at p = {:.6} MPa", pressure / 1e6),
+                detail: format!("no state between {low:.4} K and {high:.4} K has that {what}"),
+            });
+        }
+        let t = crate::numeric::bracketed_root(
+            "ortho–para solution temperature from pressure",
+            value,
+            low,
+            high,
+            1e-12 * high,
+        )?;
+        let x = para_at(t);
+        self.state_tp(t, pressure, x)
+    }
+
+    /// The para fraction of the two-phase solution at p along a para-fraction path:
+    /// a fixed point x = path(T_sat(p, x)) (one step for a fixed fraction).
+    fn two_phase_para_fraction(&self, pressure: f64, para_at: &dyn Fn(f64) -> f64) -> Result<f64> {
+        let mut x = para_at(
+            self.normal
+                .saturation_at_pressure(pressure)
+                .map(|s| s.liquid.temperature)
+                .unwrap_or(20.0),
+        );
+        const CAP: usize = 40;
+        for _ in 0..CAP {
+            let next = para_at(self.saturation_temperature(pressure, x)?);
+            if (next - x).abs() <= 1e-14 {
+                return Ok(next);
+            }
+            x = next;
+        }
+        Err(Error::NoConvergence {
+            solver: "para fraction of a boiling solution on an equilibrium path",
+            iterations: CAP,
+            residual: (para_at(self.saturation_temperature(pressure, x)?) - x).abs(),
+            context: format!(" at p = {pressure} Pa"),
+        })
+    }
+
+    /// The state at (p, h) with para fraction x.
+    pub fn state_ph(&self, pressure: f64, enthalpy: f64, para_fraction: f64) -> Result<State> {
+        self.check(self.temperature_range().1, pressure, para_fraction)?;
+        self.state_p_property(
+            pressure,
+            enthalpy,
+            &|_| para_fraction,
+            |p| p.enthalpy,
+            "enthalpy",
+        )
+    }
+
+    /// The state at (p, s) with para fraction x.
+    pub fn state_ps(&self, pressure: f64, entropy: f64, para_fraction: f64) -> Result<State> {
+        self.check(self.temperature_range().1, pressure, para_fraction)?;
+        self.state_p_property(
+            pressure,
+            entropy,
+            &|_| para_fraction,
+            |p| p.entropy,
+            "entropy",
+        )
+    }
+
+    /// The state at (p, h) in ortho–para equilibrium (x = x_eq(T)), as on a catalyst.
+    pub fn state_ph_equilibrium(&self, pressure: f64, enthalpy: f64) -> Result<State> {
+        self.state_ph_path(pressure, enthalpy, &spin::equilibrium_para_fraction)
+    }
+
+    /// The state at (p, h) whose para fraction is the given function of its
+    /// temperature (a fraction of the way to equilibrium, for instance). The
+    /// enthalpy along the path must rise with temperature, as it does for any path
+    /// between the frozen and the equilibrium fraction.
+    pub fn state_ph_path(
+        &self,
+        pressure: f64,
+        enthalpy: f64,
+        para_at: &dyn Fn(f64) -> f64,
+    ) -> Result<State> {
+        self.check(self.temperature_range().1, pressure, 0.5)?;
+        self.state_p_property(pressure, enthalpy, para_at, |p| p.enthalpy, "enthalpy")
+    }
+
+    /// The ortho − para enthalpy difference at (T, p) in the phase the blend of
+    /// para fraction x would have there, J/kg.
+    pub fn ortho_para_enthalpy_difference(
+        &self,
+        temperature: f64,
+        pressure: f64,
+        para_fraction: f64,
+    ) -> Result<f64> {
+        self.check(temperature, pressure, para_fraction)?;
+        let liquid = self.liquid_side(temperature, pressure, para_fraction)?;
+        let (para, ortho) = self.species(temperature, pressure, liquid)?;
+        Ok(self.ortho_minus_para(&para, &ortho))
+    }
+
+    /// The ortho − para enthalpy difference of the liquid at (T, p), J/kg: what a
+    /// kilogram of ortho converting in the liquid releases.
+    pub fn liquid_conversion_enthalpy(&self, temperature: f64, pressure: f64) -> Result<f64> {
+        let (para, ortho) = self.species(temperature, pressure, true)?;
+        Ok(self.ortho_minus_para(&para, &ortho))
+    }
+}
