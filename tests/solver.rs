@@ -286,6 +286,7 @@ fn exchanger_finds_an_internal_pinch() {
         cold_pressure_drop: 0.0,
         heat_leak: 0.0,
         segments: 50,
+        catalyst: None,
     };
     let context = Context {
         detailed: true,

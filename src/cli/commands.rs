@@ -464,6 +464,9 @@ pub struct StateArgs {
     pub first: String,
     /// Second specification.
     pub second: String,
+    /// For hydrogen: para=equilibrium or para=<fraction>, the ortho–para solution
+    /// instead of frozen normal hydrogen.
+    pub para: Option<String>,
     #[command(flatten)]
     pub format: FormatArgs,
 }
@@ -472,7 +475,22 @@ pub struct StateArgs {
 pub fn state(args: &StateArgs) -> Result<Output, Failure> {
     let format = args.format.choose("state", &[Format::Text, Format::Json])?;
     let fluid = fluids::fluid(&args.fluid)?;
-    let state = fluid.state_from(Spec::parse(&args.first)?, Spec::parse(&args.second)?)?;
+    let (first, second) = (Spec::parse(&args.first)?, Spec::parse(&args.second)?);
+    let state = match &args.para {
+        None => fluid.state_from(first, second)?,
+        Some(_) if fluid.name != "hydrogen" => {
+            return Err(cryochain::error::Error::Input(format!(
+                "para= applies to hydrogen only, not to {}",
+                fluid.name
+            ))
+            .into())
+        }
+        Some(text) => fluids::blend::Blend::get()?.state_from(
+            first,
+            second,
+            fluids::blend::ParaChoice::parse(text)?,
+        )?,
+    };
     Ok(Output::of(match format {
         Format::Json => report::state::json(&state),
         _ => report::state::text(&state),

@@ -128,10 +128,19 @@ impl Converter {
         let x_in = catalysed_para_fraction(inlet, unit)?;
         let blend = Blend::get()?;
         match self.mode {
-            ConverterMode::Isothermal => {
-                let x = self.para_fraction(x_in, inlet.temperature);
-                blend.state_tp(inlet.temperature, pressure, x)
-            }
+            // A boiling or saturated inlet keeps its vapour quality: the heat taken
+            // out is the conversion heat, and the boiling temperature follows the
+            // new para fraction (a saturated liquid held at its old boiling
+            // temperature would otherwise flash to vapour).
+            ConverterMode::Isothermal => match inlet.quality {
+                Some(quality) => blend.state_p_quality_path(pressure, quality, &|t| {
+                    self.para_fraction(x_in, t)
+                }),
+                None => {
+                    let x = self.para_fraction(x_in, inlet.temperature);
+                    blend.state_tp(inlet.temperature, pressure, x)
+                }
+            },
             ConverterMode::Adiabatic => match self.target {
                 ConverterTarget::Fraction(x) => blend.state_ph(pressure, inlet.enthalpy, x),
                 _ => blend.state_ph_path(pressure, inlet.enthalpy, &|t| {

@@ -19,6 +19,7 @@
 
 use super::density::Branch;
 use super::fluid::{Fluid, Properties};
+use super::spec::{Property, Spec};
 use super::spin;
 use super::state::{SaturatedPair, State};
 use crate::error::{Error, Result};
@@ -226,7 +227,9 @@ impl Blend {
         liquid: bool,
     ) -> Result<f64> {
         let factors = fluid.tau_factors(temperature);
-        if temperature >= fluid.saturation_temperature_max() {
+        // Above the critical temperature or pressure the isotherm has one root.
+        if temperature >= fluid.saturation_temperature_max() || pressure >= fluid.critical.pressure
+        {
             return fluid.density_on_branch(
                 &factors,
                 temperature,
@@ -617,5 +620,108 @@ impl Blend {
     pub fn liquid_conversion_enthalpy(&self, temperature: f64, pressure: f64) -> Result<f64> {
         let (para, ortho) = self.species(temperature, pressure, true)?;
         Ok(self.ortho_minus_para(&para, &ortho))
+    }
+
+    /// The state at (p, s) whose para fraction is the given function of temperature.
+    pub fn state_ps_path(
+        &self,
+        pressure: f64,
+        entropy: f64,
+        para_at: &dyn Fn(f64) -> f64,
+    ) -> Result<State> {
+        self.check(self.temperature_range().1, pressure, 0.5)?;
+        self.state_p_property(pressure, entropy, para_at, |p| p.entropy, "entropy")
+    }
+
+    /// The saturated state at p with quality q whose para fraction is the given
+    /// function of temperature (the boiling temperature depends on the fraction).
+    pub fn state_p_quality_path(
+        &self,
+        pressure: f64,
+        quality: f64,
+        para_at: &dyn Fn(f64) -> f64,
+    ) -> Result<State> {
+        self.check_saturation_pressure(pressure)?;
+        let x = self.two_phase_para_fraction(pressure, para_at)?;
+        self.state_p_quality(pressure, quality, x)
+    }
+
+    /// The state from two specifications with a para fraction: fixed, or the
+    /// equilibrium one at the state's temperature. Supported pairs: (T, p), (p, h),
+    /// (p, s) and (p, x).
+    pub fn state_from(&self, first: Spec, second: Spec, para: ParaChoice) -> Result<State> {
+        use super::spec::Property::*;
+        let (a, b) = (first, second);
+        let pair = |x: Property, y: Property| -> Option<(f64, f64)> {
+            if a.property == x && b.property == y {
+                Some((a.value, b.value))
+            } else if a.property == y && b.property == x {
+                Some((b.value, a.value))
+            } else {
+                None
+            }
+        };
+        let path = |t: f64| match para {
+            ParaChoice::Fixed(x) => x,
+            ParaChoice::Equilibrium => spin::equilibrium_para_fraction(t),
+        };
+        if let Some((t, p)) = pair(Temperature, Pressure) {
+            return self.state_tp(t, p, path(t));
+        }
+        if let Some((p, h)) = pair(Pressure, Enthalpy) {
+            return self.state_ph_path(p, h, &path);
+        }
+        if let Some((p, s)) = pair(Pressure, Entropy) {
+            return self.state_ps_path(p, s, &path);
+        }
+        if let Some((p, x)) = pair(Pressure, Quality) {
+            return self.state_p_quality_path(p, x, &path);
+        }
+        Err(Error::Input(format!(
+            "with a para fraction, the pair {} and {} is not supported; give T and p, p and h, p and s, or p and x",
+            a.property.key(),
+            b.property.key()
+        )))
+    }
+}
+
+/// How the para fraction of a hydrogen state is given.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum ParaChoice {
+    /// A fixed para mole fraction.
+    Fixed(f64),
+    /// The equilibrium fraction at the state's temperature.
+    Equilibrium,
+}
+
+impl ParaChoice {
+    /// Reads `para=equilibrium` or `para=0.5` (also `para=50%`).
+    pub fn parse(text: &str) -> Result<ParaChoice> {
+        let bad = || {
+            Error::Input(format!(
+                "'{text}': give the para fraction as para=equilibrium or para=<fraction 0 to 1>, such as para=0.5"
+            ))
+        };
+        let value = text
+            .trim()
+            .strip_prefix("para=")
+            .ok_or_else(bad)?
+            .trim();
+        if value == "equilibrium" {
+            return Ok(ParaChoice::Equilibrium);
+        }
+        let number = match value.strip_suffix('%') {
+            Some(percent) => percent.trim().parse::<f64>().map(|v| v / 100.0),
+            None => value.parse::<f64>(),
+        }
+        .map_err(|_| bad())?;
+        if !(0.0..=1.0).contains(&number) {
+            return Err(Error::OutOfRange {
+                fluid: "hydrogen".into(),
+                what: format!("para fraction {number}"),
+                detail: "a para fraction lies from 0 to 1".into(),
+            });
+        }
+        Ok(ParaChoice::Fixed(number))
     }
 }

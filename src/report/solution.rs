@@ -574,29 +574,8 @@ pub fn text(solution: &Solution) -> String {
         ("flow [g/s]", Align::Right),
         ("phase", Align::Left),
     ]);
-    let any_para = solution
-        .streams
-        .iter()
-        .any(|f| f.state.shown_para_fraction().is_some());
-    if any_para {
-        table = TextTable::new(&[
-            ("stream", Align::Left),
-            ("fluid", Align::Left),
-            ("T [K]", Align::Right),
-            ("p [bar]", Align::Right),
-            ("h [kJ/kg]", Align::Right),
-            ("s [kJ/kgK]", Align::Right),
-            ("flow [g/s]", Align::Right),
-            ("phase", Align::Left),
-            ("para", Align::Right),
-        ]);
-    }
     for (name, f) in solution.stream_names.iter().zip(&solution.streams) {
-        let para = f
-            .state
-            .shown_para_fraction()
-            .map_or(String::new(), |x| format!("{x:.4}"));
-        let mut row = vec![
+        table.row(vec![
             name.clone(),
             f.state.fluid().name.clone(),
             format!("{:.3}", f.state.temperature),
@@ -605,13 +584,10 @@ pub fn text(solution: &Solution) -> String {
             format!("{:.4}", f.state.entropy / 1e3),
             format!("{:.4}", f.flow * 1e3),
             phase_label(&f.state),
-        ];
-        if any_para {
-            row.push(para);
-        }
-        table.row(row);
+        ]);
     }
     out.push_str(&table.render());
+    out.push_str(&spin_table(solution));
     out.push_str("\nEquipment\n");
     let mut table = TextTable::new(&[
         ("id", Align::Left),
@@ -668,4 +644,43 @@ pub fn text(solution: &Solution) -> String {
     ]);
     out.push_str(&table.render());
     out
+}
+
+/// The para fraction of every hydrogen stream beside the equilibrium value at
+/// its temperature, or nothing when the flowsheet carries no hydrogen.
+fn spin_table(solution: &Solution) -> String {
+    let mut table = TextTable::new(&[
+        ("stream", Align::Left),
+        ("T [K]", Align::Right),
+        ("para", Align::Right),
+        ("equilibrium", Align::Right),
+        ("spin state", Align::Left),
+    ]);
+    let mut any = false;
+    for (name, f) in solution.stream_names.iter().zip(&solution.streams) {
+        let Some(para) = f.state.shown_para_fraction() else {
+            continue;
+        };
+        any = true;
+        let spin_state = match (f.state.para_fraction, f.state.fluid().name.as_str()) {
+            (Some(_), _) => "followed",
+            (None, "hydrogen") => "frozen normal",
+            (None, "parahydrogen") => "pure para",
+            _ => "pure ortho",
+        };
+        table.row(vec![
+            name.clone(),
+            format!("{:.3}", f.state.temperature),
+            format!("{para:.4}"),
+            format!(
+                "{:.4}",
+                crate::fluids::spin::equilibrium_para_fraction(f.state.temperature)
+            ),
+            spin_state.to_string(),
+        ]);
+    }
+    if !any {
+        return String::new();
+    }
+    format!("\nHydrogen para fraction\n{}", table.render())
 }

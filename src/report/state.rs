@@ -44,6 +44,13 @@ pub struct StateRecord {
     pub phase: String,
     /// Vapour mass fraction in two phase.
     pub quality: Option<f64>,
+    /// Para mole fraction, for a state of the ortho–para solution only.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub para_fraction: Option<f64>,
+    /// The equilibrium para fraction at the state's temperature, with
+    /// `para_fraction` only.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub equilibrium_para_fraction: Option<f64>,
 }
 
 impl StateRecord {
@@ -64,6 +71,10 @@ impl StateRecord {
             compressibility: state.compressibility(),
             phase: state.phase.name().to_string(),
             quality: state.quality,
+            para_fraction: state.para_fraction,
+            equilibrium_para_fraction: state
+                .para_fraction
+                .map(|_| crate::fluids::spin::equilibrium_para_fraction(state.temperature)),
         }
     }
 }
@@ -138,6 +149,18 @@ pub fn text(state: &State) -> String {
                 .map_or("— (single phase)".to_string(), |x| format!("{x:.6}")),
         ),
     ];
+    let mut rows = rows;
+    if let Some(x) = state.para_fraction {
+        rows.push(("para fraction", format!("{x:.6}")));
+        rows.push((
+            "equilibrium para",
+            format!(
+                "{:.6} at {:.4} K",
+                crate::fluids::spin::equilibrium_para_fraction(state.temperature),
+                state.temperature
+            ),
+        ));
+    }
     for (name, value) in rows {
         out.push_str(&format!("  {name:<22}{value}\n"));
     }
@@ -157,11 +180,20 @@ pub fn text(state: &State) -> String {
             pair.vapour.entropy / 1e3
         ));
     }
-    out.push_str(&format!("  equation of state     {}\n", fluid.source_key));
-    out.push_str(&format!(
-        "  reference state       {}\n",
-        reference_state_words(fluid)
-    ));
+    if state.para_fraction.is_some() {
+        out.push_str(
+            "  equation of state     ideal solution of Leachman et al. 2009 para and ortho\n",
+        );
+        out.push_str(
+            "  reference state       aligned datum: the 25 % solution equals normal hydrogen at 300 K, 1 atm\n",
+        );
+    } else {
+        out.push_str(&format!("  equation of state     {}\n", fluid.source_key));
+        out.push_str(&format!(
+            "  reference state       {}\n",
+            reference_state_words(fluid)
+        ));
+    }
     out
 }
 

@@ -170,6 +170,8 @@ pub fn assemble(
     let mut energy_in = 0.0;
     let mut energy_out = 0.0;
     let mut energy_scale = 0.0;
+    // Enthalpy carried across the boundary: the scale when no work or heat enters.
+    let mut boundary_enthalpy = 0.0;
     // Per flow network: raw-gas feeds (mass, exergy) and products (mass, exergy).
     let mut raw_feeds: HashMap<usize, (f64, f64)> = HashMap::new();
     let mut liquids: HashMap<usize, (f64, f64)> = HashMap::new();
@@ -188,6 +190,7 @@ pub fn assemble(
                 for &(i, f) in &outflow {
                     feed_mass += f.flow;
                     energy_in += f.flow * f.state.enthalpy;
+                    boundary_enthalpy += (f.flow * f.state.enthalpy).abs();
                     let exergy = f.flow * dead.exergy(f)?;
                     if performance.precooling_work > 0.0 {
                         // Bought cryogen: charged at its work equivalent.
@@ -205,6 +208,7 @@ pub fn assemble(
                 for &(i, f) in &inflow {
                     product_mass += f.flow;
                     energy_out += f.flow * f.state.enthalpy;
+                    boundary_enthalpy += (f.flow * f.state.enthalpy).abs();
                     let exergy = f.flow * dead.exergy(f)?;
                     let sink = match role {
                         ProductRole::Liquid => {
@@ -301,6 +305,11 @@ pub fn assemble(
     } else {
         0.0
     };
+    // Relative to the work and heat that cross the boundary; a plant with none
+    // (an adiabatic cold box) is measured against the enthalpy its streams carry.
+    if energy_scale == 0.0 {
+        energy_scale = boundary_enthalpy;
+    }
     s.energy_closure = (energy_in - energy_out) / energy_scale.max(1e-300);
     let accounted =
         s.minimum_work + s.exergy_lost + s.exergy_destroyed + s.precooling_exergy_outside;
