@@ -702,11 +702,7 @@ impl ParaChoice {
                 "'{text}': give the para fraction as para=equilibrium or para=<fraction 0 to 1>, such as para=0.5"
             ))
         };
-        let value = text
-            .trim()
-            .strip_prefix("para=")
-            .ok_or_else(bad)?
-            .trim();
+        let value = text.trim().strip_prefix("para=").ok_or_else(bad)?.trim();
         if value == "equilibrium" {
             return Ok(ParaChoice::Equilibrium);
         }
