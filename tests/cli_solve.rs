@@ -54,7 +54,9 @@ fn with_no_file_it_solves_the_built_in_demo_and_says_so() {
     let (code, out, err) = cryochain(&["solve"]);
     assert_eq!(code, 0, "{err}");
     assert!(err.contains("built-in demo"), "{err}");
-    assert!(out.contains("LN2-precooled normal-hydrogen"));
+    assert!(
+        out.contains("LN2-precooled hydrogen Linde-Hampson liquefier with ortho-para conversion")
+    );
 }
 
 #[test]

@@ -55,21 +55,22 @@ fn close(a: f64, b: f64, relative: f64) -> bool {
     (a - b).abs() <= relative * b.abs().max(1e-300)
 }
 
-/// The demos' minimum work is the liquid's exergy less the feed's (CoolProp), the
+/// The demos' minimum work (the hydrogen ones in their frozen-normal versions, whose
+/// hydrogen is CoolProp's normal-hydrogen equation) is the liquid's exergy less the feed's (CoolProp), the
 /// figure of merit is it over shaft plus precooling work, and the exergy account's
 /// rows sum to that work.
 #[test]
 fn minimum_work_is_liquid_less_feed_exergy() {
     let cases = [
         (
-            "flowsheets/hydrogen-ln2-precooled.yaml",
+            "tests/flowsheets/hydrogen-ln2-precooled-frozen-normal.yaml",
             &[][..],
             "hydrogen-liquid-1.3bar",
             "hydrogen-feed-1.2bar",
             "hydrogen-dead",
         ),
         (
-            "flowsheets/hydrogen-ln2-precooled.yaml",
+            "tests/flowsheets/hydrogen-ln2-precooled-frozen-normal.yaml",
             &["makeup.pressure=20bar"][..],
             "hydrogen-liquid-1.3bar",
             "hydrogen-feed-20bar",
@@ -97,7 +98,7 @@ fn minimum_work_is_liquid_less_feed_exergy() {
             "nitrogen-dead",
         ),
         (
-            "flowsheets/cascade-nitrogen-hydrogen.yaml",
+            "tests/flowsheets/cascade-nitrogen-hydrogen-frozen-normal.yaml",
             &[][..],
             "hydrogen-liquid-1.3bar",
             "hydrogen-feed-1.2bar",
@@ -126,18 +127,21 @@ fn minimum_work_is_liquid_less_feed_exergy() {
     }
 }
 
-/// The hydrogen demo's figure of merit, 0.0846 (the liquid's exergy less the 209
+/// The frozen-normal hydrogen demo's figure of merit, 0.0846 (the liquid's exergy less the 209
 /// kJ/kg its 1.2 bar feed brings), and at a 20 bar feed 0.0596 (the old definition,
 /// the liquid's exergy alone, gave 0.0861 and 0.0863).
 #[test]
 fn hydrogen_demo_figures_of_merit() {
-    let (_, base) = solved("flowsheets/hydrogen-ln2-precooled.yaml", &[]);
+    let (_, base) = solved(
+        "tests/flowsheets/hydrogen-ln2-precooled-frozen-normal.yaml",
+        &[],
+    );
     let fom = base.summary.figure_of_merit.unwrap();
     assert!((fom - 0.0846).abs() < 5e-5, "{fom}");
     let feed = exergy("hydrogen-feed-1.2bar", "hydrogen-dead");
     assert!((feed - 209.0e3).abs() < 1.0e3, "{feed}");
     let (_, high) = solved(
-        "flowsheets/hydrogen-ln2-precooled.yaml",
+        "tests/flowsheets/hydrogen-ln2-precooled-frozen-normal.yaml",
         &["makeup.pressure=20bar"],
     );
     let fom = high.summary.figure_of_merit.unwrap();
@@ -180,7 +184,7 @@ fn a_cryogen_feed_is_charged() {
 /// point is warned of.
 #[test]
 fn a_pumped_bath_pays_for_its_pump() {
-    let file = "flowsheets/hydrogen-ln2-precooled.yaml";
+    let file = "tests/flowsheets/hydrogen-ln2-precooled-frozen-normal.yaml";
     let (plant, solution) = solved(file, &["ln2-bath.bath_pressure=0.5bar"]);
     let bath = solution.units.iter().find(|u| u.id == "ln2-bath").unwrap();
     let Details::Precooler {

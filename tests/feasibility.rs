@@ -11,7 +11,8 @@ use cryochain::study::optimize::{optimize, Bounded, Objective};
 use cryochain::study::{sweep, to_csv, Variable};
 use std::process::Command;
 
-const DEMO: &str = "flowsheets/hydrogen-ln2-precooled.yaml";
+/// The hydrogen demo with frozen-normal hydrogen, the case these figures were measured on.
+const DEMO: &str = "tests/flowsheets/hydrogen-ln2-precooled-frozen-normal.yaml";
 
 fn demo() -> String {
     std::fs::read_to_string(DEMO).unwrap()

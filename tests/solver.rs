@@ -239,7 +239,7 @@ fn a_case_that_cannot_converge_names_its_tears_and_residual() {
         "{text}"
     );
     assert!(
-        text.contains("tear streams:") && text.contains("separator.vapor"),
+        text.contains("tear streams:") && text.contains("warm-hx.cold-out"),
         "{text}"
     );
     assert!(text.contains("last residual"), "{text}");

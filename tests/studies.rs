@@ -187,12 +187,13 @@ fn a_case_that_does_not_converge_is_reported_in_its_row() {
 }
 
 /// Robustness across a wide design space, including the edge where the loop stops
-/// making liquid. Measured: all but one of these 100 cases converge; the one left
+/// making liquid (the hydrogen demo with frozen-normal hydrogen; the converting demo
+/// is measured in tests/ortho_para.rs). Measured: all but one of these 100 cases converge; the one left
 /// (20 bar, 106 K, where the loop drifts towards making no liquid) stalls near a
 /// residual of 2e-5 under all three methods and is reported as such.
 #[test]
 fn a_wide_sweep_converges_almost_everywhere() {
-    let file = "flowsheets/hydrogen-ln2-precooled.yaml";
+    let file = "tests/flowsheets/hydrogen-ln2-precooled-frozen-normal.yaml";
     let vars = [
         Variable::parse_range("compressor.outlet_pressure=20bar..300bar:10").unwrap(),
         Variable::parse_range("ln2-bath.outlet_temperature=79.5K..200K:10").unwrap(),

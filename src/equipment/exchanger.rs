@@ -595,15 +595,13 @@ pub fn exchange(
     };
     if !context.detailed && !degenerate {
         // Outlets only: no profile needed for this pass.
-        let hot_out = sides.hot_path.state(
+        let hot_out = sides.hot_path.state_ph(
             sides.hot_outlet_pressure(),
             hot.state.enthalpy - duty / hot.flow,
-            &hot.state,
         )?;
-        let cold_out = sides.cold_path.state(
+        let cold_out = sides.cold_path.state_ph(
             sides.cold_outlet_pressure(),
             cold.state.enthalpy + (duty + design.heat_leak) / cold.flow,
-            &cold.state,
         )?;
         let performance = Performance {
             heat_in: vec![(design.heat_leak, context.ambient)],

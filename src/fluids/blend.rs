@@ -227,9 +227,8 @@ impl Blend {
         liquid: bool,
     ) -> Result<f64> {
         let factors = fluid.tau_factors(temperature);
-        // Above the critical temperature or pressure the isotherm has one root.
-        if temperature >= fluid.saturation_temperature_max() || pressure >= fluid.critical.pressure
-        {
+        // Above the critical temperature the isotherm has one root.
+        if temperature >= fluid.saturation_temperature_max() {
             return fluid.density_on_branch(
                 &factors,
                 temperature,
@@ -240,7 +239,10 @@ impl Blend {
             );
         }
         let (liquid_density, vapour_density) = fluid.approximate_saturated_densities(temperature);
-        if liquid {
+        // Below the critical temperature and above the critical pressure the one
+        // stable root is the compressed liquid, denser than the saturated liquid (a
+        // search from the ideal-gas density can land inside the equation's loop).
+        if liquid || pressure >= fluid.critical.pressure {
             let critical = fluid.critical.density;
             let low = (0.8 * liquid_density).max(critical);
             fluid.solve_density(

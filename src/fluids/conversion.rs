@@ -44,6 +44,14 @@ impl StreamPath {
         }
     }
 
+    /// The state on the path at (p, h) from no neighbour (a plain (p, h) flash).
+    pub fn state_ph(&self, pressure: f64, enthalpy: f64) -> Result<State> {
+        match self {
+            StreamPath::Frozen(material) => material.state_ph(pressure, enthalpy),
+            StreamPath::Catalytic(blend) => blend.state_ph_equilibrium(pressure, enthalpy),
+        }
+    }
+
     /// The state on the path at (T, p), nudged off the saturation line where (T, p)
     /// lies on it.
     pub fn state_at(&self, temperature: f64, pressure: f64) -> Result<State> {

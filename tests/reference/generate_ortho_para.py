@@ -262,6 +262,15 @@ def main():
                 x = x_eq(t)
         t, (hl, sl, _), _ = saturated(ATM, x)
         rows.append((label, x, t, (hl - hf) - t0 * (sl - sf)))
+    # The demo's product (flowsheets/hydrogen-ln2-precooled.yaml): equilibrium
+    # saturated liquid at 1.3 bar, from normal hydrogen fed at 300 K, 1.2 bar.
+    hf12, sf12, _ = blend(t0, 1.2e5, 0.25, False)
+    x = 0.998
+    for _ in range(50):
+        t, _, _ = saturated(1.3e5, x)
+        x = x_eq(t)
+    t, (hl, sl, _), _ = saturated(1.3e5, x)
+    rows.append(("equilibrium-liquid-1.3bar-from-1.2bar", x, t, (hl - hf12) - t0 * (sl - sf12)))
     NORMAL.update(CP.PT_INPUTS, ATM, t0)
     hn, sn = NORMAL.hmass(), NORMAL.smass()
     NORMAL.update(CP.PQ_INPUTS, ATM, 0.0)
