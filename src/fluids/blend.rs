@@ -327,25 +327,35 @@ impl Blend {
         if para_fraction <= 0.0 {
             return Ok(to);
         }
-        let gap = |t: f64| -> f64 {
+        // g_liquid − g_vapour of the solution per mole, rising with T at the slope
+        // s_vapour − s_liquid: Newton steps from the mole-weighted boiling point.
+        let gap = |t: f64| -> (f64, f64) {
             match (
                 self.species(t, pressure, true),
                 self.species(t, pressure, false),
             ) {
                 (Ok((pl, ol)), Ok((pv, ov))) => {
-                    para_fraction * self.para.molar_mass * (pl.gibbs - pv.gibbs)
-                        + (1.0 - para_fraction) * self.ortho.molar_mass * (ol.gibbs - ov.gibbs)
+                    let (wp, wo) = (
+                        para_fraction * self.para.molar_mass,
+                        (1.0 - para_fraction) * self.ortho.molar_mass,
+                    );
+                    (
+                        wp * (pl.gibbs - pv.gibbs) + wo * (ol.gibbs - ov.gibbs),
+                        wp * (pv.entropy - pl.entropy) + wo * (ov.entropy - ol.entropy),
+                    )
                 }
-                _ => f64::NAN,
+                _ => (f64::NAN, f64::NAN),
             }
         };
         let (low, high) = (tp.min(to), tp.max(to));
-        crate::numeric::bracketed_root(
+        let start = para_fraction * tp + (1.0 - para_fraction) * to;
+        crate::numeric::bracketed_newton(
             "ortho–para solution saturation temperature",
             gap,
+            start.clamp(low, high),
             low,
             high,
-            1e-11 * high,
+            1e-13,
         )
     }
 
@@ -470,15 +480,23 @@ impl Blend {
         )
     }
 
-    /// The state at p where `property` (enthalpy or entropy, picked by `pick`) equals
-    /// `target`, with the para fraction a function of temperature.
+    /// The state at p where `property` equals `target`, with the para fraction a
+    /// function of temperature; `seed`, a temperature near the answer if one is
+    /// known (the neighbouring node of an exchanger profile).
+    ///
+    /// The two species' boiling temperatures at p bracket the solution's, so a
+    /// target above the vapour's value at the higher one (or below the liquid's at
+    /// the lower one) is single phase without finding the solution's saturation.
+    /// The temperature is then found by Newton steps on the property, its slope
+    /// from cp (plus the change of para fraction along the path), kept inside the
+    /// bracket by bisection, and the result's residual is checked.
     fn state_p_property(
         &self,
         pressure: f64,
         target: f64,
         para_at: &dyn Fn(f64) -> f64,
-        pick: fn(&Properties) -> f64,
-        what: &'static str,
+        property: Target,
+        seed: Option<f64>,
     ) -> Result<State> {
         let (mut low, mut high) = self.temperature_range();
         // Not into the solid of either species.
@@ -488,51 +506,140 @@ impl Blend {
             }
         }
         low *= 1.0 + 1e-6;
-        let mut liquid_below = false;
-        if pressure <= BLEND_SATURATION_PRESSURE_MAX {
-            let x = self.two_phase_para_fraction(pressure, para_at)?;
-            let pair = self.saturated_pair(pressure, x)?;
-            let (l, v) = (pick(&pair.liquid), pick(&pair.vapour));
-            if target >= l && target <= v {
-                let quality = (target - l) / (v - l);
-                return Ok(State::two_phase(self.normal, pair, quality).with_para_fraction(x));
-            }
-            let t_sat = pair.liquid.temperature;
-            if target < l {
-                high = t_sat;
-                liquid_below = true;
-            } else {
-                low = t_sat;
-            }
-        }
-        let value = |t: f64| -> f64 {
+        // The property less the target, and its slope along the path, at T on a side.
+        let evaluate = |t: f64, liquid: bool| -> (f64, f64) {
             let x = para_at(t);
-            let liquid = if liquid_below {
-                true
-            } else {
-                self.liquid_side(t, pressure, x).unwrap_or(false)
+            let Ok((para, ortho)) = self.species(t, pressure, liquid) else {
+                return (f64::NAN, f64::NAN);
             };
-            self.tp_properties(t, pressure, x, liquid)
-                .map(|props| pick(&props) - target)
-                .unwrap_or(f64::NAN)
+            let mixed = self.mix(x, &para, &ortho);
+            // The path's share of the slope: d(property)/dx · dx/dT, both by
+            // differences (the mix is arithmetic on the species' properties).
+            let step = 1e-6;
+            let x_other = if x + step <= 1.0 { x + step } else { x - step };
+            let along_x = (property.pick(&self.mix(x_other, &para, &ortho))
+                - property.pick(&mixed))
+                / (x_other - x);
+            let dt = 1e-6 * t;
+            let dx_dt = (para_at(t + dt) - para_at(t - dt)) / (2.0 * dt);
+            (
+                property.pick(&mixed) - target,
+                property.slope(&mixed) + along_x * dx_dt,
+            )
         };
-        let (f_low, f_high) = (value(low), value(high));
-        if !(f_low <= 0.0 && f_high >= 0.0) {
-            return Err(Error::OutOfRange {
-                fluid: "hydrogen (ortho–para solution)".into(),
-                what: format!("{what} {target:.6} at p = {:.6} MPa", pressure / 1e6),
-                detail: format!("no state between {low:.4} K and {high:.4} K has that {what}"),
-            });
+        let mut liquid_below = false;
+        // A point of the bracket's end with its value and slope, to start from.
+        let mut anchor: Option<(f64, (f64, f64))> = None;
+        if pressure <= BLEND_SATURATION_PRESSURE_MAX {
+            self.check_saturation_pressure(pressure)?;
+            let para_boiling = self
+                .para
+                .saturation_at_pressure(pressure)?
+                .liquid
+                .temperature;
+            let ortho_boiling = self
+                .ortho
+                .saturation_at_pressure(pressure)?
+                .liquid
+                .temperature;
+            let (first, last) = (
+                para_boiling.min(ortho_boiling),
+                para_boiling.max(ortho_boiling),
+            );
+            let at_last = evaluate(last, false);
+            if at_last.0 < 0.0 {
+                low = last;
+                anchor = Some((last, at_last));
+            } else {
+                let (value, slope) = evaluate(first, true);
+                if value > 0.0 {
+                    high = first;
+                    liquid_below = true;
+                    anchor = Some((first, (value, slope)));
+                } else {
+                    let x = self.two_phase_para_fraction(pressure, para_at)?;
+                    let pair = self.saturated_pair(pressure, x)?;
+                    let (l, v) = (property.pick(&pair.liquid), property.pick(&pair.vapour));
+                    if target >= l && target <= v {
+                        let quality = (target - l) / (v - l);
+                        return Ok(
+                            State::two_phase(self.normal, pair, quality).with_para_fraction(x)
+                        );
+                    }
+                    let t_sat = pair.liquid.temperature;
+                    if target < l {
+                        high = t_sat;
+                        liquid_below = true;
+                        anchor = Some((t_sat, (l - target, property.slope(&pair.liquid))));
+                    } else {
+                        low = t_sat;
+                        anchor = Some((t_sat, (v - target, property.slope(&pair.vapour))));
+                    }
+                }
+            }
         }
-        let t = crate::numeric::bracketed_root(
+        // Below the solution's two-phase limit the side is known from the
+        // bracket: liquid below the boiling temperature, vapour above it.
+        let side = |t: f64| {
+            if pressure <= BLEND_SATURATION_PRESSURE_MAX {
+                liquid_below
+            } else {
+                self.liquid_side(t, pressure, para_at(t)).unwrap_or(false)
+            }
+        };
+        let value_and_slope = |t: f64| evaluate(t, side(t));
+        let out_of_range = || Error::OutOfRange {
+            fluid: "hydrogen (ortho–para solution)".into(),
+            what: format!(
+                "{} {target:.6} at p = {:.6} MPa",
+                property.name(),
+                pressure / 1e6
+            ),
+            detail: format!(
+                "no state between {low:.4} K and {high:.4} K has that {}",
+                property.name()
+            ),
+        };
+        let inside = |t: f64| t > low && t < high;
+        let start = match (seed, anchor) {
+            (Some(t), _) if inside(t) => t,
+            (_, Some((t, (value, slope)))) if inside(t - value / slope) => t - value / slope,
+            _ => {
+                // No start known: the ends must bracket the target.
+                let (f_low, f_high) = (value_and_slope(low), value_and_slope(high));
+                if !(f_low.0 <= 0.0 && f_high.0 >= 0.0) {
+                    return Err(out_of_range());
+                }
+                let start = if -f_low.0 < f_high.0 {
+                    low - f_low.0 / f_low.1
+                } else {
+                    high - f_high.0 / f_high.1
+                };
+                if inside(start) {
+                    start
+                } else {
+                    0.5 * (low + high)
+                }
+            }
+        };
+        let t = crate::numeric::bracketed_newton(
             "ortho–para solution temperature from pressure",
-            value,
+            value_and_slope,
+            start,
             low,
             high,
-            1e-12 * high,
+            1e-13,
         )?;
         let x = para_at(t);
-        self.state_tp(t, pressure, x)
+        self.check(t, pressure, x)?;
+        let liquid = side(t);
+        let properties = self.tp_properties(t, pressure, x, liquid)?;
+        // A target outside [low, high] ends at an edge with a residual: refused.
+        let residual = property.pick(&properties) - target;
+        if !(residual.abs() <= 1e-9 * property.slope(&properties).abs() * t) {
+            return Err(out_of_range());
+        }
+        Ok(self.state(properties, liquid, x))
     }
 
     /// The para fraction of the two-phase solution at p along a para-fraction path:
@@ -567,26 +674,56 @@ impl Blend {
             pressure,
             enthalpy,
             &|_| para_fraction,
-            |p| p.enthalpy,
-            "enthalpy",
+            Target::Enthalpy,
+            None,
         )
     }
 
     /// The state at (p, s) with para fraction x.
     pub fn state_ps(&self, pressure: f64, entropy: f64, para_fraction: f64) -> Result<State> {
         self.check(self.temperature_range().1, pressure, para_fraction)?;
-        self.state_p_property(
-            pressure,
-            entropy,
-            &|_| para_fraction,
-            |p| p.entropy,
-            "entropy",
-        )
+        self.state_p_property(pressure, entropy, &|_| para_fraction, Target::Entropy, None)
     }
 
     /// The state at (p, h) in ortho–para equilibrium (x = x_eq(T)), as on a catalyst.
     pub fn state_ph_equilibrium(&self, pressure: f64, enthalpy: f64) -> Result<State> {
         self.state_ph_path(pressure, enthalpy, &spin::equilibrium_para_fraction)
+    }
+
+    /// As [`Blend::state_ph_equilibrium`], the search started at `near`'s
+    /// temperature (a neighbouring state).
+    pub fn state_ph_equilibrium_near(
+        &self,
+        pressure: f64,
+        enthalpy: f64,
+        near: &State,
+    ) -> Result<State> {
+        self.check(self.temperature_range().1, pressure, 0.5)?;
+        self.state_p_property(
+            pressure,
+            enthalpy,
+            &spin::equilibrium_para_fraction,
+            Target::Enthalpy,
+            Some(near.temperature),
+        )
+    }
+
+    /// As [`Blend::state_ph`], the search started at `near`'s temperature.
+    pub fn state_ph_near(
+        &self,
+        pressure: f64,
+        enthalpy: f64,
+        para_fraction: f64,
+        near: &State,
+    ) -> Result<State> {
+        self.check(self.temperature_range().1, pressure, para_fraction)?;
+        self.state_p_property(
+            pressure,
+            enthalpy,
+            &|_| para_fraction,
+            Target::Enthalpy,
+            Some(near.temperature),
+        )
     }
 
     /// The state at (p, h) whose para fraction is the given function of its
@@ -600,7 +737,7 @@ impl Blend {
         para_at: &dyn Fn(f64) -> f64,
     ) -> Result<State> {
         self.check(self.temperature_range().1, pressure, 0.5)?;
-        self.state_p_property(pressure, enthalpy, para_at, |p| p.enthalpy, "enthalpy")
+        self.state_p_property(pressure, enthalpy, para_at, Target::Enthalpy, None)
     }
 
     /// The ortho − para enthalpy difference at (T, p) in the phase the blend of
@@ -632,7 +769,7 @@ impl Blend {
         para_at: &dyn Fn(f64) -> f64,
     ) -> Result<State> {
         self.check(self.temperature_range().1, pressure, 0.5)?;
-        self.state_p_property(pressure, entropy, para_at, |p| p.entropy, "entropy")
+        self.state_p_property(pressure, entropy, para_at, Target::Entropy, None)
     }
 
     /// The saturated state at p with quality q whose para fraction is the given
@@ -684,6 +821,37 @@ impl Blend {
             a.property.key(),
             b.property.key()
         )))
+    }
+}
+
+/// The property a (p, property) flash of the solution matches.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Target {
+    Enthalpy,
+    Entropy,
+}
+
+impl Target {
+    fn pick(self, properties: &Properties) -> f64 {
+        match self {
+            Target::Enthalpy => properties.enthalpy,
+            Target::Entropy => properties.entropy,
+        }
+    }
+
+    /// Its temperature derivative at fixed p and composition.
+    fn slope(self, properties: &Properties) -> f64 {
+        match self {
+            Target::Enthalpy => properties.cp,
+            Target::Entropy => properties.cp / properties.temperature,
+        }
+    }
+
+    fn name(self) -> &'static str {
+        match self {
+            Target::Enthalpy => "enthalpy",
+            Target::Entropy => "entropy",
+        }
     }
 }
 

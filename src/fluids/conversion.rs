@@ -40,7 +40,9 @@ impl StreamPath {
     pub fn state(&self, pressure: f64, enthalpy: f64, near: &State) -> Result<State> {
         match self {
             StreamPath::Frozen(material) => material.state_ph_near(pressure, enthalpy, near),
-            StreamPath::Catalytic(blend) => blend.state_ph_equilibrium(pressure, enthalpy),
+            StreamPath::Catalytic(blend) => {
+                blend.state_ph_equilibrium_near(pressure, enthalpy, near)
+            }
         }
     }
 

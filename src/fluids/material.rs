@@ -70,7 +70,7 @@ impl Material {
     /// The state at (p, h), seeded from a nearby state where that helps.
     pub fn state_ph_near(&self, pressure: f64, enthalpy: f64, near: &State) -> Result<State> {
         match self.para_fraction {
-            Some(x) => Blend::get()?.state_ph(pressure, enthalpy, x),
+            Some(x) => Blend::get()?.state_ph_near(pressure, enthalpy, x, near),
             None => self.fluid.state_ph_near(pressure, enthalpy, near),
         }
     }

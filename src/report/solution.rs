@@ -498,9 +498,8 @@ pub fn text(solution: &Solution) -> String {
         format!(
             "{:.3} kW{}",
             s.shaft_power / 1e3,
-            or_dash(s.specific_energy_shaft, |e| format!(
-                " = {e:.3} kWh per kg liquid"
-            ))
+            s.specific_energy_shaft
+                .map_or(String::new(), |e| format!(" = {e:.3} kWh per kg liquid"))
         ),
     ));
     if s.precooling_duty > 0.0 || s.precooling_work > 0.0 {

@@ -27,7 +27,11 @@ pub fn sweep_text(study: &Sweep) -> String {
         match &case.outcome {
             Ok(m) => row.extend([
                 format!("{:.5}", m.liquid_yield),
-                format!("{:.3}", m.specific_energy),
+                if m.specific_energy.is_finite() {
+                    format!("{:.3}", m.specific_energy)
+                } else {
+                    "—".into() // no liquid
+                },
                 if m.feasible() {
                     "ok".into()
                 } else {

@@ -347,6 +347,16 @@ pub fn csv_header(variables: &[Variable]) -> Vec<String> {
     h
 }
 
+/// A number written exactly, or an empty cell where it does not exist (NaN: the
+/// specific energy and figure of merit of a case without liquid).
+fn exact_or_blank(value: f64) -> String {
+    if value.is_nan() {
+        String::new()
+    } else {
+        format!("{value:e}")
+    }
+}
+
 /// One CSV row of a case, numbers written exactly (so merged shards compare equal).
 pub fn csv_row(case: &CaseResult) -> Vec<String> {
     let mut row = vec![case.index.to_string()];
@@ -356,8 +366,8 @@ pub fn csv_row(case: &CaseResult) -> Vec<String> {
             if m.feasible() { "ok" } else { "infeasible" }.to_string(),
             format!("{:e}", m.liquid_yield),
             format!("{:e}", m.liquid_flow),
-            format!("{:e}", m.specific_energy),
-            format!("{:e}", m.figure_of_merit),
+            exact_or_blank(m.specific_energy),
+            exact_or_blank(m.figure_of_merit),
             format!("{:e}", m.shaft_power),
             format!("{:e}", m.min_approach),
             m.design_errors.to_string(),
