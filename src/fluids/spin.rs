@@ -83,6 +83,11 @@ pub fn rotational_sums(temperature: f64) -> RotationalSums {
             let weight = (2 * level + 1) as f64 * (-(energy - base) * beta).exp();
             z += weight;
             e += weight * energy;
+            // The levels fall off faster than geometrically: once a term is below
+            // 1e-18 of the sum (past the peak), the rest cannot reach the last digit.
+            if energy - base > 1.0 / beta && weight < 1e-18 * z {
+                break;
+            }
         }
         (z, e / z, base)
     };
