@@ -100,6 +100,40 @@ pub fn saturation_dome(fluid: &'static Fluid, points: usize) -> Vec<(f64, f64)> 
     liquid
 }
 
+/// The saturation dome of hydrogen in ortho–para equilibrium (the solution at
+/// x_eq of its boiling temperature), as (s, T) points from the liquid at the lowest
+/// pressure over the top to the vapour there, on the common datum; up to the
+/// solution's highest two-phase pressure (the top is open: the critical region of
+/// the solution is not modelled). Empty where the solution model cannot be built.
+pub fn equilibrium_hydrogen_dome(points: usize) -> Vec<(f64, f64)> {
+    let Ok(blend) = super::blend::Blend::get() else {
+        return Vec::new();
+    };
+    let low = blend
+        .para
+        .triple_pressures
+        .0
+        .max(blend.ortho.triple_pressures.0)
+        * 1.001;
+    let high = super::blend::BLEND_SATURATION_PRESSURE_MAX;
+    let path = &super::spin::equilibrium_para_fraction;
+    let mut liquid = Vec::new();
+    let mut vapour = Vec::new();
+    for i in 0..=points {
+        let p = low * (high / low).powf(i as f64 / points as f64);
+        if let (Ok(l), Ok(v)) = (
+            blend.state_p_quality_path(p, 0.0, path),
+            blend.state_p_quality_path(p, 1.0, path),
+        ) {
+            liquid.push((l.entropy, l.temperature));
+            vapour.push((v.entropy, v.temperature));
+        }
+    }
+    vapour.reverse();
+    liquid.extend(vapour);
+    liquid
+}
+
 /// The (T, p) path of an isenthalpic expansion from `inlet` to `outlet_pressure`.
 pub fn throttling_path(
     inlet: &super::State,

@@ -8,7 +8,7 @@ use super::{axes, chart, drawing, ensure_font, legend, write_figure, Figure};
 use crate::equipment::{Coupling, Details, Role};
 use crate::error::Result;
 use crate::flowsheet::{Plant, UnitSpec};
-use crate::fluids::diagram::{saturation_dome, throttling_path};
+use crate::fluids::diagram::{equilibrium_hydrogen_dome, saturation_dome, throttling_path};
 use crate::solve::Solution;
 use plotters::coord::Shift;
 use plotters::prelude::*;
@@ -19,6 +19,7 @@ const HOT: RGBColor = RGBColor(190, 40, 40);
 const COLD: RGBColor = RGBColor(30, 90, 190);
 const DOME: RGBColor = RGBColor(20, 20, 20);
 const STATE: RGBColor = RGBColor(0, 120, 90);
+const EQUILIBRIUM_DOME: RGBColor = RGBColor(150, 90, 170);
 
 /// Writes every plot of the solution into `dir` (created if needed); returns the
 /// files written.
@@ -142,6 +143,17 @@ impl Figure for TsDiagramFigure<'_> {
             fluid,
         } = *self;
         let dome = saturation_dome(fluid, 60);
+        // Hydrogen that carries its para fraction: its liquid lies on the
+        // equilibrium solution's dome, far from normal hydrogen's in entropy.
+        let carries_para = solution
+            .streams
+            .iter()
+            .any(|f| std::ptr::eq(f.state.fluid(), fluid) && f.state.para_fraction.is_some());
+        let second_dome = if carries_para {
+            equilibrium_hydrogen_dome(60)
+        } else {
+            Vec::new()
+        };
         let states: Vec<(String, f64, f64)> = solution
             .stream_names
             .iter()
@@ -177,6 +189,7 @@ impl Figure for TsDiagramFigure<'_> {
         }
         let s_all: Vec<f64> = dome
             .iter()
+            .chain(&second_dome)
             .map(|p| p.0 / 1e3)
             .chain(states.iter().map(|s| s.1))
             .collect();
@@ -218,8 +231,24 @@ impl Figure for TsDiagramFigure<'_> {
                 DOME.stroke_width(2),
             ))
             .map_err(&err)?
-            .label("saturation dome")
+            .label(if carries_para {
+                "saturation dome, normal hydrogen (25 % para)"
+            } else {
+                "saturation dome"
+            })
             .legend(|(x, y)| PathElement::new([(x, y), (x + 18, y)], DOME.stroke_width(2)));
+        if !second_dome.is_empty() {
+            chart
+                .draw_series(LineSeries::new(
+                    second_dome.iter().map(|(s, t)| (s / 1e3, *t)),
+                    EQUILIBRIUM_DOME.stroke_width(2),
+                ))
+                .map_err(&err)?
+                .label("saturation dome, hydrogen in ortho–para equilibrium")
+                .legend(|(x, y)| {
+                    PathElement::new([(x, y), (x + 18, y)], EQUILIBRIUM_DOME.stroke_width(2))
+                });
+        }
         for (k, seg) in segments.iter().enumerate() {
             let series = chart
                 .draw_series(LineSeries::new(seg.iter().copied(), COLD.stroke_width(2)))
