@@ -22,7 +22,7 @@ fn main() {
             std::process::exit(code);
         }
     };
-    let (output, failure) = match cli::run(parsed) {
+    let (output, failure) = match cli::guarded(|| cli::run(parsed)) {
         Ok(output) => (output, None),
         Err(mut failure) => (std::mem::take(&mut failure.partial), Some(failure)),
     };

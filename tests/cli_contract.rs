@@ -263,3 +263,88 @@ fn phases_are_labelled_truthfully() {
     let line = out.lines().find(|l| l.starts_with("valve.out")).unwrap();
     assert!(line.contains("x 0.9"), "{line}");
 }
+
+/// The effective user id, from /proc/self/status (Linux).
+fn effective_uid() -> u32 {
+    let status = std::fs::read_to_string("/proc/self/status").unwrap();
+    let line = status.lines().find(|l| l.starts_with("Uid:")).unwrap();
+    line.split_whitespace().nth(2).unwrap().parse().unwrap()
+}
+
+/// A folder the user may not write to: a permission error names the path and the
+/// system's reason and exits 4 (was `BackendError(DrawingError(Os{code:13…}))`).
+/// Root may write anywhere, so as root the binary runs as `nobody` through
+/// util-linux's setpriv; it runs from a copy under the temporary folder so that
+/// `nobody` can reach it wherever the checkout lies.
+#[test]
+fn permission_errors_name_the_path() {
+    use std::os::unix::fs::PermissionsExt;
+    let base = std::env::temp_dir().join(format!("cryochain-eacces-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&base);
+    std::fs::create_dir_all(&base).unwrap();
+    std::fs::set_permissions(&base, std::fs::Permissions::from_mode(0o755)).unwrap();
+    let exe = base.join("cryochain");
+    std::fs::copy(env!("CARGO_BIN_EXE_cryochain"), &exe).unwrap();
+    std::fs::set_permissions(&exe, std::fs::Permissions::from_mode(0o755)).unwrap();
+    let locked = base.join("locked");
+    std::fs::create_dir(&locked).unwrap();
+    std::fs::set_permissions(&locked, std::fs::Permissions::from_mode(0o555)).unwrap();
+    let as_user = |args: &[&str]| {
+        let mut command = if effective_uid() == 0 {
+            let mut c = Command::new("setpriv");
+            c.args(["--reuid=65534", "--regid=65534", "--clear-groups"]);
+            c.arg(&exe);
+            c
+        } else {
+            Command::new(&exe)
+        };
+        let out = command
+            .args(args)
+            .current_dir(&base)
+            .output()
+            .expect("setpriv (util-linux) runs the binary as nobody");
+        (
+            out.status.code().unwrap_or(-1),
+            String::from_utf8_lossy(&out.stderr).into_owned(),
+        )
+    };
+    let locked_text = locked.to_str().unwrap();
+    for args in [
+        vec!["solve", "--csv", locked_text],
+        vec!["solve", "--plot", locked_text],
+        vec!["inversion", "helium", "--plot", "locked/helium.png"],
+    ] {
+        let (code, err) = as_user(&args);
+        assert_eq!(code, 4, "{args:?}: {err}");
+        assert!(err.contains("Permission denied"), "{args:?}: {err}");
+        assert!(err.contains("locked"), "{args:?}: {err}");
+        assert!(
+            !err.contains("BackendError") && !err.contains("Os {"),
+            "{err}"
+        );
+    }
+    // A property table written into it.
+    std::fs::write(base.join("states.csv"), "T [K],p [bar]\n80,1\n").unwrap();
+    let (code, err) = as_user(&[
+        "table",
+        "states.csv",
+        "--fluid",
+        "nitrogen",
+        "-o",
+        "locked/t.csv",
+    ]);
+    assert_eq!(code, 4, "{err}");
+    assert!(
+        err.contains("Permission denied") && err.contains("locked/t.csv"),
+        "{err}"
+    );
+    // A folder to be made inside the locked one: the same, for the folder.
+    let (code, err) = as_user(&["solve", "--csv", "locked/out"]);
+    assert_eq!(code, 4, "{err}");
+    assert!(
+        err.contains("Permission denied") && err.contains("locked/out"),
+        "{err}"
+    );
+    std::fs::set_permissions(&locked, std::fs::Permissions::from_mode(0o755)).unwrap();
+    let _ = std::fs::remove_dir_all(&base);
+}
