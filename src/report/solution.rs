@@ -433,7 +433,6 @@ fn or_dash(v: Option<f64>, f: impl Fn(f64) -> String) -> String {
 
 /// The solution as text: summary, streams, equipment.
 pub fn text(solution: &Solution) -> String {
-    let s = &solution.summary;
     let mut out = String::new();
     out.push_str(&format!("{}\n", solution.title));
     out.push_str(&format!("source: {}\n", solution.source));
@@ -449,8 +448,30 @@ pub fn text(solution: &Solution) -> String {
     out.push_str(&wrap(&format!("tear streams: {tears}"), 98, "  "));
     out.push('\n');
     out.push_str("Summary\n");
-    let line = |label: &str, value: String| format!("  {label:<26}{value}\n");
-    out.push_str(&line(
+    for (label, value) in summary_rows(solution) {
+        out.push_str(&format!("  {label:<26}{value}\n"));
+    }
+    for table in [
+        Some(stream_table(solution)),
+        spin_table(solution),
+        Some(equipment_table(solution)),
+        Some(account_table(solution)),
+    ]
+    .into_iter()
+    .flatten()
+    {
+        out.push_str(&format!("\n{}\n", table.title));
+        out.push_str(&table.text());
+    }
+    out
+}
+
+/// The headline figures as (label, value with its unit) rows, in reading order:
+/// the summary of the text report and of the HTML page.
+pub fn summary_rows(solution: &Solution) -> Vec<(&'static str, String)> {
+    let s = &solution.summary;
+    let mut rows: Vec<(&'static str, String)> = Vec::new();
+    rows.push((
         "liquid product",
         format!(
             "{:.4} g/s = {:.3} kg/h = {:.2} L/h",
@@ -459,7 +480,7 @@ pub fn text(solution: &Solution) -> String {
             s.liquid_volume_flow_l_h
         ),
     ));
-    out.push_str(&line(
+    rows.push((
         "liquid yield",
         or_dash(s.liquid_yield, |y| {
             format!("{y:.5} (liquid per mass compressed)")
@@ -471,14 +492,14 @@ pub fn text(solution: &Solution) -> String {
         } else {
             ""
         };
-        out.push_str(&line(
+        rows.push((
             "para fraction",
             format!(
                 "{:.4}{model}; equilibrium {:.4} at the product's temperature",
                 storage.para_fraction, storage.equilibrium_para_fraction
             ),
         ));
-        out.push_str(&line(
+        rows.push((
             "storage boil-off",
             format!(
                 "{:.1} % after a day, {:.1} % after a week (residual conversion)",
@@ -487,13 +508,13 @@ pub fn text(solution: &Solution) -> String {
             ),
         ));
         if let Some(y) = &storage.effective_liquid_yield_after {
-            out.push_str(&line(
+            rows.push((
                 "yield after storage",
                 format!("{:.5} after a day, {:.5} after a week", y[0], y[1]),
             ));
         }
     }
-    out.push_str(&line(
+    rows.push((
         "shaft power",
         format!(
             "{:.3} kW{}",
@@ -503,7 +524,7 @@ pub fn text(solution: &Solution) -> String {
         ),
     ));
     if s.precooling_duty > 0.0 || s.precooling_work > 0.0 {
-        out.push_str(&line(
+        rows.push((
             "precooling",
             format!(
                 "{:.3} kW removed; cryogen boiled {:.3} g/s; work equivalent {:.3} kW",
@@ -513,13 +534,13 @@ pub fn text(solution: &Solution) -> String {
             ),
         ));
     }
-    out.push_str(&line(
+    rows.push((
         "specific energy",
         or_dash(s.specific_energy, |e| {
             format!("{e:.3} kWh/kg with precooling")
         }),
     ));
-    out.push_str(&line(
+    rows.push((
         "minimum work",
         format!(
             "{:.3} kW (liquid less feed exergy); figure of merit {}",
@@ -527,7 +548,7 @@ pub fn text(solution: &Solution) -> String {
             or_dash(s.figure_of_merit, |f| format!("{f:.4}"))
         ),
     ));
-    out.push_str(&line(
+    rows.push((
         "work taken",
         format!(
             "{:.3} kW = shaft {:.3} + precooling {:.3} kW",
@@ -536,7 +557,7 @@ pub fn text(solution: &Solution) -> String {
             s.precooling_work / 1e3
         ),
     ));
-    out.push_str(&line(
+    rows.push((
         "exergy",
         format!(
             "destroyed {:.3}, lost {}, precooling spent outside {} kW",
@@ -546,7 +567,7 @@ pub fn text(solution: &Solution) -> String {
         ),
     ));
     if s.feed_exergy.abs() > 0.0 || s.cryogen_feed_work > 0.0 {
-        out.push_str(&line(
+        rows.push((
             "feeds",
             format!(
                 "exergy of raw gas {} kW (credited); cryogen fed in {} kW",
@@ -555,119 +576,162 @@ pub fn text(solution: &Solution) -> String {
             ),
         ));
     }
-    out.push_str(&line(
+    rows.push((
         "balance closure",
         format!(
             "mass {:.1e}, energy {:.1e}, exergy {:.1e} (relative)",
             s.mass_closure, s.energy_closure, s.exergy_closure
         ),
     ));
-    out.push_str("\nStreams\n");
-    let mut table = TextTable::new(&[
-        ("stream", Align::Left),
-        ("fluid", Align::Left),
-        ("T [K]", Align::Right),
-        ("p [bar]", Align::Right),
-        ("h [kJ/kg]", Align::Right),
-        ("s [kJ/kgK]", Align::Right),
-        ("flow [g/s]", Align::Right),
-        ("phase", Align::Left),
-    ]);
-    for (name, f) in solution.stream_names.iter().zip(&solution.streams) {
-        table.row(vec![
-            name.clone(),
-            f.state.fluid().name.clone(),
-            format!("{:.3}", f.state.temperature),
-            format!("{:.4}", f.state.pressure / 1e5),
-            format!("{:.3}", f.state.enthalpy / 1e3),
-            format!("{:.4}", f.state.entropy / 1e3),
-            format!("{:.4}", f.flow * 1e3),
-            phase_label(&f.state),
-        ]);
-    }
-    out.push_str(&table.render());
-    out.push_str(&spin_table(solution));
-    out.push_str("\nEquipment\n");
-    let mut table = TextTable::new(&[
-        ("id", Align::Left),
-        ("kind", Align::Left),
-        ("power [kW]", Align::Right),
-        ("duty [kW]", Align::Right),
-        ("ΔT min [K]", Align::Right),
-        ("Xdest [kW]", Align::Right),
-        ("share", Align::Right),
-    ]);
-    let total = s.exergy_destroyed.max(1e-300);
-    for u in &solution.units {
-        if matches!(u.role, Role::Feed(_) | Role::Product(_)) {
-            continue;
+    rows
+}
+
+/// A table of results: its title, its column headers and alignment, its rows as
+/// text; drawn as text in the terminal and as HTML in the report.
+#[derive(Debug, Clone)]
+pub struct ResultTable {
+    /// Title above it.
+    pub title: String,
+    /// Column headers with their alignment.
+    pub headers: Vec<(&'static str, Align)>,
+    /// Cells, row by row.
+    pub rows: Vec<Vec<String>>,
+}
+
+impl ResultTable {
+    /// The table as aligned text.
+    pub fn text(&self) -> String {
+        let mut table = TextTable::new(&self.headers);
+        for row in &self.rows {
+            table.row(row.clone());
         }
-        let p = &u.performance;
-        let approach = match &p.details {
-            Details::Exchanger(x) => format!("{:.3}", x.min_approach),
-            _ => String::new(),
-        };
-        table.row(vec![
-            u.id.clone(),
-            u.kind.to_string(),
-            if p.work_in != 0.0 {
-                format!("{:.3}", p.work_in / 1e3)
-            } else {
-                String::new()
-            },
-            p.duty.map_or(String::new(), |d| format!("{:.3}", d / 1e3)),
-            approach,
-            fixed(u.exergy_destroyed / 1e3, 3),
-            format!("{} %", fixed(100.0 * u.exergy_destroyed / total, 1)),
-        ]);
+        table.render()
     }
-    out.push_str(&table.render());
-    out.push_str("\nExergy account (the rows sum to the work taken: shaft plus precooling)\n");
-    let mut table = TextTable::new(&[
-        ("where the work goes", Align::Left),
-        ("exergy [kW]", Align::Right),
-        ("share", Align::Right),
-    ]);
+}
+
+/// Every stream's state and flow.
+pub fn stream_table(solution: &Solution) -> ResultTable {
+    let rows = solution
+        .stream_names
+        .iter()
+        .zip(&solution.streams)
+        .map(|(name, f)| {
+            vec![
+                name.clone(),
+                f.state.fluid().name.clone(),
+                format!("{:.3}", f.state.temperature),
+                format!("{:.4}", f.state.pressure / 1e5),
+                format!("{:.3}", f.state.enthalpy / 1e3),
+                format!("{:.4}", f.state.entropy / 1e3),
+                format!("{:.4}", f.flow * 1e3),
+                phase_label(&f.state),
+            ]
+        })
+        .collect();
+    ResultTable {
+        title: "Streams".into(),
+        headers: vec![
+            ("stream", Align::Left),
+            ("fluid", Align::Left),
+            ("T [K]", Align::Right),
+            ("p [bar]", Align::Right),
+            ("h [kJ/kg]", Align::Right),
+            ("s [kJ/kgK]", Align::Right),
+            ("flow [g/s]", Align::Right),
+            ("phase", Align::Left),
+        ],
+        rows,
+    }
+}
+
+/// Each unit's power, duty, smallest approach and exergy destroyed.
+pub fn equipment_table(solution: &Solution) -> ResultTable {
+    let total = solution.summary.exergy_destroyed.max(1e-300);
+    let rows = solution
+        .units
+        .iter()
+        .filter(|u| !matches!(u.role, Role::Feed(_) | Role::Product(_)))
+        .map(|u| {
+            let p = &u.performance;
+            let approach = match &p.details {
+                Details::Exchanger(x) => format!("{:.3}", x.min_approach),
+                _ => String::new(),
+            };
+            vec![
+                u.id.clone(),
+                u.kind.to_string(),
+                if p.work_in != 0.0 {
+                    format!("{:.3}", p.work_in / 1e3)
+                } else {
+                    String::new()
+                },
+                p.duty.map_or(String::new(), |d| format!("{:.3}", d / 1e3)),
+                approach,
+                fixed(u.exergy_destroyed / 1e3, 3),
+                format!("{} %", fixed(100.0 * u.exergy_destroyed / total, 1)),
+            ]
+        })
+        .collect();
+    ResultTable {
+        title: "Equipment".into(),
+        headers: vec![
+            ("id", Align::Left),
+            ("kind", Align::Left),
+            ("power [kW]", Align::Right),
+            ("duty [kW]", Align::Right),
+            ("ΔT min [K]", Align::Right),
+            ("Xdest [kW]", Align::Right),
+            ("share", Align::Right),
+        ],
+        rows,
+    }
+}
+
+/// Where the work taken goes; the rows sum to it.
+pub fn account_table(solution: &Solution) -> ResultTable {
+    let s = &solution.summary;
     let taken = s.exergy_supplied.abs().max(1e-300);
-    for (item, exergy) in exergy_account(solution) {
-        table.row(vec![
-            item,
-            fixed(exergy / 1e3, 3),
-            format!("{} %", fixed(100.0 * exergy / taken, 1)),
-        ]);
-    }
-    table.row(vec![
+    let mut rows: Vec<Vec<String>> = exergy_account(solution)
+        .into_iter()
+        .map(|(item, exergy)| {
+            vec![
+                item,
+                fixed(exergy / 1e3, 3),
+                format!("{} %", fixed(100.0 * exergy / taken, 1)),
+            ]
+        })
+        .collect();
+    rows.push(vec![
         "total".to_string(),
         fixed(s.exergy_supplied / 1e3, 3),
         "100.0 %".to_string(),
     ]);
-    out.push_str(&table.render());
-    out
+    ResultTable {
+        title: "Exergy account (the rows sum to the work taken: shaft plus precooling)".into(),
+        headers: vec![
+            ("where the work goes", Align::Left),
+            ("exergy [kW]", Align::Right),
+            ("share", Align::Right),
+        ],
+        rows,
+    }
 }
 
 /// The para fraction of every hydrogen stream beside the equilibrium value at
 /// its temperature, or nothing when the flowsheet carries no hydrogen.
-fn spin_table(solution: &Solution) -> String {
-    let mut table = TextTable::new(&[
-        ("stream", Align::Left),
-        ("T [K]", Align::Right),
-        ("para", Align::Right),
-        ("equilibrium", Align::Right),
-        ("spin state", Align::Left),
-    ]);
-    let mut any = false;
+pub fn spin_table(solution: &Solution) -> Option<ResultTable> {
+    let mut rows = Vec::new();
     for (name, f) in solution.stream_names.iter().zip(&solution.streams) {
         let Some(para) = f.state.shown_para_fraction() else {
             continue;
         };
-        any = true;
         let spin_state = match (f.state.para_fraction, f.state.fluid().name.as_str()) {
             (Some(_), _) => "followed",
             (None, "hydrogen") => "frozen normal",
             (None, "parahydrogen") => "pure para",
             _ => "pure ortho",
         };
-        table.row(vec![
+        rows.push(vec![
             name.clone(),
             format!("{:.3}", f.state.temperature),
             format!("{para:.4}"),
@@ -678,8 +742,18 @@ fn spin_table(solution: &Solution) -> String {
             spin_state.to_string(),
         ]);
     }
-    if !any {
-        return String::new();
+    if rows.is_empty() {
+        return None;
     }
-    format!("\nHydrogen para fraction\n{}", table.render())
+    Some(ResultTable {
+        title: "Hydrogen para fraction".into(),
+        headers: vec![
+            ("stream", Align::Left),
+            ("T [K]", Align::Right),
+            ("para", Align::Right),
+            ("equilibrium", Align::Right),
+            ("spin state", Align::Left),
+        ],
+        rows,
+    })
 }

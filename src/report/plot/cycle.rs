@@ -4,7 +4,7 @@
 //! written as SVG and PNG.
 
 use super::tp_diagram::{self, ValvePath};
-use super::{axes, chart, drawing, ensure_font, legend, write_figure, Figure};
+use super::{axes, chart, drawing, ensure_font, legend, render, Canvas, Figure};
 use crate::equipment::{Coupling, Details, Role};
 use crate::error::Result;
 use crate::flowsheet::{Plant, UnitSpec};
@@ -21,12 +21,28 @@ const DOME: RGBColor = RGBColor(20, 20, 20);
 const STATE: RGBColor = RGBColor(0, 120, 90);
 const EQUILIBRIUM_DOME: RGBColor = RGBColor(150, 90, 170);
 
-/// Writes every plot of the solution into `dir` (created if needed); returns the
-/// files written.
-pub fn write_all(plant: &Plant, solution: &Solution, dir: &Path) -> Result<Vec<PathBuf>> {
+/// One plot of a solved cycle: its file stem, a caption, and how to draw it.
+pub struct CyclePlot<'a> {
+    /// The file name without extension (`ts-hydrogen`, `exchanger-cold-hx`, …).
+    pub stem: String,
+    /// What it shows, in words.
+    pub caption: String,
+    draw: Box<dyn Fn(Canvas) -> Result<()> + 'a>,
+}
+
+impl CyclePlot<'_> {
+    /// Draws the plot on `canvas`.
+    pub fn render(&self, canvas: Canvas) -> Result<()> {
+        (self.draw)(canvas)
+    }
+}
+
+/// Every plot of the solution, in reading order: the T–s diagram and (where valves
+/// pass it) the T–p diagram of each fluid, each exchanger's temperature–duty
+/// curves, the exergy destroyed per unit.
+pub fn cycle_plots<'a>(plant: &'a Plant, solution: &'a Solution) -> Result<Vec<CyclePlot<'a>>> {
     ensure_font()?;
-    crate::report::output_folder(dir)?;
-    let mut written = Vec::new();
+    let mut plots: Vec<CyclePlot<'a>> = Vec::new();
     let mut fluids: Vec<&'static crate::fluids::Fluid> = Vec::new();
     for f in &solution.streams {
         let fluid = f.state.fluid();
@@ -34,18 +50,28 @@ pub fn write_all(plant: &Plant, solution: &Solution, dir: &Path) -> Result<Vec<P
             fluids.push(fluid);
         }
     }
-    for fluid in &fluids {
-        for ext in ["svg", "png"] {
-            let path = dir.join(format!("ts-{}.{ext}", fluid.name));
-            ts_diagram(plant, solution, fluid, &path)?;
-            written.push(path);
-        }
+    for fluid in fluids {
+        plots.push(CyclePlot {
+            stem: format!("ts-{}", fluid.name),
+            caption: format!("T–s diagram of the {} cycle", fluid.name),
+            draw: Box::new(move |canvas| {
+                render(
+                    &TsDiagramFigure {
+                        plant,
+                        solution,
+                        fluid,
+                    },
+                    SIZE,
+                    canvas,
+                )
+            }),
+        });
         // The T–p diagram with the valves of this fluid.
         let valves: Vec<ValvePath> = plant
             .units
             .iter()
             .filter(|u| matches!(u.spec, UnitSpec::Valve(_)))
-            .filter(|u| std::ptr::eq(solution.streams[u.inlets[0]].state.fluid(), *fluid))
+            .filter(|u| std::ptr::eq(solution.streams[u.inlets[0]].state.fluid(), fluid))
             .map(|u| {
                 let inlet = &solution.streams[u.inlets[0]].state;
                 let outlet = &solution.streams[u.outlets[0]].state;
@@ -57,26 +83,48 @@ pub fn write_all(plant: &Plant, solution: &Solution, dir: &Path) -> Result<Vec<P
             .collect();
         if !valves.is_empty() {
             let diagram = fluid.tp_diagram(7)?;
-            for ext in ["svg", "png"] {
-                let path = dir.join(format!("tp-{}.{ext}", fluid.name));
-                tp_diagram::write(&diagram, &valves, &path)?;
-                written.push(path);
-            }
+            plots.push(CyclePlot {
+                stem: format!("tp-{}", fluid.name),
+                caption: format!(
+                    "T–p diagram of {}: inversion curve, isenthalps and each valve's path",
+                    fluid.name
+                ),
+                draw: Box::new(move |canvas| tp_diagram::render_on(&diagram, &valves, canvas)),
+            });
         }
     }
     for (unit, result) in plant.units.iter().zip(&solution.units) {
         if let Details::Exchanger(report) = &result.performance.details {
-            for ext in ["svg", "png"] {
-                let path = dir.join(format!("exchanger-{}.{ext}", unit.id));
-                exchanger_curves(&unit.id, report, &path)?;
-                written.push(path);
-            }
+            let id = unit.id.as_str();
+            plots.push(CyclePlot {
+                stem: format!("exchanger-{id}"),
+                caption: format!("exchanger {id}: temperatures against duty, with the pinch"),
+                draw: Box::new(move |canvas| {
+                    render(&ExchangerCurvesFigure { id, report }, SIZE, canvas)
+                }),
+            });
         }
     }
-    for ext in ["svg", "png"] {
-        let path = dir.join(format!("exergy.{ext}"));
-        exergy_bars(solution, &path)?;
-        written.push(path);
+    plots.push(CyclePlot {
+        stem: "exergy".into(),
+        caption: "exergy destroyed per unit".into(),
+        draw: Box::new(move |canvas| render(&ExergyBarsFigure { solution }, SIZE, canvas)),
+    });
+    Ok(plots)
+}
+
+/// Writes every plot of the solution into `dir` (created if needed), as SVG and
+/// PNG; returns the files written.
+pub fn write_all(plant: &Plant, solution: &Solution, dir: &Path) -> Result<Vec<PathBuf>> {
+    ensure_font()?;
+    crate::report::output_folder(dir)?;
+    let mut written = Vec::new();
+    for plot in cycle_plots(plant, solution)? {
+        for ext in ["svg", "png"] {
+            let path = dir.join(format!("{}.{ext}", plot.stem));
+            plot.render(Canvas::File(&path))?;
+            written.push(path);
+        }
     }
     Ok(written)
 }
@@ -111,24 +159,7 @@ impl LabelPlacer {
     }
 }
 
-fn ts_diagram(
-    plant: &Plant,
-    solution: &Solution,
-    fluid: &'static crate::fluids::Fluid,
-    path: &Path,
-) -> Result<()> {
-    write_figure(
-        &TsDiagramFigure {
-            plant,
-            solution,
-            fluid,
-        },
-        SIZE,
-        path,
-    )
-}
-
-/// The drawing of [`ts_diagram`], on any backend.
+/// The T–s diagram of one fluid of a cycle, on any backend.
 struct TsDiagramFigure<'a> {
     plant: &'a Plant,
     solution: &'a Solution,
@@ -289,15 +320,7 @@ impl Figure for TsDiagramFigure<'_> {
     }
 }
 
-fn exchanger_curves(
-    id: &str,
-    report: &crate::equipment::exchanger::ExchangerReport,
-    path: &Path,
-) -> Result<()> {
-    write_figure(&ExchangerCurvesFigure { id, report }, SIZE, path)
-}
-
-/// The drawing of [`exchanger_curves`], on any backend.
+/// An exchanger's temperature–duty curves with the pinch, on any backend.
 struct ExchangerCurvesFigure<'a> {
     id: &'a str,
     report: &'a crate::equipment::exchanger::ExchangerReport,
@@ -378,11 +401,7 @@ impl Figure for ExchangerCurvesFigure<'_> {
     }
 }
 
-fn exergy_bars(solution: &Solution, path: &Path) -> Result<()> {
-    write_figure(&ExergyBarsFigure { solution }, SIZE, path)
-}
-
-/// The drawing of [`exergy_bars`], on any backend.
+/// The exergy destroyed per unit as bars, on any backend.
 struct ExergyBarsFigure<'a> {
     solution: &'a Solution,
 }

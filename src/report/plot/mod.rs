@@ -67,6 +67,35 @@ pub(crate) trait Figure {
     ) -> Result<()>;
 }
 
+/// Where a figure is drawn: a file (SVG or PNG by its extension), or SVG text
+/// kept in memory (for a page that carries its plots inline).
+pub enum Canvas<'a> {
+    /// A file.
+    File(&'a Path),
+    /// SVG text appended to the string.
+    Svg(&'a mut String),
+}
+
+/// Draws `figure` at `size` pixels on `canvas`.
+pub(crate) fn render(figure: &impl Figure, size: (u32, u32), canvas: Canvas) -> Result<()> {
+    use plotters::prelude::{IntoDrawingArea, SVGBackend};
+    match canvas {
+        Canvas::File(path) => write_figure(figure, size, path),
+        Canvas::Svg(text) => {
+            ensure_font()?;
+            let name = Path::new("(inline plot)");
+            let mut drawn = String::new();
+            {
+                let root = SVGBackend::with_string(&mut drawn, size).into_drawing_area();
+                figure.draw(&root, name)?;
+                root.present().map_err(drawing(name))?;
+            }
+            text.push_str(&drawn);
+            Ok(())
+        }
+    }
+}
+
 /// Writes `figure` at `size` pixels to `path`, as SVG or PNG by the extension.
 pub(crate) fn write_figure(figure: &impl Figure, size: (u32, u32), path: &Path) -> Result<()> {
     use plotters::prelude::{BitMapBackend, IntoDrawingArea, SVGBackend};

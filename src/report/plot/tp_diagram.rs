@@ -32,6 +32,11 @@ pub fn write(diagram: &TpDiagram, valves: &[ValvePath], path: &Path) -> Result<(
     write_figure(&TpFigure { diagram, valves }, SIZE, path)
 }
 
+/// Draws the diagram on a canvas (a file, or SVG text kept in memory).
+pub fn render_on(diagram: &TpDiagram, valves: &[ValvePath], canvas: super::Canvas) -> Result<()> {
+    super::render(&TpFigure { diagram, valves }, SIZE, canvas)
+}
+
 /// The T–p diagram with its valve paths, on any backend.
 struct TpFigure<'a> {
     diagram: &'a TpDiagram,
