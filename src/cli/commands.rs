@@ -40,6 +40,27 @@ fn load_plant(
     })
 }
 
+/// The text of the flowsheet a command solved: the file, or the built-in demo.
+fn flowsheet_text(file: Option<&Path>) -> Result<String, Failure> {
+    match file {
+        Some(path) => read_text(path),
+        None => Ok(DEMO.to_string()),
+    }
+}
+
+/// Where a report came from: today's date and the command line as typed.
+fn provenance() -> report::html::Provenance {
+    let words: Vec<String> = std::env::args().skip(1).collect();
+    report::html::Provenance::now(format!("cryochain {}", words.join(" ")))
+}
+
+/// Writes an HTML report and notes it.
+fn write_report(path: &Path, page: &str, notes: &mut Vec<String>) -> Result<(), Failure> {
+    write_text(path, page)?;
+    notes.push(format!("wrote the report {}", path.display()));
+    Ok(())
+}
+
 fn read_text(path: &Path) -> Result<String, Failure> {
     std::fs::read_to_string(path)
         .map_err(|e| Failure::new(format!("cannot read {}: {e}", path.display()), exit::IO))
@@ -70,6 +91,10 @@ pub struct SolveArgs {
     /// Write streams.csv and equipment.csv into this folder.
     #[arg(long, value_name = "DIR")]
     pub csv: Option<PathBuf>,
+    /// Write one self-contained HTML page (findings, figures, plots, tables,
+    /// input, cautions) to this file.
+    #[arg(long, value_name = "FILE")]
+    pub report: Option<PathBuf>,
 }
 
 /// `solve`: results of a flowsheet, with plots and CSV tables on request.
@@ -104,6 +129,11 @@ pub fn solve(args: &SolveArgs) -> Result<Output, Failure> {
     }
     let findings = rules::check(&plant, &solution);
     let errors = design_errors(&findings);
+    if let Some(path) = &args.report {
+        let text = flowsheet_text(args.file.as_deref())?;
+        let page = report::html::solution_page(&plant, &solution, &findings, &text, &provenance())?;
+        write_report(path, &page, &mut notes)?;
+    }
     let stdout = match format {
         Format::Json => report::solution::json(&solution, &findings),
         // A design with errors says so first.
@@ -157,6 +187,9 @@ pub struct CheckArgs {
     /// Override a parameter: id.key=value (repeatable).
     #[arg(long = "set", value_name = "ID.KEY=VALUE")]
     pub set: Vec<String>,
+    /// Write one self-contained HTML page with the findings and the results.
+    #[arg(long, value_name = "FILE")]
+    pub report: Option<PathBuf>,
 }
 
 /// `check`: the design checks; a design with errors fails with the design code,
@@ -167,6 +200,11 @@ pub fn check(args: &CheckArgs) -> Result<Output, Failure> {
     let plant = load_plant(args.file.as_deref(), &args.set, &mut notes)?;
     let solution = cryochain::solve::solve(&plant, &Default::default())?;
     let findings = rules::check(&plant, &solution);
+    if let Some(path) = &args.report {
+        let text = flowsheet_text(args.file.as_deref())?;
+        let page = report::html::solution_page(&plant, &solution, &findings, &text, &provenance())?;
+        write_report(path, &page, &mut notes)?;
+    }
     let stdout = match format {
         Format::Json => serde_json::to_string_pretty(&findings).unwrap_or_default() + "\n",
         _ => format!(
@@ -198,6 +236,9 @@ pub struct SweepArgs {
     /// Write a plot (line or heat map) here (.svg or .png).
     #[arg(long)]
     pub plot: Option<PathBuf>,
+    /// Write one self-contained HTML page with the headline, the plot and every case.
+    #[arg(long, value_name = "FILE")]
+    pub report: Option<PathBuf>,
     #[command(flatten)]
     pub format: FormatArgs,
 }
@@ -282,6 +323,14 @@ pub fn sweep(args: &SweepArgs) -> Result<Output, Failure> {
     if let Some(path) = &args.plot {
         report::plot::study::sweep(&result, path)?;
         notes.push(format!("wrote {}", path.display()));
+    }
+    if let Some(path) = &args.report {
+        let mut chart = String::new();
+        report::plot::study::sweep_on(&result, report::plot::Canvas::Svg(&mut chart))?;
+        let plant = flowsheet::load_str(&text, &name, &overrides)?;
+        let fluids = cryochain::solve::results::fluids_used(&plant);
+        let page = report::html::sweep_page(&result, &name, &chart, &fluids, &provenance());
+        write_report(path, &page, &mut notes)?;
     }
     let stdout = match format {
         Format::Csv => csv_text,
@@ -390,6 +439,9 @@ pub struct CompareArgs {
     /// Write a bar chart here (.svg or .png).
     #[arg(long)]
     pub plot: Option<PathBuf>,
+    /// Write one self-contained HTML page with the flowsheets side by side.
+    #[arg(long, value_name = "FILE")]
+    pub report: Option<PathBuf>,
     #[command(flatten)]
     pub format: FormatArgs,
 }
@@ -401,18 +453,35 @@ pub fn compare(args: &CompareArgs) -> Result<Output, Failure> {
         .choose("compare", &[Format::Text, Format::Json, Format::Csv])?;
     let cases = study::compare::compare(&args.files)?;
     let mut notes = Vec::new();
+    let names: Vec<String> = cases.iter().map(|c| c.name.clone()).collect();
+    let figure = |f: fn(&cryochain::solve::Summary) -> Option<f64>| -> Vec<f64> {
+        cases
+            .iter()
+            .map(|c| c.outcome.as_ref().ok().and_then(f).unwrap_or(f64::NAN))
+            .collect()
+    };
+    let yields = figure(|s| s.liquid_yield);
+    let energies = figure(|s| s.specific_energy);
     if let Some(path) = &args.plot {
-        let names: Vec<String> = cases.iter().map(|c| c.name.clone()).collect();
-        let figure = |f: fn(&cryochain::solve::Summary) -> Option<f64>| -> Vec<f64> {
-            cases
-                .iter()
-                .map(|c| c.outcome.as_ref().ok().and_then(f).unwrap_or(f64::NAN))
-                .collect()
-        };
-        let yields = figure(|s| s.liquid_yield);
-        let energies = figure(|s| s.specific_energy);
         report::plot::study::compare(&names, &yields, &energies, path)?;
         notes.push(format!("wrote {}", path.display()));
+    }
+    if let Some(path) = &args.report {
+        let mut chart = String::new();
+        report::plot::study::compare_on(
+            &names,
+            &yields,
+            &energies,
+            report::plot::Canvas::Svg(&mut chart),
+        )?;
+        let mut fluids: Vec<String> = Vec::new();
+        for name in cases.iter().flat_map(|c| &c.fluids) {
+            if !fluids.contains(name) {
+                fluids.push(name.clone());
+            }
+        }
+        let page = report::html::comparison_page(&cases, &chart, &fluids, &provenance());
+        write_report(path, &page, &mut notes)?;
     }
     let stdout = match format {
         Format::Json => report::study::comparison_json(&cases),

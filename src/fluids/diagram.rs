@@ -21,6 +21,8 @@ pub struct TpDiagram {
     pub fluid: String,
     /// Literature key of the equation of state.
     pub source_key: String,
+    /// The source as cited in a caption ("Leachman et al. 2009").
+    pub citation: String,
     /// The vapour-pressure line (T K, p Pa) from the triple point to the top of the
     /// saturation range (the bubble line for air).
     pub saturation: Vec<(f64, f64)>,
@@ -74,6 +76,7 @@ impl Fluid {
         Ok(TpDiagram {
             fluid: self.name.clone(),
             source_key: self.source_key.clone(),
+            citation: self.citation(),
             saturation,
             inversion,
             isenthalps,

@@ -122,6 +122,27 @@ pub struct Properties {
 }
 
 impl Fluid {
+    /// The source as people cite it in a caption: "Leachman et al. 2009", "Span and
+    /// Wagner 1996", "Smith 1990" — surnames from the authors of `source`, the year
+    /// from `source_key`. Falls back to `source_key` where either is missing.
+    pub fn citation(&self) -> String {
+        let year = self
+            .source_key
+            .rsplit('-')
+            .next()
+            .filter(|y| y.len() == 4 && y.chars().all(|c| c.is_ascii_digit()));
+        let authors = self.source.split(", \"").next().unwrap_or("");
+        let surnames: Vec<&str> = authors
+            .split(" and ")
+            .filter_map(|name| name.split_whitespace().last())
+            .collect();
+        match (year, surnames.as_slice()) {
+            (Some(year), [one]) => format!("{one} {year}"),
+            (Some(year), [one, two]) => format!("{one} and {two} {year}"),
+            (Some(year), [first, ..]) => format!("{first} et al. {year}"),
+            _ => self.source_key.clone(),
+        }
+    }
     /// Builds a fluid from its parsed data file (`file` names it in errors).
     pub fn from_file(data: FluidFile, file: &str) -> Result<Fluid> {
         let bad = |message: String| Error::FluidData {

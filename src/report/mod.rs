@@ -3,6 +3,7 @@
 
 pub mod caution;
 pub mod fluids;
+pub mod html;
 pub mod inversion;
 pub mod plot;
 pub mod solution;

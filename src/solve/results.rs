@@ -376,7 +376,7 @@ fn hydrogen_storage(plant: &Plant, streams: &[Flow]) -> Result<Option<StorageOut
 }
 
 /// The fluids of the streams, then those the units use besides (baths), each once.
-fn fluids_used(plant: &Plant) -> Vec<String> {
+pub fn fluids_used(plant: &Plant) -> Vec<String> {
     let mut names: Vec<String> = Vec::new();
     let streams = plant.streams.iter().map(|s| s.fluid);
     let utilities = plant.units.iter().flat_map(|u| u.spec.utility_fluids());

@@ -14,6 +14,11 @@ pub struct Compared {
     pub name: String,
     /// The headline figures, or the error that stopped this flowsheet.
     pub outcome: std::result::Result<Summary, Error>,
+    /// Design errors found in the solved flowsheet (0 where it failed): a
+    /// flowsheet with any is infeasible and never shown as best.
+    pub design_errors: usize,
+    /// The fluids it uses (canonical names), for cautions and sources.
+    pub fluids: Vec<String>,
 }
 
 /// Solves each file in turn; a file that fails keeps its place with its error and
@@ -31,10 +36,25 @@ pub fn compare(files: &[PathBuf]) -> Result<Vec<Compared>> {
                 || file.display().to_string(),
                 |n| n.to_string_lossy().into_owned(),
             );
-            let outcome = flowsheet::load(file, &[])
-                .and_then(|plant| solve::solve(&plant, &Default::default()))
-                .map(|solution| solution.summary);
-            Compared { name, outcome }
+            let solved = flowsheet::load(file, &[]).and_then(|plant| {
+                let solution = solve::solve(&plant, &Default::default())?;
+                let errors = crate::rules::design_errors(&plant, &solution);
+                Ok((solution, errors))
+            });
+            match solved {
+                Ok((solution, design_errors)) => Compared {
+                    name,
+                    fluids: solution.fluids.clone(),
+                    outcome: Ok(solution.summary),
+                    design_errors,
+                },
+                Err(e) => Compared {
+                    name,
+                    outcome: Err(e),
+                    design_errors: 0,
+                    fluids: Vec::new(),
+                },
+            }
         })
         .collect())
 }

@@ -238,7 +238,8 @@ impl Figure for TsDiagramFigure<'_> {
         let pad = 0.06 * (s_max - s_min);
         let title = format!(
             "{}: T–s diagram of the cycle ({})",
-            fluid.name, fluid.source_key
+            fluid.name,
+            fluid.citation()
         );
         let err = drawing(path);
         root.fill(&WHITE).map_err(&err)?;
@@ -357,7 +358,9 @@ impl Figure for ExchangerCurvesFigure<'_> {
             root,
             &title,
             24,
-            0.0..q_max * 1.02,
+            // Room on both sides, so that a pinch at either end stays clear of
+            // the axis.
+            (-0.03 * q_max)..(q_max * 1.03),
             (t_min - 0.05 * span)..(t_max + 0.08 * span),
             path,
         )?;
@@ -395,6 +398,12 @@ impl Figure for ExchangerCurvesFigure<'_> {
                 .legend(|(x, y)| {
                     PathElement::new([(x + 9, y - 6), (x + 9, y + 6)], BLACK.stroke_width(2))
                 });
+            chart
+                .draw_series(
+                    [p.cold_temperature, p.hot_temperature]
+                        .map(|t| Circle::new((q, t), 4, BLACK.filled())),
+                )
+                .map_err(&err)?;
         }
         legend(&mut chart, SeriesLabelPosition::UpperRight, path)?;
         Ok(())
@@ -452,7 +461,10 @@ impl Figure for ExergyBarsFigure<'_> {
             .enumerate()
             .map(|(i, (_, v))| {
                 Text::new(
-                    format!("{:.1} %", 100.0 * v / total.max(1e-300)),
+                    format!(
+                        "{} %",
+                        crate::report::table::fixed(100.0 * v / total.max(1e-300), 1)
+                    ),
                     (i as f64 + 0.3, v.max(0.0) + 0.02 * top),
                     ("sans-serif", 15).into_font().color(&BLACK),
                 )

@@ -16,6 +16,11 @@ pub fn sweep(study: &Sweep, path: &Path) -> Result<()> {
     write_figure(&SweepFigure { study }, SIZE, path)
 }
 
+/// As [`sweep`], drawn on a canvas (a file, or SVG text kept in memory).
+pub fn sweep_on(study: &Sweep, canvas: super::Canvas) -> Result<()> {
+    super::render(&SweepFigure { study }, SIZE, canvas)
+}
+
 /// The drawing of [`sweep`], on any backend.
 struct SweepFigure<'a> {
     study: &'a Sweep,
@@ -181,14 +186,24 @@ impl Figure for SweepFigure<'_> {
 /// Headline figures of several flowsheets side by side: liquid yield and specific
 /// energy as bars.
 pub fn compare(names: &[String], yields: &[f64], energies: &[f64], path: &Path) -> Result<()> {
-    write_figure(
+    compare_on(names, yields, energies, super::Canvas::File(path))
+}
+
+/// As [`compare`], drawn on a canvas (a file, or SVG text kept in memory).
+pub fn compare_on(
+    names: &[String],
+    yields: &[f64],
+    energies: &[f64],
+    canvas: super::Canvas,
+) -> Result<()> {
+    super::render(
         &CompareFigure {
             names,
             yields,
             energies,
         },
         SIZE,
-        path,
+        canvas,
     )
 }
 
@@ -257,10 +272,12 @@ impl Figure for CompareFigure<'_> {
                         }),
                 )
                 .map_err(&err)?;
+            // Labels in the backend's coordinates, which `backend_coord` gives:
+            // drawn on the root (the lower panel's area is offset by its top).
             for (i, name) in names.iter().enumerate() {
                 let (px, py) = chart.backend_coord(&(i as f64 + 0.5, 0.0));
                 let half = name.chars().count() as i32 * 4;
-                area.draw(&Text::new(
+                root.draw(&Text::new(
                     name.clone(),
                     (px - half, py + 8),
                     ("sans-serif", 14).into_font().color(&BLACK),
@@ -268,7 +285,7 @@ impl Figure for CompareFigure<'_> {
                 .map_err(&err)?;
                 if let Some(v) = values.get(i).filter(|v| v.is_finite()) {
                     let (vx, vy) = chart.backend_coord(&(i as f64 + 0.35, *v));
-                    area.draw(&Text::new(
+                    root.draw(&Text::new(
                         format!("{v:.4}"),
                         (vx, vy - 18),
                         ("sans-serif", 14).into_font().color(&BLACK),

@@ -69,7 +69,7 @@ fn draw<DB: DrawingBackend>(
     let p_max = bar(d.pressure_top);
     let title = format!(
         "{}: Joule-Thomson inversion on the T–p plane ({})",
-        d.fluid, d.source_key
+        d.fluid, d.citation
     );
     let mut chart = chart(root, &title, 26, 0.0..p_max, t_min..t_max, path)?;
     axes(
