@@ -129,33 +129,66 @@ pub fn write_all(plant: &Plant, solution: &Solution, dir: &Path) -> Result<Vec<P
     Ok(written)
 }
 
-/// Places labels so that their boxes do not overlap: moves a label up in steps of
-/// its height until it is clear.
+/// Places labels so that their boxes overlap neither each other nor the marked
+/// points, and stay inside the plotting area: the four corners around the point
+/// first, then farther up and down in steps of a line. A label set away from its
+/// point gets a leader line.
 struct LabelPlacer {
+    /// Boxes taken: (x, y, width, height) in pixels.
     boxes: Vec<(i32, i32, i32, i32)>,
+    /// The plotting area: (left, top, right, bottom) in pixels.
+    area: (i32, i32, i32, i32),
 }
 
 impl LabelPlacer {
-    fn place(&mut self, x: i32, y: i32, text: &str) -> (i32, i32) {
-        let (w, h) = (text.chars().count() as i32 * 8 + 4, 16);
-        // Near the right edge, put the label on the left of its point.
-        let x = if x + w > SIZE.0 as i32 - 20 {
-            x - 14 - w
-        } else {
-            x
-        };
-        let mut y = y;
-        for _ in 0..40 {
-            let clear = self.boxes.iter().all(|&(bx, by, bw, bh)| {
-                x + w <= bx || bx + bw <= x || y + h <= by || by + bh <= y
-            });
-            if clear {
-                break;
-            }
-            y -= h;
+    const HEIGHT: i32 = 16;
+
+    fn new(area: (i32, i32, i32, i32), points: &[(i32, i32)]) -> LabelPlacer {
+        LabelPlacer {
+            boxes: points
+                .iter()
+                .map(|&(x, y)| (x - 6, y - 6, 12, 12))
+                .collect(),
+            area,
         }
+    }
+
+    fn clear(&self, x: i32, y: i32, w: i32, h: i32) -> bool {
+        let (left, top, right, bottom) = self.area;
+        x >= left
+            && x + w <= right
+            && y >= top
+            && y + h <= bottom
+            && self
+                .boxes
+                .iter()
+                .all(|&(bx, by, bw, bh)| x + w <= bx || bx + bw <= x || y + h <= by || by + bh <= y)
+    }
+
+    /// The top-left corner of the label for the point (px, py), and whether it
+    /// needs a leader line.
+    fn place(&mut self, px: i32, py: i32, text: &str) -> (i32, i32, bool) {
+        let (w, h) = (text.chars().count() as i32 * 8 + 4, Self::HEIGHT);
+        let mut candidates = vec![
+            (px + 7, py - h - 2),
+            (px + 7, py + 3),
+            (px - 7 - w, py - h - 2),
+            (px - 7 - w, py + 3),
+        ];
+        for step in 1..=12 {
+            for x in [px + 7, px - 7 - w] {
+                candidates.push((x, py - h - 2 - step * h));
+                candidates.push((x, py + 3 + step * h));
+            }
+        }
+        let (x, y) = candidates
+            .iter()
+            .copied()
+            .find(|&(x, y)| self.clear(x, y, w, h))
+            .unwrap_or(candidates[0]);
         self.boxes.push((x, y, w, h));
-        (x, y)
+        let far = (y - py).abs() > 2 * h;
+        (x, y, far)
     }
 }
 
@@ -300,21 +333,35 @@ impl Figure for TsDiagramFigure<'_> {
             .map_err(&err)?
             .label("stream states")
             .legend(|(x, y)| Circle::new((x + 9, y), 5, STATE.filled()));
-        let mut placer = LabelPlacer { boxes: Vec::new() };
-        let labels: Vec<_> = states
+        let points: Vec<(i32, i32)> = states
             .iter()
-            .map(|(name, s, t)| {
-                let (px, py) = chart.backend_coord(&(*s, *t));
-                let (x, y) = placer.place(px + 7, py - 18, name);
-                Text::new(
-                    name.clone(),
-                    (x, y),
-                    ("sans-serif", 14).into_font().color(&BLACK),
-                )
-            })
+            .map(|(_, s, t)| chart.backend_coord(&(*s, *t)))
             .collect();
-        for label in labels {
-            root.draw(&label).map_err(&err)?;
+        let (x_range, y_range) = (chart.x_range(), chart.y_range());
+        let (left, top) = chart.backend_coord(&(x_range.start, y_range.end));
+        let (right, bottom) = chart.backend_coord(&(x_range.end, y_range.start));
+        let mut placer = LabelPlacer::new((left, top, right, bottom), &points);
+        for ((name, _, _), &(px, py)) in states.iter().zip(&points) {
+            let (x, y, far) = placer.place(px, py, name);
+            if far {
+                // A leader from the point to the near end of the label.
+                let width = name.chars().count() as i32 * 8;
+                let end = (
+                    if x > px { x } else { x + width },
+                    y + LabelPlacer::HEIGHT / 2,
+                );
+                root.draw(&PathElement::new(
+                    [(px, py), end],
+                    RGBColor(120, 120, 120).stroke_width(1),
+                ))
+                .map_err(&err)?;
+            }
+            root.draw(&Text::new(
+                name.clone(),
+                (x, y),
+                ("sans-serif", 14).into_font().color(&BLACK),
+            ))
+            .map_err(&err)?;
         }
         legend(&mut chart, SeriesLabelPosition::UpperLeft, path)?;
         Ok(())

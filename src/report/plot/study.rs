@@ -130,8 +130,11 @@ impl Figure for SweepFigure<'_> {
                 (x1 - x0) / (v0.values.len().max(2) - 1) as f64,
                 (a1 - a0) / (v1.values.len().max(2) - 1) as f64,
             );
+            let top = y_max / 1.1;
+            // The map on the left, its colour bar on the right.
+            let (map_area, bar_area) = root.split_horizontally(SIZE.0 - 150);
             let mut chart = chart(
-                root,
+                &map_area,
                 &format!("liquid yield over {} and {}", v0.name(), v1.name()),
                 22,
                 (x0 - dx / 2.0)..(x1 + dx / 2.0),
@@ -146,41 +149,120 @@ impl Figure for SweepFigure<'_> {
                 .label_style(("sans-serif", 16))
                 .draw()
                 .map_err(&err)?;
+            let cell = |x: f64, y: f64, colour: RGBColor| {
+                Rectangle::new(
+                    [(x - dx / 2.0, y - dy / 2.0), (x + dx / 2.0, y + dy / 2.0)],
+                    colour.filled(),
+                )
+            };
+            // Feasible cases on a perceptually uniform scale; the others on a pale
+            // cell of their own with a mark, never a colour of the scale.
+            let pale = RGBColor(236, 236, 236);
             chart
                 .draw_series(study.cases.iter().map(|c| {
                     let (x, y) = (c.coordinates[0], c.coordinates[1]);
-                    let colour = match &c.outcome {
-                        // Infeasible (design errors): a distinct dark red, never a yield.
-                        Ok(m) if !m.feasible() => RGBColor(120, 0, 0),
-                        Ok(m) => {
-                            let f = (1.1 * m.liquid_yield / y_max).clamp(0.0, 1.0);
-                            RGBColor(
-                                (255.0 * f) as u8,
-                                (60.0 + 120.0 * f) as u8,
-                                (255.0 * (1.0 - f)) as u8,
-                            )
+                    match &c.outcome {
+                        Ok(m) if m.feasible() => {
+                            cell(x, y, viridis(m.liquid_yield / top.max(1e-300)))
                         }
-                        Err(_) => RGBColor(90, 90, 90),
-                    };
-                    Rectangle::new(
-                        [(x - dx / 2.0, y - dy / 2.0), (x + dx / 2.0, y + dy / 2.0)],
-                        colour.filled(),
-                    )
+                        _ => cell(x, y, pale),
+                    }
                 }))
                 .map_err(&err)?;
+            let mark = 8;
+            let infeasible_colour = RGBColor(150, 0, 0);
             chart
-                .draw_series([Text::new(
-                    format!(
-                        "colour: liquid yield from 0 (blue) to {:.3} (orange); dark red: infeasible; grey: failed",
-                        y_max / 1.1
-                    ),
-                    (x0, a1 + dy * 0.2),
-                    ("sans-serif", 16).into_font().color(&BLACK),
-                )])
+                .draw_series(study.cases.iter().filter_map(|c| match &c.outcome {
+                    Ok(m) if !m.feasible() => Some(TriangleMarker::new(
+                        (c.coordinates[0], c.coordinates[1]),
+                        mark,
+                        infeasible_colour.filled(),
+                    )),
+                    _ => None,
+                }))
+                .map_err(&err)?
+                .label("infeasible (design errors)")
+                .legend(move |(x, y)| {
+                    TriangleMarker::new((x + 9, y), 7, infeasible_colour.filled())
+                });
+            chart
+                .draw_series(study.cases.iter().filter_map(|c| match &c.outcome {
+                    Err(_) => Some(Cross::new(
+                        (c.coordinates[0], c.coordinates[1]),
+                        mark,
+                        BLACK.stroke_width(2),
+                    )),
+                    _ => None,
+                }))
+                .map_err(&err)?
+                .label("failed (no solution)")
+                .legend(|(x, y)| Cross::new((x + 9, y), 6, BLACK.stroke_width(2)));
+            chart
+                .configure_series_labels()
+                .position(SeriesLabelPosition::LowerRight)
+                .background_style(WHITE.mix(0.9))
+                .border_style(BLACK)
+                .label_font(("sans-serif", 15))
+                .draw()
                 .map_err(&err)?;
+            // The colour bar.
+            let mut bar = ChartBuilder::on(&bar_area)
+                .margin_top(60)
+                .margin_bottom(74)
+                .margin_right(10)
+                .y_label_area_size(80)
+                .build_cartesian_2d(0.0..1.0, 0.0..top)
+                .map_err(&err)?;
+            bar.configure_mesh()
+                .disable_x_mesh()
+                .disable_y_mesh()
+                .x_labels(0)
+                .y_desc("liquid yield [-] (feasible cases)")
+                .y_label_formatter(&|v| format!("{v:.3}"))
+                .axis_desc_style(("sans-serif", 16))
+                .label_style(("sans-serif", 14))
+                .draw()
+                .map_err(&err)?;
+            let steps = 100;
+            bar.draw_series((0..steps).map(|k| {
+                let (low, high) = (k as f64 / steps as f64, (k + 1) as f64 / steps as f64);
+                Rectangle::new(
+                    [(0.0, low * top), (1.0, high * top)],
+                    viridis((low + high) / 2.0).filled(),
+                )
+            }))
+            .map_err(&err)?;
         }
         Ok(())
     }
+}
+
+/// The viridis colour scale (perceptually uniform; matplotlib's default map, its
+/// anchor colours from memory) at a fraction 0–1, interpolated linearly between nine
+/// anchors.
+fn viridis(fraction: f64) -> RGBColor {
+    const ANCHORS: [(u8, u8, u8); 9] = [
+        (68, 1, 84),
+        (72, 40, 120),
+        (62, 74, 137),
+        (49, 104, 142),
+        (38, 130, 142),
+        (31, 158, 137),
+        (53, 183, 121),
+        (109, 205, 89),
+        (253, 231, 37),
+    ];
+    let f = if fraction.is_finite() {
+        fraction.clamp(0.0, 1.0)
+    } else {
+        0.0
+    };
+    let position = f * (ANCHORS.len() - 1) as f64;
+    let k = (position.floor() as usize).min(ANCHORS.len() - 2);
+    let t = position - k as f64;
+    let mix = |a: u8, b: u8| (f64::from(a) + t * (f64::from(b) - f64::from(a))).round() as u8;
+    let (a, b) = (ANCHORS[k], ANCHORS[k + 1]);
+    RGBColor(mix(a.0, b.0), mix(a.1, b.1), mix(a.2, b.2))
 }
 
 /// Headline figures of several flowsheets side by side: liquid yield and specific
