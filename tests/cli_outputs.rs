@@ -104,6 +104,8 @@ fn plots_of_the_hydrogen_demo() {
             "{name}.png too small to hold text"
         );
     }
+    // And the exergy bars carry no signed zero.
+    assert!(!exergy.contains("-0.0 %"));
     std::fs::remove_dir_all(&dir).ok();
 }
 

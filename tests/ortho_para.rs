@@ -681,3 +681,18 @@ fn the_converting_demo_converges_across_a_wide_sweep() {
         best.0.coordinates
     );
 }
+
+/// A valve's path on the T–p diagram starts at its inlet and ends at its outlet
+/// for hydrogen that carries its para fraction (flashed on the solution, not on the
+/// normal equation at the same enthalpy, which put it 30 K off).
+#[test]
+fn a_valve_path_follows_the_solution() {
+    let (_, solution) = solved(DEMO);
+    let inlet = &stream(&solution, "cold-hx.hot-out").state;
+    let outlet = &stream(&solution, "jt-valve.out").state;
+    let path = cryochain::fluids::diagram::throttling_path(inlet, outlet.pressure, 40);
+    let (first, last) = (path[0], *path.last().unwrap());
+    assert!((first.0 - inlet.temperature).abs() < 1e-6, "{first:?}");
+    assert!((last.0 - outlet.temperature).abs() < 1e-6, "{last:?}");
+    assert!(path.len() >= 35, "{}", path.len());
+}

@@ -147,6 +147,18 @@ pub fn throttling_path(
     let pressures: Vec<f64> = (0..=points)
         .map(|i| inlet.pressure + (outlet_pressure - inlet.pressure) * i as f64 / points as f64)
         .collect();
+    if inlet.para_fraction.is_some() {
+        // Hydrogen of a given para fraction: its enthalpy is on the solution's
+        // datum, so the path is flashed on the solution (at the fixed fraction: a
+        // valve carries no catalyst). Points the solution refuses (between the
+        // species' critical points) are left out.
+        let material = inlet.material();
+        return pressures
+            .iter()
+            .filter_map(|&p| material.state_ph(p, inlet.enthalpy).ok())
+            .map(|s| (s.temperature, s.pressure))
+            .collect();
+    }
     fluid
         .isenthalp(inlet.enthalpy, &pressures)
         .iter()

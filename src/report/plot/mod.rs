@@ -98,7 +98,7 @@ pub(crate) fn render(figure: &impl Figure, size: (u32, u32), canvas: Canvas) -> 
 
 /// Writes `figure` at `size` pixels to `path`, as SVG or PNG by the extension.
 pub(crate) fn write_figure(figure: &impl Figure, size: (u32, u32), path: &Path) -> Result<()> {
-    use plotters::prelude::{BitMapBackend, IntoDrawingArea, SVGBackend};
+    use plotters::prelude::{IntoDrawingArea, SVGBackend};
     ensure_font()?;
     match format_of(path)? {
         Format::Svg => {
@@ -107,11 +107,42 @@ pub(crate) fn write_figure(figure: &impl Figure, size: (u32, u32), path: &Path) 
             root.present().map_err(drawing(path))
         }
         Format::Png => {
-            let root = BitMapBackend::new(path, size).into_drawing_area();
-            figure.draw(&root, path)?;
-            root.present().map_err(drawing(path))
+            // Drawn as SVG, then rasterised with anti-aliasing by resvg, so that
+            // both formats show the same picture.
+            let mut svg = String::new();
+            render(figure, size, Canvas::Svg(&mut svg))?;
+            let png = rasterise(&svg, path)?;
+            std::fs::write(path, png).map_err(|e| Error::file("write", path, e.to_string()))
         }
     }
+}
+
+/// SVG text as PNG bytes, anti-aliased, its text in the bundled font.
+fn rasterise(svg: &str, path: &Path) -> Result<Vec<u8>> {
+    use resvg::{tiny_skia, usvg};
+    static FONTS: OnceLock<std::sync::Arc<usvg::fontdb::Database>> = OnceLock::new();
+    let fonts = FONTS.get_or_init(|| {
+        let mut database = usvg::fontdb::Database::new();
+        database.load_font_data(FONT.to_vec());
+        database.set_sans_serif_family("DejaVu Sans");
+        std::sync::Arc::new(database)
+    });
+    let options = usvg::Options {
+        fontdb: fonts.clone(),
+        font_family: "DejaVu Sans".into(),
+        ..usvg::Options::default()
+    };
+    let failed = |what: String| Error::file("write", path, what);
+    let tree = usvg::Tree::from_str(svg, &options)
+        .map_err(|e| failed(format!("the plot's SVG could not be read back: {e}")))?;
+    let size = tree.size().to_int_size();
+    let mut pixmap = tiny_skia::Pixmap::new(size.width(), size.height())
+        .ok_or_else(|| failed("no room for the image".into()))?;
+    pixmap.fill(tiny_skia::Color::WHITE);
+    resvg::render(&tree, tiny_skia::Transform::default(), &mut pixmap.as_mut());
+    pixmap
+        .encode_png()
+        .map_err(|e| failed(format!("PNG encoding failed: {e}")))
 }
 
 /// The system's reason inside a drawing error's debug text (plotters wraps an
