@@ -37,7 +37,7 @@ fn a_sweep_never_headlines_an_infeasible_case() {
     assert!(text.contains("INFEASIBLE"), "{text}");
     assert!(
         text.contains(
-            "highest yield of the feasible cases 0.14474 at ln2-bath.outlet_temperature = 80 K"
+            "highest yield of the feasible cases 0.14474 at ln2-bath.outlet_temperature = 80.0 K"
         ),
         "{text}"
     );

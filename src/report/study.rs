@@ -75,7 +75,7 @@ pub fn sweep_text(study: &Sweep) -> String {
                 .iter()
                 .zip(&case.coordinates)
                 .map(|(v, c)| {
-                    format!("{} = {c} {}", v.name(), v.unit)
+                    format!("{} = {} {}", v.name(), readable(*c), v.unit)
                         .trim_end()
                         .to_string()
                 })
@@ -89,6 +89,25 @@ pub fn sweep_text(study: &Sweep) -> String {
         None => out.push_str(&format!("\nno feasible case: {tally}\n")),
     }
     out
+}
+
+/// A grid value as people read it: six significant digits, trailing zeros dropped
+/// but one decimal kept (`144.444 bar`, `160.0 bar`, `0.3 bar`).
+pub fn readable(value: f64) -> String {
+    if value == 0.0 || !value.is_finite() {
+        return format!("{value}");
+    }
+    let digits = (5 - value.abs().log10().floor() as i32).clamp(0, 12) as usize;
+    let text = format!("{value:.digits$}");
+    if !text.contains('.') {
+        return format!("{text}.0");
+    }
+    let trimmed = text.trim_end_matches('0');
+    if trimmed.ends_with('.') {
+        format!("{trimmed}0")
+    } else {
+        trimmed.to_string()
+    }
 }
 
 /// An optimisation's result: the best values, the figures there, the effort.
@@ -277,4 +296,18 @@ pub fn comparison_json(cases: &[Compared]) -> String {
 
 fn pretty(value: &serde_json::Value) -> String {
     serde_json::to_string_pretty(value).unwrap_or_default() + "\n"
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn grid_values_read_plainly() {
+        assert_eq!(readable(144.44444444444446), "144.444");
+        assert_eq!(readable(160.0), "160.0");
+        assert_eq!(readable(0.3), "0.3");
+        assert_eq!(readable(79.5), "79.5");
+        assert_eq!(readable(2.5e-5), "0.000025");
+    }
 }

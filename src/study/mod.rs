@@ -74,7 +74,12 @@ impl Variable {
         let values = (0..steps)
             .map(|i| {
                 let f = i as f64 / (steps - 1) as f64;
-                if log {
+                // The ends are exactly the ends given (exp(ln a) need not be a).
+                if i == 0 {
+                    a
+                } else if i == steps - 1 {
+                    b
+                } else if log {
                     (a.ln() + f * (b.ln() - a.ln())).exp()
                 } else {
                     a + f * (b - a)
@@ -347,13 +352,15 @@ pub fn csv_header(variables: &[Variable]) -> Vec<String> {
     h
 }
 
-/// A number written exactly, or an empty cell where it does not exist (NaN: the
-/// specific energy and figure of merit of a case without liquid).
+/// A number written exactly (the shortest decimal that reads back to the same
+/// value, never in exponent form), or an empty cell where it does not exist (NaN:
+/// the specific energy and figure of merit of a case without liquid; infinity: no
+/// exchanger's approach).
 fn exact_or_blank(value: f64) -> String {
-    if value.is_nan() {
-        String::new()
+    if value.is_finite() {
+        format!("{value}")
     } else {
-        format!("{value:e}")
+        String::new()
     }
 }
 
@@ -364,12 +371,12 @@ pub fn csv_row(case: &CaseResult) -> Vec<String> {
     match &case.outcome {
         Ok(m) => row.extend([
             if m.feasible() { "ok" } else { "infeasible" }.to_string(),
-            format!("{:e}", m.liquid_yield),
-            format!("{:e}", m.liquid_flow),
+            exact_or_blank(m.liquid_yield),
+            exact_or_blank(m.liquid_flow),
             exact_or_blank(m.specific_energy),
             exact_or_blank(m.figure_of_merit),
-            format!("{:e}", m.shaft_power),
-            format!("{:e}", m.min_approach),
+            exact_or_blank(m.shaft_power),
+            exact_or_blank(m.min_approach),
             m.design_errors.to_string(),
             m.iterations.to_string(),
             String::new(),
@@ -478,6 +485,9 @@ mod tests {
         assert_eq!(v.override_for(100.0).value, "100 bar");
         let l = Variable::parse_range("x.y=1bar..100bar:3:log").unwrap();
         assert!((l.values[1] - 10.0).abs() < 1e-12);
+        // Log spacing ends exactly at the ends given (exp(ln 0.3) is not 0.3).
+        let l = Variable::parse_range("x.y=0.3bar..7bar:5:log").unwrap();
+        assert_eq!((l.values[0], l.values[4]), (0.3, 7.0));
         assert!(Variable::parse_range("x.y=1bar..100K:3").is_err());
         assert!(Variable::parse_range("x.y=1bar..2bar").is_err());
         assert!(Variable::parse_range("x.y=1 furlong..2 furlong:3").is_err());
