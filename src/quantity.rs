@@ -104,6 +104,8 @@ struct UnitRule {
     dimension: Dimension,
     scale: f64,
     offset: f64,
+    /// A gauge pressure: the ambient pressure is added.
+    gauge: bool,
 }
 
 const fn rule(dimension: Dimension, scale: f64, offset: f64) -> UnitRule {
@@ -111,6 +113,17 @@ const fn rule(dimension: Dimension, scale: f64, offset: f64) -> UnitRule {
         dimension,
         scale,
         offset,
+        gauge: false,
+    }
+}
+
+/// A gauge pressure unit: `scale` Pa per unit above the ambient pressure.
+const fn gauge(scale: f64) -> UnitRule {
+    UnitRule {
+        dimension: Dimension::Pressure,
+        scale,
+        offset: 0.0,
+        gauge: true,
     }
 }
 
@@ -144,12 +157,16 @@ fn lookup(unit: &str, expected: Dimension) -> Option<UnitRule> {
         "°C" | "degC" | "C" | "celsius" => temperature(1.0, 273.15),
         "°F" | "degF" | "F" => temperature(5.0 / 9.0, 459.67 * 5.0 / 9.0),
         "°R" | "degR" | "R" => temperature(5.0 / 9.0, 0.0),
-        "Pa" | "Pa(a)" => rule(Pressure, 1.0, 0.0),
+        "Pa" | "Paa" => rule(Pressure, 1.0, 0.0),
         "hPa" => rule(Pressure, 1e2, 0.0),
         "kPa" => rule(Pressure, 1e3, 0.0),
         "MPa" => rule(Pressure, 1e6, 0.0),
         "GPa" => rule(Pressure, 1e9, 0.0),
         "bar" | "bara" => rule(Pressure, 1e5, 0.0),
+        "barg" => gauge(1e5),
+        "kPag" => gauge(1e3),
+        "MPag" => gauge(1e6),
+        "psig" => gauge(6_894.757_293_168_361),
         "mbar" => rule(Pressure, 1e2, 0.0),
         "atm" => rule(Pressure, STANDARD_ATMOSPHERE, 0.0),
         "psi" | "psia" => rule(Pressure, 6_894.757_293_168_361, 0.0),
@@ -236,6 +253,23 @@ fn split_number(text: &str) -> Option<(f64, &str)> {
 /// assert!(parse("20", Dimension::Pressure).is_err());
 /// ```
 pub fn parse(text: &str, expected: Dimension) -> Result<f64, QuantityError> {
+    parse_with_ambient(text, expected, STANDARD_ATMOSPHERE)
+}
+
+/// As [`parse`], with gauge pressures (`barg`, `kPag`, `MPag`, `psig`, also written
+/// `bar(g)`) taken above `ambient_pressure` Pa (a flowsheet's
+/// `settings.ambient_pressure`; [`parse`] takes one standard atmosphere).
+///
+/// ```
+/// use cryochain::quantity::{parse, parse_with_ambient, Dimension};
+/// assert_eq!(parse("2 barg", Dimension::Pressure).unwrap(), 2e5 + 101_325.0);
+/// assert_eq!(parse_with_ambient("1 bar(g)", Dimension::Pressure, 90e3).unwrap(), 190e3);
+/// ```
+pub fn parse_with_ambient(
+    text: &str,
+    expected: Dimension,
+    ambient_pressure: f64,
+) -> Result<f64, QuantityError> {
     let error = |reason: String| QuantityError {
         text: text.to_string(),
         expected,
@@ -260,7 +294,17 @@ pub fn parse(text: &str, expected: Dimension) -> Result<f64, QuantityError> {
             expected.name()
         )));
     }
-    let value = number * found.scale + found.offset;
+    let value = if found.gauge {
+        let value = number * found.scale + ambient_pressure;
+        if value <= 0.0 {
+            return Err(error(format!(
+                "this is {value} Pa absolute (gauge pressure above an ambient of {ambient_pressure} Pa): below vacuum"
+            )));
+        }
+        value
+    } else {
+        number * found.scale + found.offset
+    };
     if expected == Dimension::Temperature && value <= 0.0 {
         return Err(error(format!(
             "this is {value} K, at or below absolute zero"

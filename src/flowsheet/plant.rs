@@ -49,6 +49,10 @@ pub struct Unit {
 /// Solver and design-check settings, with documented defaults.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Settings {
+    /// The site's ambient pressure, Pa, above which gauge pressures (`barg`,
+    /// `psig`) are read (default one standard atmosphere; the dead state of the
+    /// exergy account stays at 1 atm by definition).
+    pub ambient_pressure: f64,
     /// Convergence tolerance on the scaled tear residual.
     pub tolerance: f64,
     /// Iteration cap of the recycle loop.
@@ -79,6 +83,7 @@ pub struct Settings {
 impl Default for Settings {
     fn default() -> Self {
         Settings {
+            ambient_pressure: crate::quantity::STANDARD_ATMOSPHERE,
             tolerance: 1e-11,
             max_iterations: 400,
             method: Method::Wegstein,

@@ -4,6 +4,7 @@
 //! is solved. Settings are read in `settings.rs`.
 
 use super::plant::*;
+use super::settings::AMBIENT_PRESSURE_RANGE;
 use crate::equipment::{self, Reader, WrittenInlet};
 use crate::error::FlowsheetError;
 use crate::fluids::{self, Fluid};
@@ -156,10 +157,23 @@ pub fn load_str(text: &str, file: &str, overrides: &[Override]) -> Result<Plant,
         overridden.insert((o.target.clone(), o.key.clone()));
     }
     let locator = Locator::new(text);
+    // Gauge pressures are read above the ambient pressure; a bad value is
+    // reported, located, when the settings are read.
+    let ambient_pressure = raw
+        .settings
+        .get("ambient_pressure")
+        .and_then(|v| match v {
+            serde_yaml::Value::String(s) => Some(s.clone()),
+            _ => None,
+        })
+        .and_then(|text| crate::quantity::parse(&text, crate::quantity::Dimension::Pressure).ok())
+        .filter(|p| (AMBIENT_PRESSURE_RANGE.0..=AMBIENT_PRESSURE_RANGE.1).contains(p))
+        .unwrap_or(crate::quantity::STANDARD_ATMOSPHERE);
     let place = Place {
         file,
         locator: &locator,
         overridden: &overridden,
+        ambient_pressure,
     };
     Resolver::new(&raw, &place).resolve()
 }

@@ -7,7 +7,11 @@ use crate::error::FlowsheetError;
 use crate::quantity::{self, Dimension};
 
 /// The settings' names, in the order they are listed in messages.
-const SETTING_NAMES: &str = "tolerance, max_iterations, segments, method, initial_temperature, approach_floor, approach_floor_fraction, mixer_temperature_limit, discharge_limit, expander_liquid_limit";
+/// The range of `settings.ambient_pressure`, Pa: from high mountain sites to the
+/// highest sea-level pressures.
+pub const AMBIENT_PRESSURE_RANGE: (f64, f64) = (30e3, 110e3);
+
+const SETTING_NAMES: &str = "ambient_pressure, tolerance, max_iterations, segments, method, initial_temperature, approach_floor, approach_floor_fraction, mixer_temperature_limit, discharge_limit, expander_liquid_limit";
 
 impl Resolver<'_> {
     pub(super) fn settings(&self) -> Result<Settings, FlowsheetError> {
@@ -63,6 +67,19 @@ impl Resolver<'_> {
                 };
             match key.as_str() {
                 "tolerance" => s.tolerance = number(1e-14, 1e-3)?,
+                "ambient_pressure" => {
+                    let v = quantity::parse(&text, Dimension::Pressure)
+                        .map_err(|e| bad(e.to_string()))?;
+                    let (low, high) = AMBIENT_PRESSURE_RANGE;
+                    if !(low..=high).contains(&v) {
+                        return Err(bad(format!(
+                            "{text} is outside the allowed range {} to {} kPa",
+                            low / 1e3,
+                            high / 1e3
+                        )));
+                    }
+                    s.ambient_pressure = v;
+                }
                 "max_iterations" => s.max_iterations = number(1.0, 100_000.0)? as usize,
                 "segments" => s.segments = number(10.0, 5000.0)? as usize,
                 "method" => {

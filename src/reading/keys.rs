@@ -16,6 +16,8 @@ pub struct Place<'a> {
     pub locator: &'a Locator,
     /// Keys replaced by `--set`, reported as such.
     pub overridden: &'a BTreeSet<(String, String)>,
+    /// The ambient pressure gauge pressures are read above, Pa.
+    pub ambient_pressure: f64,
 }
 
 /// The keys of one equipment item.
@@ -150,7 +152,7 @@ impl<'a> Params<'a> {
         };
         let text = scalar_text(raw)
             .ok_or_else(|| self.error(key, format!("'{key}' must be {}", dimension.describe())))?;
-        let value = quantity::parse(&text, dimension)
+        let value = quantity::parse_with_ambient(&text, dimension, self.place.ambient_pressure)
             .map_err(|e| self.error(key, format!("{key}: {e}")))?;
         if !(value >= low && value <= high) {
             return Err(self.error(
