@@ -54,3 +54,69 @@ fn a_flowsheet_reads_gauge_pressures_above_its_site() {
         "{error}"
     );
 }
+
+/// `--units engineering`: °C beside K (T − 273.15, the definition), flows in kg/h
+/// (g/s × 3.6) and the product in t/d (kg/h × 0.024) too; SI stays the default and
+/// JSON stays SI.
+#[test]
+fn engineering_units_in_the_text_and_the_report() {
+    let root = std::path::Path::new(env!("CARGO_MANIFEST_DIR"));
+    let run = |args: &[&str]| {
+        let out = std::process::Command::new(env!("CARGO_BIN_EXE_cryochain"))
+            .args(args)
+            .current_dir(root)
+            .output()
+            .unwrap();
+        (
+            out.status.code().unwrap_or(-1),
+            String::from_utf8_lossy(&out.stdout).into_owned(),
+            String::from_utf8_lossy(&out.stderr).into_owned(),
+        )
+    };
+    let file = "flowsheets/nitrogen-linde-hampson.yaml";
+    let (_, json, _) = run(&["solve", file, "--json"]);
+    let value: serde_json::Value = serde_json::from_str(&json).unwrap();
+    let liquid = value["liquid_flow_kg_s"].as_f64().unwrap();
+    let first = &value["streams"][0];
+    let (t, flow) = (
+        first["temperature_K"].as_f64().unwrap(),
+        first["mass_flow_kg_s"].as_f64().unwrap(),
+    );
+    let (code, text, err) = run(&["solve", file, "--units", "engineering"]);
+    assert_eq!(code, 0, "{err}");
+    assert!(
+        text.contains("T [°C]") && text.contains("flow [kg/h]"),
+        "{text}"
+    );
+    let row = text
+        .lines()
+        .find(|l| l.starts_with(first["name"].as_str().unwrap()))
+        .unwrap();
+    assert!(row.contains(&format!("{:.2}", t - 273.15)), "{row}");
+    assert!(row.contains(&format!("{:.3}", flow * 3600.0)), "{row}");
+    assert!(
+        text.contains(&format!(
+            "{:.3} kg/h = {:.4} t/d",
+            liquid * 3600.0,
+            liquid * 86.4
+        )),
+        "{text}"
+    );
+    let (_, si, _) = run(&["solve", file]);
+    assert!(si.contains("flow [g/s]") && !si.contains("T [°C]"));
+    let page = std::env::temp_dir().join(format!("cryochain-units-{}.html", std::process::id()));
+    let (code, _, _) = run(&[
+        "solve",
+        file,
+        "--units",
+        "engineering",
+        "--report",
+        page.to_str().unwrap(),
+    ]);
+    assert_eq!(code, 0);
+    let html = std::fs::read_to_string(&page).unwrap();
+    assert!(html.contains("t/d") && html.contains("T [°C]"));
+    let (code, _, err) = run(&["solve", file, "--units", "imperial"]);
+    assert_eq!(code, 1);
+    assert!(err.contains("si or engineering"), "{err}");
+}

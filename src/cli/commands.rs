@@ -95,11 +95,16 @@ pub struct SolveArgs {
     /// input, cautions) to this file.
     #[arg(long, value_name = "FILE")]
     pub report: Option<PathBuf>,
+    /// Units of the text and the report: si (K, bar, g/s, kW) or engineering (°C
+    /// beside K, kg/h and t/d, kW, kWh/kg). JSON and CSV stay SI.
+    #[arg(long, value_name = "si|engineering", default_value = "si")]
+    pub units: String,
 }
 
 /// `solve`: results of a flowsheet, with plots and CSV tables on request.
 pub fn solve(args: &SolveArgs) -> Result<Output, Failure> {
     let format = args.format.choose("solve", &[Format::Text, Format::Json])?;
+    let units = report::Units::parse(&args.units)?;
     let mut notes = Vec::new();
     let plant = load_plant(args.file.as_deref(), &args.set, &mut notes)?;
     let solution = cryochain::solve::solve(&plant, &Default::default())?;
@@ -131,7 +136,14 @@ pub fn solve(args: &SolveArgs) -> Result<Output, Failure> {
     let errors = design_errors(&findings);
     if let Some(path) = &args.report {
         let text = flowsheet_text(args.file.as_deref())?;
-        let page = report::html::solution_page(&plant, &solution, &findings, &text, &provenance())?;
+        let page = report::html::solution_page(
+            &plant,
+            &solution,
+            &findings,
+            &text,
+            &provenance(),
+            report::Units::parse(&args.units)?,
+        )?;
         write_report(path, &page, &mut notes)?;
     }
     let stdout = match format {
@@ -140,12 +152,12 @@ pub fn solve(args: &SolveArgs) -> Result<Output, Failure> {
         _ if errors > 0 => format!(
             "{}\n{}\n{}\n",
             report::solution::findings_text(&findings),
-            report::solution::text(&solution),
+            report::solution::text_in(&solution, units),
             &report::caution::caution(&solution.fluids)
         ),
         _ => format!(
             "{}\n{}\n{}\n",
-            report::solution::text(&solution),
+            report::solution::text_in(&solution, units),
             report::solution::findings_text(&findings),
             &report::caution::caution(&solution.fluids)
         ),
@@ -190,6 +202,9 @@ pub struct CheckArgs {
     /// Write one self-contained HTML page with the findings and the results.
     #[arg(long, value_name = "FILE")]
     pub report: Option<PathBuf>,
+    /// Units of the report: si or engineering.
+    #[arg(long, value_name = "si|engineering", default_value = "si")]
+    pub units: String,
 }
 
 /// `check`: the design checks; a design with errors fails with the design code,
@@ -202,7 +217,14 @@ pub fn check(args: &CheckArgs) -> Result<Output, Failure> {
     let findings = rules::check(&plant, &solution);
     if let Some(path) = &args.report {
         let text = flowsheet_text(args.file.as_deref())?;
-        let page = report::html::solution_page(&plant, &solution, &findings, &text, &provenance())?;
+        let page = report::html::solution_page(
+            &plant,
+            &solution,
+            &findings,
+            &text,
+            &provenance(),
+            report::Units::parse(&args.units)?,
+        )?;
         write_report(path, &page, &mut notes)?;
     }
     let stdout = match format {

@@ -286,6 +286,7 @@ pub fn solution_page(
     findings: &[Finding],
     flowsheet_text: &str,
     provenance: &Provenance,
+    units: super::Units,
 ) -> Result<String> {
     let mut body = header(
         &solution.title,
@@ -296,7 +297,7 @@ pub fn solution_page(
     );
     body.push_str(&verdict(findings));
     body.push_str("<section id=\"summary\">\n<h2>Summary</h2>\n<table class=\"summary\">\n");
-    for (label, value) in summary_rows(solution) {
+    for (label, value) in summary_rows(solution, units) {
         body.push_str(&format!(
             "<tr><th>{}</th><td>{}</td></tr>\n",
             escape(label),
@@ -326,7 +327,7 @@ pub fn solution_page(
     }
     body.push_str("</section>\n");
     body.push_str("<section id=\"streams\">\n<h2>Streams</h2>\n");
-    body.push_str(&table(&stream_table(solution)));
+    body.push_str(&table(&stream_table(solution, units)));
     if let Some(spin) = spin_table(solution) {
         body.push_str(&format!(
             "<h3>{}</h3>\n{}",

@@ -433,6 +433,11 @@ fn or_dash(v: Option<f64>, f: impl Fn(f64) -> String) -> String {
 
 /// The solution as text: summary, streams, equipment.
 pub fn text(solution: &Solution) -> String {
+    text_in(solution, super::Units::Si)
+}
+
+/// The solution as text in the chosen units.
+pub fn text_in(solution: &Solution, units: super::Units) -> String {
     let mut out = String::new();
     out.push_str(&format!("{}\n", solution.title));
     out.push_str(&format!("source: {}\n", solution.source));
@@ -448,11 +453,11 @@ pub fn text(solution: &Solution) -> String {
     out.push_str(&wrap(&format!("tear streams: {tears}"), 98, "  "));
     out.push('\n');
     out.push_str("Summary\n");
-    for (label, value) in summary_rows(solution) {
+    for (label, value) in summary_rows(solution, units) {
         out.push_str(&format!("  {label:<26}{value}\n"));
     }
     for table in [
-        Some(stream_table(solution)),
+        Some(stream_table(solution, units)),
         spin_table(solution),
         Some(equipment_table(solution)),
         Some(account_table(solution)),
@@ -468,17 +473,27 @@ pub fn text(solution: &Solution) -> String {
 
 /// The headline figures as (label, value with its unit) rows, in reading order:
 /// the summary of the text report and of the HTML page.
-pub fn summary_rows(solution: &Solution) -> Vec<(&'static str, String)> {
+pub fn summary_rows(solution: &Solution, units: super::Units) -> Vec<(&'static str, String)> {
     let s = &solution.summary;
+    let engineering = units == super::Units::Engineering;
     let mut rows: Vec<(&'static str, String)> = Vec::new();
     rows.push((
         "liquid product",
-        format!(
-            "{:.4} g/s = {:.3} kg/h = {:.2} L/h",
-            s.liquid_flow * 1e3,
-            s.liquid_flow * 3600.0,
-            s.liquid_volume_flow_l_h
-        ),
+        if engineering {
+            format!(
+                "{:.3} kg/h = {:.4} t/d = {:.2} L/h",
+                s.liquid_flow * 3600.0,
+                s.liquid_flow * 86.4,
+                s.liquid_volume_flow_l_h
+            )
+        } else {
+            format!(
+                "{:.4} g/s = {:.3} kg/h = {:.2} L/h",
+                s.liquid_flow * 1e3,
+                s.liquid_flow * 3600.0,
+                s.liquid_volume_flow_l_h
+            )
+        },
     ));
     rows.push((
         "liquid yield",
@@ -527,9 +542,13 @@ pub fn summary_rows(solution: &Solution) -> Vec<(&'static str, String)> {
         rows.push((
             "precooling",
             format!(
-                "{:.3} kW removed; cryogen boiled {:.3} g/s; work equivalent {:.3} kW",
+                "{:.3} kW removed; cryogen boiled {}; work equivalent {:.3} kW",
                 s.precooling_duty / 1e3,
-                s.cryogen_boil_off * 1e3,
+                if engineering {
+                    format!("{:.3} kg/h", s.cryogen_boil_off * 3600.0)
+                } else {
+                    format!("{:.3} g/s", s.cryogen_boil_off * 1e3)
+                },
                 s.precooling_work / 1e3
             ),
         ));
@@ -609,37 +628,62 @@ impl ResultTable {
     }
 }
 
-/// Every stream's state and flow.
-pub fn stream_table(solution: &Solution) -> ResultTable {
+/// Every stream's state and flow; in engineering units with °C beside K and the
+/// flow in kg/h.
+pub fn stream_table(solution: &Solution, units: super::Units) -> ResultTable {
+    let engineering = units == super::Units::Engineering;
     let rows = solution
         .stream_names
         .iter()
         .zip(&solution.streams)
         .map(|(name, f)| {
-            vec![
+            let mut row = vec![
                 name.clone(),
                 f.state.fluid().name.clone(),
                 format!("{:.3}", f.state.temperature),
+            ];
+            if engineering {
+                row.push(format!("{:.2}", f.state.temperature - 273.15));
+            }
+            row.extend([
                 format!("{:.4}", f.state.pressure / 1e5),
                 format!("{:.3}", f.state.enthalpy / 1e3),
                 format!("{:.4}", f.state.entropy / 1e3),
-                format!("{:.4}", f.flow * 1e3),
+                if engineering {
+                    format!("{:.3}", f.flow * 3600.0)
+                } else {
+                    format!("{:.4}", f.flow * 1e3)
+                },
                 phase_label(&f.state),
-            ]
+            ]);
+            row
         })
         .collect();
+    let mut headers = vec![
+        ("stream", Align::Left),
+        ("fluid", Align::Left),
+        ("T [K]", Align::Right),
+    ];
+    if engineering {
+        headers.push(("T [°C]", Align::Right));
+    }
+    headers.extend([
+        ("p [bar]", Align::Right),
+        ("h [kJ/kg]", Align::Right),
+        ("s [kJ/kgK]", Align::Right),
+        (
+            if engineering {
+                "flow [kg/h]"
+            } else {
+                "flow [g/s]"
+            },
+            Align::Right,
+        ),
+        ("phase", Align::Left),
+    ]);
     ResultTable {
         title: "Streams".into(),
-        headers: vec![
-            ("stream", Align::Left),
-            ("fluid", Align::Left),
-            ("T [K]", Align::Right),
-            ("p [bar]", Align::Right),
-            ("h [kJ/kg]", Align::Right),
-            ("s [kJ/kgK]", Align::Right),
-            ("flow [g/s]", Align::Right),
-            ("phase", Align::Left),
-        ],
+        headers,
         rows,
     }
 }
