@@ -117,6 +117,7 @@ footer { color: var(--muted); font-size: 0.85em; margin-top: 40px; border-top: 1
 @media print {
   body { max-width: none; padding: 0; font-size: 10.5pt; }
   h2 { break-before: page; break-after: avoid; }
+  h3 { break-after: avoid; }
   #verdict h2, #summary h2 { break-before: auto; }
   table, figure, .finding { break-inside: avoid; }
   thead { display: table-header-group; }
