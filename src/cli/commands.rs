@@ -61,6 +61,33 @@ fn write_report(path: &Path, page: &str, notes: &mut Vec<String>) -> Result<(), 
     Ok(())
 }
 
+/// A solved flowsheet with its findings, as a report shows it.
+struct Solved<'a> {
+    plant: &'a Plant,
+    solution: &'a cryochain::solve::Solution,
+    findings: &'a [rules::Finding],
+}
+
+/// Writes the HTML page of a solved flowsheet (`solve` and `check --report`).
+fn solution_report(
+    path: &Path,
+    file: Option<&Path>,
+    units: report::Units,
+    solved: &Solved,
+    notes: &mut Vec<String>,
+) -> Result<(), Failure> {
+    let text = flowsheet_text(file)?;
+    let page = report::html::solution_page(
+        solved.plant,
+        solved.solution,
+        solved.findings,
+        &text,
+        &provenance(),
+        units,
+    )?;
+    write_report(path, &page, notes)
+}
+
 fn read_text(path: &Path) -> Result<String, Failure> {
     std::fs::read_to_string(path)
         .map_err(|e| Failure::new(format!("cannot read {}: {e}", path.display()), exit::IO))
@@ -135,16 +162,12 @@ pub fn solve(args: &SolveArgs) -> Result<Output, Failure> {
     let findings = rules::check(&plant, &solution);
     let errors = design_errors(&findings);
     if let Some(path) = &args.report {
-        let text = flowsheet_text(args.file.as_deref())?;
-        let page = report::html::solution_page(
-            &plant,
-            &solution,
-            &findings,
-            &text,
-            &provenance(),
-            report::Units::parse(&args.units)?,
-        )?;
-        write_report(path, &page, &mut notes)?;
+        let solved = Solved {
+            plant: &plant,
+            solution: &solution,
+            findings: &findings,
+        };
+        solution_report(path, args.file.as_deref(), units, &solved, &mut notes)?;
     }
     let stdout = match format {
         Format::Json => report::solution::json(&solution, &findings),
@@ -216,16 +239,13 @@ pub fn check(args: &CheckArgs) -> Result<Output, Failure> {
     let solution = cryochain::solve::solve(&plant, &Default::default())?;
     let findings = rules::check(&plant, &solution);
     if let Some(path) = &args.report {
-        let text = flowsheet_text(args.file.as_deref())?;
-        let page = report::html::solution_page(
-            &plant,
-            &solution,
-            &findings,
-            &text,
-            &provenance(),
-            report::Units::parse(&args.units)?,
-        )?;
-        write_report(path, &page, &mut notes)?;
+        let solved = Solved {
+            plant: &plant,
+            solution: &solution,
+            findings: &findings,
+        };
+        let units = report::Units::parse(&args.units)?;
+        solution_report(path, args.file.as_deref(), units, &solved, &mut notes)?;
     }
     let stdout = match format {
         Format::Json => serde_json::to_string_pretty(&findings).unwrap_or_default() + "\n",

@@ -698,14 +698,7 @@ impl Blend {
         enthalpy: f64,
         near: &State,
     ) -> Result<State> {
-        self.check(self.temperature_range().1, pressure, 0.5)?;
-        self.state_p_property(
-            pressure,
-            enthalpy,
-            &spin::equilibrium_para_fraction,
-            Target::Enthalpy,
-            Some(near.temperature),
-        )
+        self.state_ph_path_near(pressure, enthalpy, &spin::equilibrium_para_fraction, near)
     }
 
     /// As [`Blend::state_ph`], the search started at `near`'s temperature.
@@ -717,10 +710,22 @@ impl Blend {
         near: &State,
     ) -> Result<State> {
         self.check(self.temperature_range().1, pressure, para_fraction)?;
+        self.state_ph_path_near(pressure, enthalpy, &|_| para_fraction, near)
+    }
+
+    /// As [`Blend::state_ph_path`], the search started at `near`'s temperature.
+    pub fn state_ph_path_near(
+        &self,
+        pressure: f64,
+        enthalpy: f64,
+        para_at: &dyn Fn(f64) -> f64,
+        near: &State,
+    ) -> Result<State> {
+        self.check(self.temperature_range().1, pressure, 0.5)?;
         self.state_p_property(
             pressure,
             enthalpy,
-            &|_| para_fraction,
+            para_at,
             Target::Enthalpy,
             Some(near.temperature),
         )
