@@ -148,6 +148,21 @@ fn results_do_not_depend_on_thread_count() {
             })
     };
     assert_eq!(run(1), run(2));
+    // A longer one-parameter sweep is cut into runs of warm-started cases so that
+    // every core works; the cut follows the grid, not the machine.
+    let vars = [Variable::parse_range("compressor.outlet_pressure=120bar..240bar:20").unwrap()];
+    let run = |threads: usize| {
+        rayon::ThreadPoolBuilder::new()
+            .num_threads(threads)
+            .build()
+            .unwrap()
+            .install(|| {
+                to_csv(&sweep(&text(file), file, &[], &vars, None, &|_, _| {}).unwrap()).unwrap()
+            })
+    };
+    let one = run(1);
+    assert_eq!(one, run(2));
+    assert_eq!(one, run(3));
 }
 
 #[test]

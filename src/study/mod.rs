@@ -230,6 +230,11 @@ pub struct Sweep {
     pub cases: Vec<CaseResult>,
 }
 
+/// Runs of cases a sweep is cut into at least, so that a grid of few rows still
+/// keeps every core busy (a fixed number, so that results never depend on the
+/// machine).
+const PARALLEL_RUNS: usize = 8;
+
 /// Runs a sweep of the flowsheet `text` over `variables` (one to three), with fixed
 /// `overrides` first. `shard` = (k, n), 1-based, runs every n-th row of the grid
 /// starting at row k. `progress` is called with (cases done, cases total).
@@ -262,11 +267,28 @@ pub fn sweep(
     let my_rows: Vec<usize> = (0..rows).filter(|r| r % n == k - 1).collect();
     let done = std::sync::atomic::AtomicUsize::new(0);
     let my_total = my_rows.len() * row_length;
-    let results: Vec<Vec<CaseResult>> = my_rows
-        .par_iter()
-        .map(|&row| {
-            let mut warm: Option<Vec<f64>> = None;
+    // The unit of work is a run of cases along a row, each case warm-started from
+    // the one before. A grid of few rows (a one-parameter sweep has one) is cut
+    // into runs so that every core has work; the cut depends on the grid's shape
+    // alone, so the results do not depend on the number of threads.
+    let run_length = if rows >= PARALLEL_RUNS {
+        row_length
+    } else {
+        row_length.div_ceil(PARALLEL_RUNS.div_ceil(rows)).max(1)
+    };
+    let runs: Vec<(usize, usize)> = my_rows
+        .iter()
+        .flat_map(|&row| {
             (0..row_length)
+                .step_by(run_length)
+                .map(move |start| (row, start))
+        })
+        .collect();
+    let results: Vec<Vec<CaseResult>> = runs
+        .par_iter()
+        .map(|&(row, start)| {
+            let mut warm: Option<Vec<f64>> = None;
+            (start..(start + run_length).min(row_length))
                 .map(|j| {
                     let index = row * row_length + j;
                     let coordinates = coordinates_of(variables, index);
