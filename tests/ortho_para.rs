@@ -10,8 +10,8 @@
 
 mod common;
 
-use common::{column, read_csv, relative};
-use cryochain::equipment::{Details, Flow};
+use common::{column, read_csv, relative, stream};
+use cryochain::equipment::Details;
 use cryochain::flowsheet::load;
 use cryochain::fluids::blend::Blend;
 use cryochain::fluids::{fluid, spin};
@@ -29,15 +29,6 @@ fn solved(file: &str) -> (cryochain::flowsheet::Plant, Solution) {
     let plant = load(Path::new(file), &[]).unwrap();
     let solution = solve(&plant, &Options::default()).unwrap();
     (plant, solution)
-}
-
-fn stream<'a>(solution: &'a Solution, name: &str) -> &'a Flow {
-    let index = solution
-        .stream_names
-        .iter()
-        .position(|n| n == name)
-        .unwrap_or_else(|| panic!("no stream {name}"));
-    &solution.streams[index]
 }
 
 fn number(text: &str) -> f64 {

@@ -5,23 +5,14 @@
 //! Systems, the simple Linde-Hampson analysis extended by a heat leak):
 //! y = (h_return − h_high − Q/ṁ) / (h_return − h_liquid).
 
+mod common;
+
+use common::stream;
 use cryochain::flowsheet::load;
 use cryochain::solve::{solve, Options};
 use std::path::Path;
 
 const FILE: &str = "tests/flowsheets/nitrogen-with-transfer-line.yaml";
-
-fn stream<'a>(
-    solution: &'a cryochain::solve::Solution,
-    name: &str,
-) -> &'a cryochain::equipment::Flow {
-    let index = solution
-        .stream_names
-        .iter()
-        .position(|n| n == name)
-        .unwrap_or_else(|| panic!("no stream {name}"));
-    &solution.streams[index]
-}
 
 #[test]
 fn a_transfer_line_adds_its_heat_leak_and_pressure_drop() {

@@ -795,16 +795,7 @@ impl Blend {
     /// (p, s) and (p, x).
     pub fn state_from(&self, first: Spec, second: Spec, para: ParaChoice) -> Result<State> {
         use super::spec::Property::*;
-        let (a, b) = (first, second);
-        let pair = |x: Property, y: Property| -> Option<(f64, f64)> {
-            if a.property == x && b.property == y {
-                Some((a.value, b.value))
-            } else if a.property == y && b.property == x {
-                Some((b.value, a.value))
-            } else {
-                None
-            }
-        };
+        let pair = |x: Property, y: Property| Spec::pair(first, second, x, y);
         let path = |t: f64| match para {
             ParaChoice::Fixed(x) => x,
             ParaChoice::Equilibrium => spin::equilibrium_para_fraction(t),
@@ -823,8 +814,8 @@ impl Blend {
         }
         Err(Error::Input(format!(
             "with a para fraction, the pair {} and {} is not supported; give T and p, p and h, p and s, or p and x",
-            a.property.key(),
-            b.property.key()
+            first.property.key(),
+            second.property.key()
         )))
     }
 }

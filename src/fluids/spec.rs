@@ -90,6 +90,18 @@ impl Spec {
         Ok(Spec { property, value })
     }
 
+    /// The values of two specifications as the pair (x, y), given in either
+    /// order, or None when they are not that pair.
+    pub fn pair(first: Spec, second: Spec, x: Property, y: Property) -> Option<(f64, f64)> {
+        if first.property == x && second.property == y {
+            Some((first.value, second.value))
+        } else if first.property == y && second.property == x {
+            Some((second.value, first.value))
+        } else {
+            None
+        }
+    }
+
     /// Builds a specification from a property and a number already in SI units.
     pub fn si(property: Property, value: f64) -> Spec {
         Spec { property, value }
@@ -100,16 +112,7 @@ impl Fluid {
     /// The state fixed by two specifications, in either order.
     pub fn state_from(&'static self, first: Spec, second: Spec) -> Result<State> {
         use Property::*;
-        let (a, b) = (first, second);
-        let pair = |x: Property, y: Property| -> Option<(f64, f64)> {
-            if a.property == x && b.property == y {
-                Some((a.value, b.value))
-            } else if a.property == y && b.property == x {
-                Some((b.value, a.value))
-            } else {
-                None
-            }
-        };
+        let pair = |x: Property, y: Property| Spec::pair(first, second, x, y);
         if let Some((t, p)) = pair(Temperature, Pressure) {
             return self.state_tp(t, p);
         }
@@ -130,8 +133,8 @@ impl Fluid {
         }
         Err(Error::Input(format!(
             "the pair {} and {} is not supported; give one of: {SUPPORTED_PAIRS}",
-            a.property.key(),
-            b.property.key()
+            first.property.key(),
+            second.property.key()
         )))
     }
 }

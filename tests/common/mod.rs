@@ -55,3 +55,16 @@ pub fn run_in(dir: &std::path::Path, args: &[&str]) -> (i32, String, String) {
         String::from_utf8_lossy(&out.stderr).into_owned(),
     )
 }
+
+/// The stream named `name` (`unit.port`) of a solution.
+pub fn stream<'a>(
+    solution: &'a cryochain::solve::Solution,
+    name: &str,
+) -> &'a cryochain::equipment::Flow {
+    let index = solution
+        .stream_names
+        .iter()
+        .position(|n| n == name)
+        .unwrap_or_else(|| panic!("no stream {name}"));
+    &solution.streams[index]
+}
