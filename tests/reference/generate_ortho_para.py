@@ -175,17 +175,7 @@ def saturation_temperature(p, x):
         return tp
     if x <= 0.0:
         return to
-    flo = gap(lo)
-    for _ in range(200):
-        mid = 0.5 * (lo + hi)
-        fm = gap(mid)
-        if (fm > 0) == (flo > 0):
-            lo, flo = mid, fm
-        else:
-            hi = mid
-        if hi - lo < 1e-12:
-            break
-    return 0.5 * (lo + hi)
+    return bisect(gap, lo, hi, 1e-12 / hi)
 
 
 def saturated(p, x):
