@@ -21,6 +21,10 @@ fn solving(c: &mut Criterion) {
         "tests/flowsheets/cascade-nitrogen-hydrogen-frozen-normal.yaml",
         "tests/flowsheets/hydrogen-catalytic-coldbox.yaml",
         "tests/flowsheets/hydrogen-catalytic-coldbox-frozen.yaml",
+        // The hydrogen demos with both exchangers sized by their minimum approach
+        // instead of their warm-end approach (frozen normal, and converting).
+        "tests/flowsheets/hydrogen-ln2-precooled-minimum-approach.yaml",
+        "tests/flowsheets/hydrogen-ln2-precooled-converting-minimum-approach.yaml",
     ] {
         let path = Path::new(env!("CARGO_MANIFEST_DIR")).join(file);
         let name = path.file_stem().unwrap().to_string_lossy().into_owned();

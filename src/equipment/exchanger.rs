@@ -6,6 +6,7 @@
 //! side; a heat leak from ambient warms the cold stream evenly along its length.
 
 use super::kind::{less_drop, Coupling, EquipmentKind, Ports, Reader};
+use super::pinch::{self, Pinch, PinchSearch};
 use super::{Context, Details, Equipment, Flow, Performance};
 use crate::error::{Error, FlowsheetError, Result};
 use crate::fluids::conversion::StreamPath;
@@ -27,9 +28,6 @@ pub enum ExchangerSpec {
     /// Conductance UA, W/K.
     Conductance(f64),
 }
-
-/// Secant steps tried from the previous pass's duty before the bracketed search.
-const SECANT_STEPS: usize = 8;
 
 /// A two-stream exchanger's parameters.
 #[derive(Debug, Clone, Copy)]
@@ -254,6 +252,47 @@ struct Sides<'a> {
     cold_path: StreamPath,
 }
 
+/// A two-stream profile: the duty from the warm end and both streams' states at
+/// each node.
+type TwoStreamProfile = Vec<(f64, State, State)>;
+
+impl PinchSearch for Sides<'_> {
+    type Profile = TwoStreamProfile;
+
+    fn segments(&self) -> usize {
+        self.design.segments
+    }
+
+    fn pinch_on(&self, q: f64, segments: usize) -> Result<Pinch<TwoStreamProfile>> {
+        let profile = self.profile_on(q, segments)?;
+        let n = profile.len() - 1;
+        let positions: Vec<f64> = (0..=n).map(|k| k as f64 / n.max(1) as f64).collect();
+        let differences: Vec<f64> = profile
+            .iter()
+            .map(|(_, h, c)| h.temperature - c.temperature)
+            .collect();
+        let (difference, position) = pinch::refined_minimum(&positions, &differences, |f, k| {
+            self.difference_at(q, f, &profile[k])
+        })?;
+        Ok(Pinch {
+            duty: q,
+            difference,
+            position,
+            profile,
+        })
+    }
+
+    /// By central differences at the pinch's position.
+    fn pinch_slope(&self, pinch: &Pinch<TwoStreamProfile>) -> Result<f64> {
+        let n = pinch.profile.len() - 1;
+        let near = &pinch.profile[((pinch.position * n as f64).round() as usize).min(n)];
+        let step = (1e-6 * pinch.duty).max(1e-9);
+        let above = self.difference_at(pinch.duty + step, pinch.position, near)?;
+        let below = self.difference_at(pinch.duty - step, pinch.position, near)?;
+        Ok((above - below) / (2.0 * step))
+    }
+}
+
 impl Sides<'_> {
     fn hot_outlet_pressure(&self) -> f64 {
         self.hot.state.pressure - self.design.hot_pressure_drop
@@ -266,7 +305,13 @@ impl Sides<'_> {
     /// The profile at duty `q`, warm end (index 0) to cold end, with the states of
     /// both streams at each segment boundary.
     fn profile(&self, q: f64) -> Result<Vec<(f64, State, State)>> {
-        let n = self.design.segments.max(1);
+        self.profile_on(q, self.design.segments)
+    }
+
+    /// The profile at duty `q` on `segments` equal segments, each state flashed
+    /// from its neighbour towards the stream's inlet.
+    fn profile_on(&self, q: f64, segments: usize) -> Result<Vec<(f64, State, State)>> {
+        let n = segments.max(1);
         let (hot, cold) = (&self.hot.state, &self.cold.state);
         let (mh, mc) = (self.hot.flow, self.cold.flow);
         let leak = self.design.heat_leak;
@@ -276,8 +321,8 @@ impl Sides<'_> {
             let f = k as f64 / n as f64;
             let p = hot.pressure - self.design.hot_pressure_drop * f;
             let h = hot.enthalpy - q * f / mh;
-            let previous = &hot_states[k - 1];
-            hot_states.push(self.hot_path.state(p, h, previous)?);
+            let state = self.hot_path.state(p, h, &hot_states[k - 1])?;
+            hot_states.push(state);
         }
         let mut cold_states: Vec<State> = Vec::with_capacity(n + 1);
         cold_states.push(cold.clone());
@@ -287,19 +332,16 @@ impl Sides<'_> {
             let along = 1.0 - f;
             let p = cold.pressure - self.design.cold_pressure_drop * along;
             let h = cold.enthalpy + (q + leak) * along / mc;
-            let previous = cold_states.last().unwrap_or(cold);
-            let state = self.cold_path.state(p, h, previous)?;
+            let near = cold_states.last().unwrap_or(cold);
+            let state = self.cold_path.state(p, h, near)?;
             cold_states.push(state);
         }
         cold_states.reverse();
-        Ok((0..=n)
-            .map(|k| {
-                (
-                    q * k as f64 / n as f64,
-                    hot_states[k].clone(),
-                    cold_states[k].clone(),
-                )
-            })
+        Ok(hot_states
+            .into_iter()
+            .zip(cold_states)
+            .enumerate()
+            .map(|(k, (h, c))| (q * k as f64 / n as f64, h, c))
             .collect())
     }
 
@@ -321,13 +363,10 @@ impl Sides<'_> {
         Ok(hot_state.temperature - cold_state.temperature)
     }
 
-    /// The smallest temperature difference for duty `q` and where it lies (fraction
-    /// of the duty from the warm end): the smallest at the profile's nodes, then
-    /// refined between the neighbouring nodes by successive parabolic interpolation,
-    /// since an internal pinch can fall between nodes.
-    fn min_approach(&self, q: f64) -> Result<(f64, f64)> {
-        let profile = self.profile(q)?;
-        refined_minimum(&profile, |f, near| self.difference_at(q, f, near))
+    /// The smallest temperature difference for duty `q`, where it lies (fraction
+    /// of the duty from the warm end) and the profile it was found on.
+    fn pinch(&self, q: f64) -> Result<Pinch<TwoStreamProfile>> {
+        self.pinch_on(q, self.design.segments)
     }
 
     /// The duty at which either outlet would reach the other stream's inlet
@@ -363,155 +402,46 @@ impl Sides<'_> {
         Ok(hot_limit.min(cold_limit).max(0.0))
     }
 
-    /// The largest duty: where the smallest temperature difference reaches zero.
-    fn max_duty(&self, upper: f64) -> Result<f64> {
+    /// The largest duty: where the smallest temperature difference reaches zero,
+    /// searched from `start` (a duty already known to leave a positive difference),
+    /// or from the straight line between zero duty and `upper` without one.
+    fn max_duty(&self, upper: f64, start: Option<f64>) -> Result<f64> {
         if upper <= 0.0 {
             return Ok(0.0);
         }
-        let (at_upper, _) = self.min_approach(upper)?;
+        let at_upper = self.pinch(upper)?.difference;
         if at_upper >= 0.0 {
             return Ok(upper);
         }
-        bracketed_root(
+        let start = match start {
+            Some(q) => q,
+            None => {
+                let at_zero = self.pinch(0.0)?.difference;
+                upper * at_zero / (at_zero - at_upper)
+            }
+        };
+        pinch::duty_for_difference(
+            self,
             "exchanger largest duty (zero pinch)",
-            |q| self.min_approach(q).map(|m| m.0).unwrap_or(f64::NAN),
+            0.0,
+            start,
             0.0,
             upper,
-            1e-12 * upper,
         )
     }
 
     fn ua(&self, q: f64) -> Result<f64> {
-        let profile = self.profile(q)?;
-        let mut ua = 0.0;
-        for pair in profile.windows(2) {
-            let a = pair[0].1.temperature - pair[0].2.temperature;
-            let b = pair[1].1.temperature - pair[1].2.temperature;
-            if a <= 0.0 || b <= 0.0 {
-                return Ok(f64::INFINITY);
-            }
-            let lmtd = if (a - b).abs() < 1e-9 * a {
-                0.5 * (a + b)
-            } else {
-                (a - b) / (a / b).ln()
-            };
-            ua += (pair[1].0 - pair[0].0) / lmtd;
-        }
-        Ok(ua)
+        Ok(conductance(&self.profile(q)?))
     }
 }
 
-/// Steps of the parabolic refinement of the smallest temperature difference.
-const REFINE_STEPS: usize = 12;
-
-/// The refinement stops when the smallest difference changes by less than this, K
-/// (well inside the 1 mK the reported minimum approach is held to).
-const REFINE_TOLERANCE: f64 = 1e-6;
-
-/// The smallest hot-minus-cold difference along `profile` and its position (0 warm,
-/// 1 cold), refined between the nodes around the smallest node by successive
-/// parabolic interpolation of `difference(position, nearest node)`.
-fn refined_minimum(
-    profile: &[(f64, State, State)],
-    difference: impl Fn(f64, &(f64, State, State)) -> Result<f64>,
-) -> Result<(f64, f64)> {
-    let n = profile.len() - 1;
-    let node = |k: usize| profile[k].1.temperature - profile[k].2.temperature;
-    let position = |k: usize| k as f64 / n.max(1) as f64;
-    let (mut fb, i) = (0..=n)
-        .map(|k| (node(k), k))
-        .fold((f64::INFINITY, 0), |a, b| if b.0 < a.0 { b } else { a });
-    if n < 2 {
-        return Ok((fb, position(i)));
-    }
-    // Three nodes around the smallest (at an end, the end three).
-    let centre = i.clamp(1, n - 1);
-    let (mut a, mut b, mut c) = (position(centre - 1), position(i), position(centre + 1));
-    let (mut fa, mut fc) = (node(centre - 1), node(centre + 1));
-    if i == 0 || i == n {
-        // At an end, the smallest lies inside only if the parabola through the end
-        // three has its vertex in the end segment.
-        let (x0, x1, x2) = (a, position(centre), c);
-        let (y0, y1, y2) = (fa, node(centre), fc);
-        match parabola_vertex((x0, y0), (x1, y1), (x2, y2)) {
-            Some(x) if i == 0 && x > x0 && x < x1 => {
-                (a, b, c, fa, fc) = (x0, x0, x1, y0, y1);
-            }
-            Some(x) if i == n && x > x1 && x < x2 => {
-                (a, b, c, fa, fc) = (x1, x2, x2, y1, y2);
-            }
-            _ => return Ok((fb, b)),
-        }
-    }
-    let nearest = |x: f64| &profile[((x * n as f64).round() as usize).min(n)];
-    for _ in 0..REFINE_STEPS {
-        let Some(x) = parabola_vertex((a, fa), (b, fb), (c, fc)) else {
-            break;
-        };
-        if !(x > a && x < c) || (x - b).abs() <= 1e-9 * (c - a) {
-            break;
-        }
-        let fx = difference(x, nearest(x))?;
-        let before = fb;
-        if fx < fb {
-            if x < b {
-                (c, fc) = (b, fb);
-            } else {
-                (a, fa) = (b, fb);
-            }
-            (b, fb) = (x, fx);
-        } else if x < b {
-            (a, fa) = (x, fx);
-        } else {
-            (c, fc) = (x, fx);
-        }
-        if (before - fb).abs() < REFINE_TOLERANCE && fx >= before - REFINE_TOLERANCE {
-            break;
-        }
-    }
-    Ok((fb, b))
-}
-
-/// The abscissa of the vertex of the parabola through three points, where it has a
-/// minimum (None for a maximum or a straight line).
-fn parabola_vertex(p0: (f64, f64), p1: (f64, f64), p2: (f64, f64)) -> Option<f64> {
-    let ((x0, y0), (x1, y1), (x2, y2)) = (p0, p1, p2);
-    let numerator = (x1 - x0).powi(2) * (y1 - y2) - (x1 - x2).powi(2) * (y1 - y0);
-    let denominator = (x1 - x0) * (y1 - y2) - (x1 - x2) * (y1 - y0);
-    // The curvature's sign: a minimum needs the middle point below the chord.
-    let chord = y0 + (y2 - y0) * (x1 - x0) / (x2 - x0);
-    if !(denominator != 0.0 && y1 < chord) {
-        return None;
-    }
-    Some(x1 - 0.5 * numerator / denominator)
-}
-
-/// A few secant steps on g from the previous pass's duty; `None` unless they settle
-/// inside [0, upper] (the bracketed root then takes over).
-fn secant_from(g: &dyn Fn(f64) -> f64, hint: f64, upper: f64) -> Option<f64> {
-    let mut a = hint.clamp(0.0, upper);
-    let mut b = (a * (1.0 - 1e-4)).max(0.0);
-    if a == b {
-        return None;
-    }
-    let (mut fa, mut fb) = (g(a), g(b));
-    for _ in 0..SECANT_STEPS {
-        if !(fa.is_finite() && fb.is_finite()) || fa == fb {
-            return None;
-        }
-        let c = b - fb * (b - a) / (fb - fa);
-        if !(0.0..=upper).contains(&c) {
-            return None;
-        }
-        if (c - b).abs() <= 1e-12 * upper {
-            return Some(c);
-        }
-        a = b;
-        fa = fb;
-        b = c;
-        fb = g(c);
-    }
-    None
+/// The conductance of a two-stream profile, W/K.
+fn conductance(profile: &[(f64, State, State)]) -> f64 {
+    pinch::conductance(
+        profile
+            .iter()
+            .map(|(q, h, c)| (*q, h.temperature - c.temperature)),
+    )
 }
 
 /// Solves the exchanger for its hot and cold inlets; the context's duty hint (the
@@ -542,6 +472,8 @@ pub fn exchange(
     } else {
         sides.end_limited_duty()?
     };
+    // The largest duty, where a specification needed it.
+    let mut known_max = None;
     let duty = match design.spec {
         _ if upper <= 0.0 => 0.0,
         ExchangerSpec::WarmEndApproach(dt) => {
@@ -559,26 +491,31 @@ pub fn exchange(
             (hot.flow * (hot.state.enthalpy - out.enthalpy)).clamp(0.0, upper)
         }
         ExchangerSpec::MinimumApproach(dt) => {
-            let (at_zero, _) = sides.min_approach(0.0)?;
+            let at_zero = sides.pinch(0.0)?.difference;
             if at_zero <= dt {
                 0.0
             } else {
-                let g = |q: f64| sides.min_approach(q).map(|m| m.0 - dt).unwrap_or(f64::NAN);
-                match duty_hint.and_then(|hint| secant_from(&g, hint, upper)) {
-                    Some(q) => q,
-                    None => bracketed_root(
-                        "exchanger duty for a minimum approach",
-                        g,
-                        0.0,
-                        upper,
-                        1e-12 * upper,
-                    )?,
-                }
+                // Without the last pass's duty, start where the difference would
+                // reach the target if it fell linearly to zero at `upper`.
+                let start = duty_hint.unwrap_or(upper * (at_zero - dt) / at_zero);
+                pinch::duty_for_difference(
+                    &sides,
+                    "exchanger duty for a minimum approach",
+                    dt,
+                    start,
+                    0.0,
+                    upper,
+                )?
             }
         }
-        ExchangerSpec::Effectiveness(e) => e * sides.max_duty(upper)?,
+        ExchangerSpec::Effectiveness(e) => {
+            let q_max = sides.max_duty(upper, None)?;
+            known_max = Some(q_max);
+            e * q_max
+        }
         ExchangerSpec::Conductance(ua) => {
-            let q_max = sides.max_duty(upper)?;
+            let q_max = sides.max_duty(upper, None)?;
+            known_max = Some(q_max);
             let top = q_max * (1.0 - 1e-9);
             if sides.ua(top)? <= ua {
                 top
@@ -610,15 +547,27 @@ pub fn exchange(
         };
         return Ok((outlets(hot, cold, hot_out, cold_out), performance));
     }
-    let profile = sides
-        .profile(if degenerate { 0.0 } else { duty })
-        .or_else(|e| {
-            if degenerate {
-                Ok(vec![(0.0, hot.state.clone(), cold.state.clone())])
-            } else {
-                Err(e)
-            }
-        })?;
+    let pinch = if degenerate {
+        let profile = sides
+            .profile(0.0)
+            .unwrap_or_else(|_| vec![(0.0, hot.state.clone(), cold.state.clone())]);
+        let (difference, i) = profile
+            .iter()
+            .enumerate()
+            .map(|(i, (_, h, c))| (h.temperature - c.temperature, i))
+            .fold((f64::INFINITY, 0), |a, b| if b.0 < a.0 { b } else { a });
+        let position = i as f64 / (profile.len().max(2) - 1) as f64;
+        Pinch {
+            duty: 0.0,
+            difference,
+            position,
+            profile,
+        }
+    } else {
+        sides.pinch(duty)?
+    };
+    let (min_approach, at) = (pinch.difference, pinch.position);
+    let profile = &pinch.profile;
     let (_, hot_out, _) = profile
         .last()
         .cloned()
@@ -653,27 +602,17 @@ pub fn exchange(
             cold_temperature: c.temperature,
         })
         .collect();
-    let (min_approach, at) = if degenerate {
-        let (d, i) = points
-            .iter()
-            .enumerate()
-            .map(|(i, p)| (p.hot_temperature - p.cold_temperature, i))
-            .fold((f64::INFINITY, 0), |a, b| if b.0 < a.0 { b } else { a });
-        (d, i as f64 / (points.len().max(2) - 1) as f64)
-    } else {
-        refined_minimum(&profile, |f, near| sides.difference_at(duty, f, near))?
-    };
-    let max_duty = match design.spec {
-        ExchangerSpec::Effectiveness(_) | ExchangerSpec::Conductance(_) => sides.max_duty(upper)?,
-        _ if degenerate => 0.0,
-        _ => sides.max_duty(upper)?,
+    let max_duty = match known_max {
+        Some(q_max) => q_max,
+        None if degenerate => 0.0,
+        None => sides.max_duty(upper, Some(duty))?,
     };
     let ua = if degenerate {
         0.0
     } else if min_approach <= ZERO_PINCH {
         f64::INFINITY
     } else {
-        sides.ua(duty)?
+        conductance(profile)
     };
     let effectiveness = if max_duty > 0.0 { duty / max_duty } else { 0.0 };
     let warm_end_approach = hot.state.temperature - cold_out.temperature;

@@ -6,6 +6,7 @@
 //! the models parses files or prints.
 
 pub mod kind;
+pub mod pinch;
 
 pub use kind::{
     Coupling, Equipment, EquipmentKind, FeedFlow, Ports, PressureConflict, ProductRole, Reader,

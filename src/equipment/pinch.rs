@@ -1,0 +1,252 @@
+//! Finding an exchanger's pinch and sizing it by its smallest temperature
+//! difference, shared by the two-stream and the multistream exchanger.
+//!
+//! A profile is a list of nodes along the exchanger, each at a position (the
+//! fraction of the duty from the warm end) with its hot-minus-cold temperature
+//! difference. The smallest difference is found at the nodes and refined between
+//! them by successive parabolic interpolation of the exact difference; the duty that
+//! gives a smallest difference asked for is found by Newton steps on the duty.
+
+use crate::error::{Error, Result};
+
+/// Steps of the parabolic refinement of the smallest temperature difference.
+const REFINE_STEPS: usize = 12;
+
+/// The refinement stops when the smallest difference changes by less than this, K
+/// (well inside the 1 mK the reported minimum approach is held to).
+const REFINE_TOLERANCE: f64 = 1e-6;
+
+/// The smallest of `differences` (hot minus cold, K, at the increasing `positions`,
+/// 0 at the warm end and 1 at the cold end) and its position, refined between the
+/// nodes around the smallest node by successive parabolic interpolation of
+/// `difference(position, index of the nearest node)`.
+pub fn refined_minimum(
+    positions: &[f64],
+    differences: &[f64],
+    mut difference: impl FnMut(f64, usize) -> Result<f64>,
+) -> Result<(f64, f64)> {
+    let n = differences.len() - 1;
+    let node = |k: usize| differences[k];
+    let position = |k: usize| positions[k];
+    let (mut fb, i) = (0..=n)
+        .map(|k| (node(k), k))
+        .fold((f64::INFINITY, 0), |a, b| if b.0 < a.0 { b } else { a });
+    if n < 2 {
+        return Ok((fb, position(i)));
+    }
+    // Three nodes around the smallest (at an end, the end three).
+    let centre = i.clamp(1, n - 1);
+    let (mut a, mut b, mut c) = (position(centre - 1), position(i), position(centre + 1));
+    let (mut fa, mut fc) = (node(centre - 1), node(centre + 1));
+    if i == 0 || i == n {
+        // At an end, the smallest lies inside only if the parabola through the end
+        // three has its vertex in the end segment.
+        let (x0, x1, x2) = (a, position(centre), c);
+        let (y0, y1, y2) = (fa, node(centre), fc);
+        match parabola_vertex((x0, y0), (x1, y1), (x2, y2)) {
+            Some(x) if i == 0 && x > x0 && x < x1 => {
+                (a, b, c, fa, fc) = (x0, x0, x1, y0, y1);
+            }
+            Some(x) if i == n && x > x1 && x < x2 => {
+                (a, b, c, fa, fc) = (x1, x2, x2, y1, y2);
+            }
+            _ => return Ok((fb, b)),
+        }
+    }
+    let nearest = |x: f64| {
+        let k = positions.partition_point(|p| *p < x).min(n);
+        if k > 0 && (x - positions[k - 1]) <= (positions[k] - x) {
+            k - 1
+        } else {
+            k
+        }
+    };
+    for _ in 0..REFINE_STEPS {
+        let Some(x) = parabola_vertex((a, fa), (b, fb), (c, fc)) else {
+            break;
+        };
+        if !(x > a && x < c) || (x - b).abs() <= 1e-9 * (c - a) {
+            break;
+        }
+        let fx = difference(x, nearest(x))?;
+        let before = fb;
+        if fx < fb {
+            if x < b {
+                (c, fc) = (b, fb);
+            } else {
+                (a, fa) = (b, fb);
+            }
+            (b, fb) = (x, fx);
+        } else if x < b {
+            (a, fa) = (x, fx);
+        } else {
+            (c, fc) = (x, fx);
+        }
+        if (before - fb).abs() < REFINE_TOLERANCE && fx >= before - REFINE_TOLERANCE {
+            break;
+        }
+    }
+    Ok((fb, b))
+}
+
+/// The abscissa of the vertex of the parabola through three points, where it has a
+/// minimum (None for a maximum or a straight line).
+fn parabola_vertex(p0: (f64, f64), p1: (f64, f64), p2: (f64, f64)) -> Option<f64> {
+    let ((x0, y0), (x1, y1), (x2, y2)) = (p0, p1, p2);
+    let numerator = (x1 - x0).powi(2) * (y1 - y2) - (x1 - x2).powi(2) * (y1 - y0);
+    let denominator = (x1 - x0) * (y1 - y2) - (x1 - x2) * (y1 - y0);
+    // The curvature's sign: a minimum needs the middle point below the chord.
+    let chord = y0 + (y2 - y0) * (x1 - x0) / (x2 - x0);
+    if !(denominator != 0.0 && y1 < chord) {
+        return None;
+    }
+    Some(x1 - 0.5 * numerator / denominator)
+}
+
+/// A profile at one duty and its smallest temperature difference.
+pub struct Pinch<P> {
+    /// The duty the profile is drawn for, W.
+    pub duty: f64,
+    /// The smallest hot-minus-cold temperature difference, K.
+    pub difference: f64,
+    /// Where it lies, as the fraction of the duty from the warm end.
+    pub position: f64,
+    /// The profile, warm end first.
+    pub profile: P,
+}
+
+/// An exchanger whose smallest temperature difference can be found at a duty.
+pub trait PinchSearch {
+    /// The exchanger's profile.
+    type Profile;
+
+    /// The exchanger's number of segments.
+    fn segments(&self) -> usize;
+
+    /// The profile at `duty` on `segments` segments and its refined pinch.
+    fn pinch_on(&self, duty: f64, segments: usize) -> Result<Pinch<Self::Profile>>;
+
+    /// The slope of the smallest temperature difference with the duty, K/W: the
+    /// difference at the pinch's position, differentiated. Where the pinch lies
+    /// inside, the difference is smallest there, so the pinch moving with the duty
+    /// changes it only to second order.
+    fn pinch_slope(&self, pinch: &Pinch<Self::Profile>) -> Result<f64>;
+}
+
+/// The largest number of steps of each stage of the duty search.
+const DUTY_STEPS: usize = 60;
+
+/// A Newton step on the duty below this fraction of the duty is the last one.
+const ACCEPTED_STEP: f64 = 1e-8;
+
+/// The duty search's first stage uses this fraction of the segments…
+const COARSE_FRACTION: usize = 5;
+
+/// …when that leaves at least this many.
+const COARSE_MINIMUM: usize = 8;
+
+/// The duty in (`low`, `upper`) at which the smallest temperature difference equals
+/// `target`, where it exceeds `target` at `low`. The search runs first on profiles
+/// of a fifth of the segments, where each step is cheap, and then on the
+/// exchanger's own profile from there: the refined pinch of the coarse profile is
+/// the same pinch to within the refinement's tolerance, so the second stage usually
+/// ends after one profile. Only the second stage's answer counts.
+pub fn duty_for_difference<S: PinchSearch>(
+    search: &S,
+    solver: &'static str,
+    target: f64,
+    start: f64,
+    low: f64,
+    upper: f64,
+) -> Result<f64> {
+    let segments = search.segments();
+    let coarse = segments / COARSE_FRACTION;
+    let start = if coarse >= COARSE_MINIMUM {
+        duty_search(search, solver, target, start, low, upper, coarse)?
+    } else {
+        start
+    };
+    duty_search(search, solver, target, start, low, upper, segments)
+}
+
+/// One stage of [`duty_for_difference`], on profiles of `segments` segments:
+/// Newton steps on the duty with the slope at the pinch, from `start` (the last
+/// pass's duty when there is one), inside a bracket that every step narrows; a step
+/// that would leave the bracket bisects it. A Newton step this small leaves an error
+/// of the order of its square over the duty (the slope changes on the scale of the
+/// duty itself), far below the tolerance, so it is taken without a further profile.
+/// Stops when a step is below [`ACCEPTED_STEP`] of the duty or 1e-12 of `upper`, or
+/// the bracket below the latter; not stopping within [`DUTY_STEPS`] steps is an error
+/// naming `solver`.
+fn duty_search<S: PinchSearch>(
+    search: &S,
+    solver: &'static str,
+    target: f64,
+    start: f64,
+    low: f64,
+    upper: f64,
+    segments: usize,
+) -> Result<f64> {
+    let tolerance = 1e-12 * upper;
+    let (mut low, mut high) = (low, upper);
+    let mut q = if start > low && start < upper {
+        start
+    } else {
+        0.5 * (low + upper)
+    };
+    let mut last = f64::NAN;
+    for _ in 0..DUTY_STEPS {
+        let pinch = search.pinch_on(q, segments)?;
+        let residual = pinch.difference - target;
+        last = residual;
+        if !residual.is_finite() {
+            break;
+        }
+        if residual == 0.0 {
+            return Ok(q);
+        }
+        if residual > 0.0 {
+            low = q;
+        } else {
+            high = q;
+        }
+        let slope = search.pinch_slope(&pinch)?;
+        let mut next = q - residual / slope;
+        if !(slope < 0.0 && next > low && next < high) {
+            next = 0.5 * (low + high);
+        }
+        if (next - q).abs() <= tolerance.max(ACCEPTED_STEP * q) || high - low <= tolerance {
+            return Ok(next);
+        }
+        q = next;
+    }
+    Err(Error::NoConvergence {
+        solver,
+        iterations: DUTY_STEPS,
+        residual: last.abs(),
+        context: format!(": duty bracket [{low}, {high}] W, last duty {q} W"),
+    })
+}
+
+/// The conductance UA = Σ dQ/ΔT_lm over a profile's segments, from the duty and
+/// the hot-minus-cold difference at each node, W/K (infinite where the hot stream
+/// is not warmer than the cold one).
+pub fn conductance(nodes: impl Iterator<Item = (f64, f64)>) -> f64 {
+    let mut ua = 0.0;
+    let mut previous: Option<(f64, f64)> = None;
+    for (duty, b) in nodes {
+        if let Some((q0, a)) = previous {
+            if a <= 0.0 || b <= 0.0 {
+                return f64::INFINITY;
+            }
+            let lmtd = if (a - b).abs() < 1e-9 * a {
+                0.5 * (a + b)
+            } else {
+                (a - b) / (a / b).ln()
+            };
+            ua += (duty - q0) / lmtd;
+        }
+        previous = Some((duty, b));
+    }
+    ua
+}
