@@ -27,6 +27,8 @@ pub enum ExchangerSpec {
     Effectiveness(f64),
     /// Conductance UA, W/K.
     Conductance(f64),
+    /// Outlet temperatures of all a multistream exchanger's streams but one.
+    OutletTemperatures,
 }
 
 /// A two-stream exchanger's parameters.
@@ -208,6 +210,9 @@ pub struct ExchangerReport {
     /// Whether the delivered value meets the specification (approaches within
     /// [`APPROACH_TOLERANCE`], effectiveness and UA within 1e-6 relative).
     pub specification_met: bool,
+    /// A multistream exchanger's streams (empty for a two-stream exchanger, whose
+    /// profile is its two streams').
+    pub streams: Vec<super::multistream::StreamRecord>,
 }
 
 /// How far a delivered approach may differ from the one specified and still meet
@@ -227,6 +232,9 @@ impl ExchangerSpec {
             ExchangerSpec::ColdEndApproach(dt) => format!("a cold-end approach of {dt:.3} K"),
             ExchangerSpec::Effectiveness(e) => format!("an effectiveness of {e:.6}"),
             ExchangerSpec::Conductance(ua) => format!("a UA of {:.4} kW/K", ua / 1e3),
+            ExchangerSpec::OutletTemperatures => {
+                "outlet temperatures for all streams but one".to_string()
+            }
         }
     }
 
@@ -238,6 +246,7 @@ impl ExchangerSpec {
             | ExchangerSpec::ColdEndApproach(v)
             | ExchangerSpec::Effectiveness(v)
             | ExchangerSpec::Conductance(v) => v,
+            ExchangerSpec::OutletTemperatures => f64::NAN,
         }
     }
 }
@@ -475,6 +484,11 @@ pub fn exchange(
     // The largest duty, where a specification needed it.
     let mut known_max = None;
     let duty = match design.spec {
+        ExchangerSpec::OutletTemperatures => {
+            return Err(Error::Internal(
+                "a two-stream exchanger given outlet temperatures".into(),
+            ))
+        }
         _ if upper <= 0.0 => 0.0,
         ExchangerSpec::WarmEndApproach(dt) => {
             let out = sides.cold_path.state_at(
@@ -619,6 +633,7 @@ pub fn exchange(
     let cold_end_approach = hot_out.temperature - cold.state.temperature;
     let (delivered, specification_met) = match design.spec {
         _ if degenerate => (0.0, true),
+        ExchangerSpec::OutletTemperatures => (min_approach, true),
         ExchangerSpec::MinimumApproach(dt) => (
             min_approach,
             (min_approach - dt).abs() <= APPROACH_TOLERANCE,
@@ -646,6 +661,7 @@ pub fn exchange(
         specified: design.spec,
         delivered,
         specification_met,
+        streams: Vec::new(),
     };
     let performance = Performance {
         heat_in: vec![(design.heat_leak, context.ambient)],

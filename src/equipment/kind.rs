@@ -353,3 +353,21 @@ pub fn with_heat_leak(
 pub fn less_drop(inlet: Option<f64>, drop: f64) -> Option<f64> {
     inlet.map(|p| p - drop)
 }
+
+/// A name read from a flowsheet (a multistream exchanger's stream) as a port name
+/// that lives as long as the program: each distinct name is stored once, so reading
+/// the same flowsheet again, as a study does, stores nothing new.
+pub fn intern(name: &str) -> &'static str {
+    use std::collections::BTreeSet;
+    use std::sync::Mutex;
+    static NAMES: Mutex<BTreeSet<&'static str>> = Mutex::new(BTreeSet::new());
+    let mut names = NAMES
+        .lock()
+        .unwrap_or_else(|poisoned| poisoned.into_inner());
+    if let Some(known) = names.get(name) {
+        return known;
+    }
+    let stored: &'static str = Box::leak(name.to_string().into_boxed_str());
+    names.insert(stored);
+    stored
+}

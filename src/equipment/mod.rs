@@ -69,6 +69,7 @@ register_kinds! {
     Compressor(compressor::Compressor),
     Cooler(cooler::Cooler),
     Exchanger(exchanger::Exchanger),
+    MultistreamExchanger(multistream::MultistreamExchanger),
     Precooler(precooler::Precooler),
     Valve(valve::Valve),
     Separator(separator::Separator),

@@ -247,3 +247,147 @@ impl<'a> Params<'a> {
         Ok(())
     }
 }
+
+/// One mapping in a list under an item's key (a multistream exchanger's
+/// `streams`): its fields read like an item's keys, each error located at the list's
+/// key and naming the entry.
+pub struct ListEntry<'p, 'a> {
+    params: &'p Params<'a>,
+    key: &'static str,
+    index: usize,
+    map: &'p serde_yaml::Mapping,
+    used: RefCell<BTreeSet<String>>,
+}
+
+impl<'a> Params<'a> {
+    /// The mappings listed under `key`, or `None` when the key is absent; anything
+    /// but a list of mappings is an error.
+    pub fn entries(
+        &self,
+        key: &'static str,
+    ) -> Result<Option<Vec<ListEntry<'_, 'a>>>, FlowsheetError> {
+        let Some(raw) = self.raw(key) else {
+            return Ok(None);
+        };
+        let serde_yaml::Value::Sequence(items) = raw else {
+            return Err(self.error(
+                key,
+                format!("'{key}' must be a list of entries, one per line starting with '- '"),
+            ));
+        };
+        items
+            .iter()
+            .enumerate()
+            .map(|(index, item)| match item {
+                serde_yaml::Value::Mapping(map) => Ok(ListEntry {
+                    params: self,
+                    key,
+                    index,
+                    map,
+                    used: RefCell::new(BTreeSet::new()),
+                }),
+                _ => Err(self.error(
+                    key,
+                    format!("entry {} of '{key}' must be a mapping such as {{name: hp, inlet: compressor, side: hot}}", index + 1),
+                )),
+            })
+            .collect::<Result<Vec<_>, _>>()
+            .map(Some)
+    }
+}
+
+impl ListEntry<'_, '_> {
+    /// An error about `field` of this entry, located at the list's key.
+    pub fn error(&self, field: &str, message: impl Into<String>) -> FlowsheetError {
+        let name = self
+            .map
+            .get("name")
+            .and_then(scalar_text)
+            .map_or(String::new(), |n| format!(" ('{n}')"));
+        self.params.error(
+            self.key,
+            format!(
+                "{} entry {}{name}, '{field}': {}",
+                self.key,
+                self.index + 1,
+                message.into()
+            ),
+        )
+    }
+
+    fn raw(&self, field: &str) -> Option<&serde_yaml::Value> {
+        self.used.borrow_mut().insert(field.to_string());
+        self.map.get(field)
+    }
+
+    /// An optional text field.
+    pub fn text_opt(&self, field: &str) -> Result<Option<String>, FlowsheetError> {
+        match self.raw(field) {
+            None => Ok(None),
+            Some(v) => scalar_text(v)
+                .map(Some)
+                .ok_or_else(|| self.error(field, "must be a word or a name")),
+        }
+    }
+
+    /// A required text field.
+    pub fn text(&self, field: &str) -> Result<String, FlowsheetError> {
+        self.text_opt(field)?
+            .ok_or_else(|| self.error(field, "is required"))
+    }
+
+    /// An optional quantity with its unit, in SI, between `low` and `high`.
+    pub fn quantity_opt(
+        &self,
+        field: &str,
+        dimension: Dimension,
+        low: f64,
+        high: f64,
+    ) -> Result<Option<f64>, FlowsheetError> {
+        let Some(raw) = self.raw(field) else {
+            return Ok(None);
+        };
+        let text = scalar_text(raw)
+            .ok_or_else(|| self.error(field, format!("must be {}", dimension.describe())))?;
+        let value =
+            quantity::parse_with_ambient(&text, dimension, self.params.place.ambient_pressure)
+                .map_err(|e| self.error(field, e.to_string()))?;
+        if !(value >= low && value <= high) {
+            return Err(self.error(
+                field,
+                format!(
+                    "{text} is outside the allowed range {} to {}",
+                    quantity::format(low, dimension),
+                    quantity::format(high, dimension)
+                ),
+            ));
+        }
+        Ok(Some(value))
+    }
+
+    /// An optional true/false field (default false).
+    pub fn flag(&self, field: &str) -> Result<bool, FlowsheetError> {
+        match self.raw(field) {
+            None => Ok(false),
+            Some(serde_yaml::Value::Bool(b)) => Ok(*b),
+            Some(_) => Err(self.error(field, "must be true or false")),
+        }
+    }
+
+    /// Refuses a field that was not read, naming the fields an entry takes.
+    pub fn finish(&self, known: &[&str]) -> Result<(), FlowsheetError> {
+        let used = self.used.borrow();
+        for field in self.map.keys().filter_map(scalar_text) {
+            if !used.contains(&field) {
+                return Err(self.error(
+                    &field,
+                    format!(
+                        "is not a field of an entry; its fields are: {}",
+                        known.join(", ")
+                    ),
+                ));
+            }
+        }
+        Ok(())
+    }
+}

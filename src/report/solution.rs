@@ -274,7 +274,8 @@ impl SolutionRecord {
                         record.min_approach_k = Some(x.min_approach);
                         record.min_approach_position = Some(x.min_approach_position);
                         record.ua_w_k = x.ua.is_finite().then_some(x.ua);
-                        record.effectiveness = Some(x.effectiveness);
+                        record.effectiveness =
+                            x.effectiveness.is_finite().then_some(x.effectiveness);
                     }
                     Details::Compressor {
                         discharge_temperatures,

@@ -72,7 +72,12 @@ pub fn write_all(solution: &Solution, dir: &Path) -> Result<Vec<PathBuf>> {
                 } else {
                     String::new()
                 },
-                format!("{:.6}", x.effectiveness),
+                // A multistream exchanger set by outlet temperatures has none.
+                if x.effectiveness.is_finite() {
+                    format!("{:.6}", x.effectiveness)
+                } else {
+                    String::new()
+                },
             ),
             _ => (String::new(), String::new(), String::new()),
         };

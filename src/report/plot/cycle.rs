@@ -98,7 +98,13 @@ pub fn cycle_plots<'a>(plant: &'a Plant, solution: &'a Solution) -> Result<Vec<C
             let id = unit.id.as_str();
             plots.push(CyclePlot {
                 stem: format!("exchanger-{id}"),
-                caption: format!("exchanger {id}: temperatures against duty, with the pinch"),
+                caption: if report.streams.is_empty() {
+                    format!("exchanger {id}: temperatures against duty, with the pinch")
+                } else {
+                    format!(
+                        "multistream exchanger {id}: hot and cold composite curves against duty, with the pinch"
+                    )
+                },
                 draw: Box::new(move |canvas| {
                     render(&ExchangerCurvesFigure { id, report }, SIZE, canvas)
                 }),
@@ -398,7 +404,12 @@ impl Figure for ExchangerCurvesFigure<'_> {
         } else {
             "UA unbounded: zero pinch".to_string()
         };
-        let title = format!("exchanger {id}: temperature against duty ({conductance})");
+        let composite = !report.streams.is_empty();
+        let title = if composite {
+            format!("multistream exchanger {id}: composite curves ({conductance})")
+        } else {
+            format!("exchanger {id}: temperature against duty ({conductance})")
+        };
         let err = drawing(path);
         root.fill(&WHITE).map_err(&err)?;
         let mut chart = chart(
@@ -423,7 +434,11 @@ impl Figure for ExchangerCurvesFigure<'_> {
                 HOT.stroke_width(3),
             ))
             .map_err(&err)?
-            .label("hot stream")
+            .label(if composite {
+                "hot composite"
+            } else {
+                "hot stream"
+            })
             .legend(|(x, y)| PathElement::new([(x, y), (x + 18, y)], HOT.stroke_width(3)));
         chart
             .draw_series(LineSeries::new(
@@ -431,7 +446,11 @@ impl Figure for ExchangerCurvesFigure<'_> {
                 COLD.stroke_width(3),
             ))
             .map_err(&err)?
-            .label("cold stream")
+            .label(if composite {
+                "cold composite"
+            } else {
+                "cold stream"
+            })
             .legend(|(x, y)| PathElement::new([(x, y), (x + 18, y)], COLD.stroke_width(3)));
         if let Some(p) = pinch {
             let q = kw(p.duty);

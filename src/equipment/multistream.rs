@@ -1,0 +1,937 @@
+//! A multistream (plate-fin) counterflow exchanger: any number of hot and cold
+//! streams, each of its own fluid, with its own pressure drop and heat leak.
+//!
+//! The exchanger is treated through its composite curves: at each temperature the
+//! hot streams passing it pool the heat they give, and the cold streams the heat they
+//! take. Position along the exchanger is the heat exchanged from the warm end. A
+//! stream's pressure falls linearly with the heat it has exchanged, and its heat
+//! leak is spread in proportion to it, so that a stream running the whole length is
+//! treated exactly as a side of the two-stream exchanger (`exchanger.rs`).
+//!
+//! Specification: the exchanger has as many degrees of freedom as streams less one
+//! (the energy balance). Either every stream but one has an outlet temperature and
+//! the last follows from the energy balance, or `minimum_approach` is given with
+//! outlet temperatures for every stream but one hot and one cold, whose duties are
+//! set by the pinch on the composite curves and the energy balance.
+
+use super::exchanger::{ExchangerReport, ExchangerSpec, ProfilePoint, APPROACH_TOLERANCE};
+use super::kind::{intern, Coupling, EquipmentKind, Ports, Reader};
+use super::pinch::{self, Pinch, PinchSearch};
+use super::{Context, Details, Equipment, Flow, Performance};
+use crate::error::{Error, FlowsheetError, Result};
+use crate::fluids::conversion::StreamPath;
+use crate::fluids::State;
+use crate::quantity::Dimension;
+
+/// The most streams one multistream exchanger takes.
+pub const MOST_STREAMS: usize = 12;
+
+/// Which way a stream's heat flows.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Side {
+    /// Gives heat (cooled).
+    Hot,
+    /// Takes heat (warmed).
+    Cold,
+}
+
+impl Side {
+    /// `hot` or `cold`.
+    pub fn word(self) -> &'static str {
+        match self {
+            Side::Hot => "hot",
+            Side::Cold => "cold",
+        }
+    }
+}
+
+/// One stream through a multistream exchanger.
+#[derive(Debug, Clone)]
+pub struct StreamSpec {
+    /// Its name, which is also its outlet port.
+    pub name: &'static str,
+    /// Its inlet port (`<name>-in`).
+    pub inlet_port: &'static str,
+    /// Hot or cold.
+    pub side: Side,
+    /// Outlet temperature asked for, K (`None` for a stream set by the balance or
+    /// the pinch).
+    pub outlet_temperature: Option<f64>,
+    /// Pa.
+    pub pressure_drop: f64,
+    /// W into the stream from ambient.
+    pub heat_leak: f64,
+    /// Whether the stream's passage carries an ortho–para catalyst.
+    pub catalyst: bool,
+}
+
+/// A multistream exchanger's parameters.
+#[derive(Debug, Clone)]
+pub struct MultistreamExchanger {
+    /// The streams, in the order written.
+    pub streams: Vec<StreamSpec>,
+    /// The smallest temperature difference between the composite curves, K, when
+    /// it sets two streams' duties.
+    pub minimum_approach: Option<f64>,
+    /// Segments of the composite curves' duty grid.
+    pub segments: usize,
+}
+
+const STREAM_FIELDS: &[&str] = &[
+    "name",
+    "inlet",
+    "side",
+    "outlet_temperature",
+    "pressure_drop",
+    "heat_leak",
+    "catalyst",
+];
+
+impl EquipmentKind for MultistreamExchanger {
+    const NAME: &'static str = "multistream-exchanger";
+    const KEYS: &'static [&'static str] = &["streams", "minimum_approach", "segments"];
+
+    fn read(r: &mut Reader) -> std::result::Result<Self, FlowsheetError> {
+        let entries = r.entries("streams")?.ok_or_else(|| {
+            r.error(
+                "streams",
+                "'streams' is required: a list such as - {name: hp, inlet: compressor, side: hot}",
+            )
+        })?;
+        if !(2..=MOST_STREAMS).contains(&entries.len()) {
+            return Err(r.error(
+                "streams",
+                format!(
+                    "a multistream exchanger takes 2 to {MOST_STREAMS} streams, not {}",
+                    entries.len()
+                ),
+            ));
+        }
+        let mut streams: Vec<StreamSpec> = Vec::new();
+        let mut inlets = Vec::new();
+        for entry in &entries {
+            let name = entry.text("name")?;
+            let plain = !name.is_empty()
+                && name
+                    .chars()
+                    .all(|c| c.is_ascii_alphanumeric() || c == '-' || c == '_');
+            if !plain {
+                return Err(entry.error(
+                    "name",
+                    "a stream's name is its outlet port: letters, digits, '-' and '_' only",
+                ));
+            }
+            if streams.iter().any(|s| s.name == name) {
+                return Err(entry.error("name", format!("'{name}' names two streams")));
+            }
+            let side = match entry.text("side")?.as_str() {
+                "hot" => Side::Hot,
+                "cold" => Side::Cold,
+                other => {
+                    return Err(entry.error("side", format!("'{other}' is not a side; use hot or cold")))
+                }
+            };
+            let inlet = entry.text("inlet")?;
+            let spec = StreamSpec {
+                name: intern(&name),
+                inlet_port: intern(&format!("{name}-in")),
+                side,
+                outlet_temperature: entry.quantity_opt(
+                    "outlet_temperature",
+                    Dimension::Temperature,
+                    1.0,
+                    2000.0,
+                )?,
+                pressure_drop: entry
+                    .quantity_opt("pressure_drop", Dimension::Pressure, 0.0, 1e8)?
+                    .unwrap_or(0.0),
+                heat_leak: entry
+                    .quantity_opt("heat_leak", Dimension::Power, 0.0, 1e9)?
+                    .unwrap_or(0.0),
+                catalyst: entry.flag("catalyst")?,
+            };
+            entry.finish(STREAM_FIELDS)?;
+            inlets.push((spec.inlet_port, inlet));
+            streams.push(spec);
+        }
+        drop(entries);
+        for (port, reference) in inlets {
+            r.add_inlet(port, "streams", reference);
+        }
+        let minimum_approach =
+            r.quantity_opt("minimum_approach", Dimension::TemperatureDifference, 0.0, 500.0)?;
+        let segments = r.whole_opt("segments", 10, 5000)?.unwrap_or(r.default_segments);
+        if let Some(message) = specification_problem(&streams, minimum_approach.is_some()) {
+            return Err(r.error("streams", message));
+        }
+        Ok(MultistreamExchanger {
+            streams,
+            minimum_approach,
+            segments,
+        })
+    }
+}
+
+/// What is wrong with the count of specifications, in words, or `None` when the
+/// streams are specified exactly.
+fn specification_problem(streams: &[StreamSpec], by_approach: bool) -> Option<String> {
+    let n = streams.len();
+    let hot = streams.iter().filter(|s| s.side == Side::Hot).count();
+    if hot == 0 || hot == n {
+        return Some(format!(
+            "a multistream exchanger needs at least one hot and one cold stream; all {n} are {}",
+            streams[0].side.word()
+        ));
+    }
+    let free: Vec<&StreamSpec> = streams
+        .iter()
+        .filter(|s| s.outlet_temperature.is_none())
+        .collect();
+    let given = n - free.len() + usize::from(by_approach);
+    let freedom = format!(
+        "{n} streams leave {} degrees of freedom (one outlet each, less the energy balance), and {given} {} given ({} outlet temperature{}{})",
+        n - 1,
+        if given == 1 { "is" } else { "are" },
+        n - free.len(),
+        if n - free.len() == 1 { "" } else { "s" },
+        if by_approach { " and minimum_approach" } else { "" }
+    );
+    let names = |list: &[&StreamSpec]| {
+        list.iter()
+            .map(|s| s.name)
+            .collect::<Vec<_>>()
+            .join(", ")
+    };
+    if given < n - 1 {
+        return Some(format!(
+            "{freedom}: the specification is short by {}; give outlet_temperature to all but one of {}{}",
+            n - 1 - given,
+            names(&free),
+            if by_approach { " hot and one cold stream" } else { " (or minimum_approach)" }
+        ));
+    }
+    if given > n - 1 {
+        return Some(format!(
+            "{freedom}: the specification is over-complete by {}; leave one stream's outlet_temperature out{}",
+            given - (n - 1),
+            if by_approach {
+                " on each side (the pinch and the energy balance set those two)"
+            } else {
+                " (the energy balance sets it)"
+            }
+        ));
+    }
+    if by_approach && free[0].side == free[1].side {
+        return Some(format!(
+            "with minimum_approach, the two streams without an outlet temperature must be one hot and one cold, but {} are both {}",
+            names(&free),
+            free[0].side.word()
+        ));
+    }
+    None
+}
+
+impl Equipment for MultistreamExchanger {
+    fn ports(&self) -> Ports {
+        Ports {
+            inlets: self.streams.iter().map(|s| s.inlet_port).collect(),
+            outlets: self.streams.iter().map(|s| s.name).collect(),
+        }
+    }
+
+    fn coupling(&self) -> Coupling {
+        Coupling::Sides
+    }
+
+    fn outlet_pressures(&self, inlets: &[Option<f64>]) -> Vec<Option<f64>> {
+        self.streams
+            .iter()
+            .zip(inlets)
+            .map(|(s, p)| p.map(|p| p - s.pressure_drop))
+            .collect()
+    }
+
+    fn run(&self, inlets: &[Flow], context: &Context) -> Result<(Vec<Flow>, Performance)> {
+        exchange(self, inlets, context)
+    }
+}
+
+/// One stream with its inlet, as the model sees it.
+struct Member<'a> {
+    spec: &'a StreamSpec,
+    inlet: &'a Flow,
+    path: StreamPath,
+}
+
+impl Member<'_> {
+    fn hot(&self) -> bool {
+        self.spec.side == Side::Hot
+    }
+
+    /// The outlet pressure, Pa.
+    fn outlet_pressure(&self) -> f64 {
+        self.inlet.state.pressure - self.spec.pressure_drop
+    }
+
+    /// The enthalpy after exchanging `e` of a duty `q`, J/kg: the heat exchanged plus
+    /// the leak's share, spread in proportion.
+    fn enthalpy_after(&self, e: f64, q: f64) -> f64 {
+        let m = self.inlet.flow;
+        let leak = self.spec.heat_leak;
+        let h = self.inlet.state.enthalpy;
+        if q <= 0.0 {
+            return h + leak / m;
+        }
+        if self.hot() {
+            h - e * (q - leak) / q / m
+        } else {
+            h + e * (q + leak) / q / m
+        }
+    }
+
+    /// The pressure after exchanging `e` of `q`, Pa.
+    fn pressure_after(&self, e: f64, q: f64) -> f64 {
+        let fraction = if q > 0.0 { e / q } else { 1.0 };
+        self.inlet.state.pressure - self.spec.pressure_drop * fraction
+    }
+
+    /// The exchanged duty for an outlet at `temperature`, W.
+    fn duty_for_outlet(&self, temperature: f64) -> Result<f64> {
+        let out = self.path.state_at(temperature, self.outlet_pressure())?;
+        let m = self.inlet.flow;
+        let change = m * (out.enthalpy - self.inlet.state.enthalpy);
+        Ok(if self.hot() {
+            -change + self.spec.heat_leak
+        } else {
+            change - self.spec.heat_leak
+        })
+    }
+
+    /// The largest duty the stream can exchange without passing `temperature` (the
+    /// other side's extreme inlet temperature), W.
+    fn duty_limit(&self, temperature: f64) -> Result<f64> {
+        let fluid = self.inlet.state.fluid();
+        let t = if self.hot() {
+            let coldest = fluid
+                .melting_temperature(self.outlet_pressure())
+                .unwrap_or(fluid.temperature_min)
+                .max(fluid.temperature_min)
+                * (1.0 + 1e-6);
+            temperature.max(coldest)
+        } else {
+            temperature.min(fluid.temperature_max)
+        };
+        Ok(self.duty_for_outlet(t)?.max(0.0))
+    }
+}
+
+/// One stream's part in a composite curve at set duties.
+struct Curve<'m, 'a> {
+    member: &'m Member<'a>,
+    /// Its exchanged duty, W.
+    duty: f64,
+    /// Inlet and outlet temperatures, K.
+    inlet_temperature: f64,
+    outlet_temperature: f64,
+}
+
+impl Curve<'_, '_> {
+    fn warm(&self) -> f64 {
+        self.inlet_temperature.max(self.outlet_temperature)
+    }
+
+    fn cold(&self) -> f64 {
+        self.inlet_temperature.min(self.outlet_temperature)
+    }
+
+    /// The state after exchanging `e`, flashed from `near` when given.
+    fn state_after(&self, e: f64, near: Option<&State>) -> Result<State> {
+        let p = self.member.pressure_after(e, self.duty);
+        let h = self.member.enthalpy_after(e, self.duty);
+        match near {
+            Some(near) => self.member.path.state(p, h, near),
+            None => self.member.path.state_ph(p, h),
+        }
+    }
+
+    /// The heat this stream accounts for on its composite, counted from the warm
+    /// end, when the composite is at `temperature`: for a hot stream what it has
+    /// given cooling to there, for a cold stream what it takes above there.
+    fn share_at(&self, temperature: f64) -> Result<f64> {
+        if temperature >= self.warm() {
+            return Ok(0.0);
+        }
+        if temperature <= self.cold() {
+            return Ok(self.duty);
+        }
+        let exchanged = self.exchanged_at(temperature)?;
+        Ok(if self.member.hot() {
+            exchanged
+        } else {
+            self.duty - exchanged
+        })
+    }
+
+    /// The heat exchanged from the inlet to `temperature`, W, with the pressure
+    /// along the stream found by substitution (it moves the enthalpy only slightly).
+    fn exchanged_at(&self, temperature: f64) -> Result<f64> {
+        let m = self.member.inlet.flow;
+        let h_in = self.member.inlet.state.enthalpy;
+        let q = self.duty;
+        let per_exchanged = if self.member.hot() {
+            (q - self.member.spec.heat_leak) / q / m
+        } else {
+            (q + self.member.spec.heat_leak) / q / m
+        };
+        let mut e = 0.5 * q;
+        for _ in 0..PRESSURE_STEPS {
+            let p = self.member.pressure_after(e, q);
+            let state = self.member.path.state_at(temperature, p)?;
+            let next = ((state.enthalpy - h_in) / per_exchanged).abs();
+            let settled = (next - e).abs() <= 1e-12 * q;
+            e = next;
+            if settled || self.member.spec.pressure_drop == 0.0 {
+                return Ok(e.min(q));
+            }
+        }
+        Ok(e.min(q))
+    }
+}
+
+/// Substitution steps for a stream's pressure at a temperature.
+const PRESSURE_STEPS: usize = 30;
+
+/// Temperature bisection-and-secant steps for a composite with several streams
+/// active at a duty.
+const COMPOSITE_STEPS: usize = 100;
+
+/// One side's composite curve at set duties.
+struct Composite<'m, 'a> {
+    curves: Vec<Curve<'m, 'a>>,
+    /// (temperature K, heat from the warm end W) at every stream's ends, warm end
+    /// first.
+    breakpoints: Vec<(f64, f64)>,
+    total: f64,
+}
+
+impl<'m, 'a> Composite<'m, 'a> {
+    fn new(curves: Vec<Curve<'m, 'a>>) -> Result<Self> {
+        let total: f64 = curves.iter().map(|c| c.duty).sum();
+        let mut temperatures: Vec<f64> = curves.iter().flat_map(|c| [c.warm(), c.cold()]).collect();
+        temperatures.sort_by(|a, b| b.total_cmp(a));
+        temperatures.dedup_by(|a, b| (*a - *b).abs() <= 1e-9 * b.abs());
+        let mut breakpoints = Vec::with_capacity(temperatures.len());
+        for t in temperatures {
+            let mut heat = 0.0;
+            for c in &curves {
+                heat += c.share_at(t)?;
+            }
+            breakpoints.push((t, heat));
+        }
+        // The ends are exact.
+        if let Some(first) = breakpoints.first_mut() {
+            first.1 = 0.0;
+        }
+        if let Some(last) = breakpoints.last_mut() {
+            last.1 = total;
+        }
+        Ok(Composite {
+            curves,
+            breakpoints,
+            total,
+        })
+    }
+
+    /// The composite's temperature where `heat` W has been exchanged from the warm
+    /// end; `seeds` hold each stream's last state, to flash from.
+    fn temperature_at(&self, heat: f64, seeds: &mut [Option<State>]) -> Result<f64> {
+        let heat = heat.clamp(0.0, self.total);
+        let points = &self.breakpoints;
+        let k = points
+            .windows(2)
+            .position(|w| heat <= w[1].1)
+            .unwrap_or(points.len().saturating_sub(2));
+        let (warm, cold) = (points[k].0, points[(k + 1).min(points.len() - 1)].0);
+        let active: Vec<usize> = (0..self.curves.len())
+            .filter(|&i| {
+                let c = &self.curves[i];
+                c.duty > 0.0 && c.warm() >= warm - 1e-9 * warm && c.cold() <= cold + 1e-9 * cold
+            })
+            .collect();
+        // Streams not active here count their whole duty (already passed) or none.
+        let fixed: f64 = (0..self.curves.len())
+            .filter(|i| !active.contains(i))
+            .map(|i| {
+                let c = &self.curves[i];
+                if c.cold() >= warm - 1e-9 * warm {
+                    c.duty
+                } else {
+                    0.0
+                }
+            })
+            .sum();
+        if let [only] = active.as_slice() {
+            let c = &self.curves[*only];
+            let share = (heat - fixed).clamp(0.0, c.duty);
+            let exchanged = if c.member.hot() { share } else { c.duty - share };
+            let state = c.state_after(exchanged, seeds[*only].as_ref())?;
+            let t = state.temperature;
+            seeds[*only] = Some(state);
+            return Ok(t);
+        }
+        if active.is_empty() {
+            return Ok(warm);
+        }
+        // Several streams: the temperature where their shares add up, by the
+        // Illinois method on the interval (exact at the ends).
+        let residual = |t: f64| -> Result<f64> {
+            let mut sum = fixed;
+            for &i in &active {
+                sum += self.curves[i].share_at(t)?;
+            }
+            Ok(sum - heat)
+        };
+        let (mut a, mut b) = (cold, warm);
+        let (mut fa, mut fb) = (points[(k + 1).min(points.len() - 1)].1 - heat, points[k].1 - heat);
+        if fa <= 0.0 {
+            return Ok(cold);
+        }
+        if fb >= 0.0 {
+            return Ok(warm);
+        }
+        let mut side = 0;
+        for _ in 0..COMPOSITE_STEPS {
+            if b - a <= 1e-10 * b {
+                break;
+            }
+            let t = (a * fb - b * fa) / (fb - fa);
+            let t = if t > a && t < b { t } else { 0.5 * (a + b) };
+            let ft = residual(t)?;
+            if ft == 0.0 {
+                return Ok(t);
+            }
+            if ft > 0.0 {
+                a = t;
+                fa = ft;
+                if side == 1 {
+                    fb *= 0.5;
+                }
+                side = 1;
+            } else {
+                b = t;
+                fb = ft;
+                if side == -1 {
+                    fa *= 0.5;
+                }
+                side = -1;
+            }
+        }
+        if b - a > 1e-8 * b {
+            return Err(Error::NoConvergence {
+                solver: "multistream composite temperature",
+                iterations: COMPOSITE_STEPS,
+                residual: fa.abs().min(fb.abs()),
+                context: format!(": bracket [{a}, {b}] K at {heat} W"),
+            });
+        }
+        Ok(0.5 * (a + b))
+    }
+}
+
+/// The exchanger's streams and how the duties follow from the one unknown.
+struct Arrangement<'a> {
+    members: Vec<Member<'a>>,
+    /// Duties of streams with an outlet temperature (None for the free ones), W.
+    fixed: Vec<Option<f64>>,
+    segments: usize,
+}
+
+/// Composite curves drawn on a duty grid: node positions (fraction of the duty
+/// from the warm end), duties and both composites' temperatures.
+struct Curves {
+    positions: Vec<f64>,
+    duties: Vec<f64>,
+    hot: Vec<f64>,
+    cold: Vec<f64>,
+}
+
+impl<'a> Arrangement<'a> {
+    /// Every stream's duty when `total` W passes from the hot streams to the cold:
+    /// the free streams take what the others leave.
+    fn duties(&self, total: f64) -> Vec<f64> {
+        let mut duties: Vec<f64> = self.fixed.iter().map(|d| d.unwrap_or(0.0)).collect();
+        for side in [Side::Hot, Side::Cold] {
+            let known: f64 = self
+                .members
+                .iter()
+                .zip(&self.fixed)
+                .filter(|(m, _)| m.spec.side == side)
+                .filter_map(|(_, d)| *d)
+                .sum();
+            if let Some(free) = self
+                .members
+                .iter()
+                .zip(&self.fixed)
+                .position(|(m, d)| m.spec.side == side && d.is_none())
+            {
+                duties[free] = (total - known).max(0.0);
+            }
+        }
+        duties
+    }
+
+    /// Both composites for a total duty.
+    fn composites(&self, total: f64) -> Result<(Composite<'_, 'a>, Composite<'_, 'a>)> {
+        let duties = self.duties(total);
+        let mut hot = Vec::new();
+        let mut cold = Vec::new();
+        for (member, duty) in self.members.iter().zip(duties) {
+            let inlet_temperature = member.inlet.state.temperature;
+            let outlet_temperature = if duty > 0.0 {
+                member
+                    .path
+                    .state_ph(member.outlet_pressure(), member.enthalpy_after(duty, duty))?
+                    .temperature
+            } else {
+                inlet_temperature
+            };
+            let curve = Curve {
+                member,
+                duty,
+                inlet_temperature,
+                outlet_temperature,
+            };
+            if member.hot() {
+                hot.push(curve);
+            } else {
+                cold.push(curve);
+            }
+        }
+        Ok((Composite::new(hot)?, Composite::new(cold)?))
+    }
+
+    /// The composite curves for `total` W on `segments` equal duty steps, with every
+    /// stream's ends added as nodes.
+    fn curves(&self, total: f64, segments: usize) -> Result<(Curves, [Composite<'_, 'a>; 2])> {
+        let (hot, cold) = self.composites(total)?;
+        let n = segments.max(1);
+        let mut positions: Vec<f64> = (0..=n).map(|k| k as f64 / n as f64).collect();
+        if total > 0.0 {
+            for (_, heat) in hot.breakpoints.iter().chain(&cold.breakpoints) {
+                let f = heat / total;
+                if positions.iter().all(|p| (p - f).abs() > 1e-9) && f > 0.0 && f < 1.0 {
+                    positions.push(f);
+                }
+            }
+        }
+        positions.sort_by(|a, b| a.total_cmp(b));
+        let duties: Vec<f64> = positions.iter().map(|f| total * f).collect();
+        let mut seeds: Vec<Option<State>> = vec![None; self.members.len()];
+        let hot_t = duties
+            .iter()
+            .map(|q| hot.temperature_at(*q, &mut seeds))
+            .collect::<Result<Vec<f64>>>()?;
+        // The cold composite from its cold end, as the two-stream exchanger draws it.
+        let mut seeds: Vec<Option<State>> = vec![None; self.members.len()];
+        let mut cold_t = duties
+            .iter()
+            .rev()
+            .map(|q| cold.temperature_at(*q, &mut seeds))
+            .collect::<Result<Vec<f64>>>()?;
+        cold_t.reverse();
+        Ok((
+            Curves {
+                positions,
+                duties,
+                hot: hot_t,
+                cold: cold_t,
+            },
+            [hot, cold],
+        ))
+    }
+
+    /// The difference between the composites at position `f` for `total` W.
+    fn difference_at(&self, total: f64, f: f64) -> Result<f64> {
+        let (hot, cold) = self.composites(total)?;
+        let mut seeds: Vec<Option<State>> = vec![None; self.members.len()];
+        let t_hot = hot.temperature_at(f * total, &mut seeds)?;
+        let t_cold = cold.temperature_at(f * total, &mut seeds)?;
+        Ok(t_hot - t_cold)
+    }
+}
+
+impl PinchSearch for Arrangement<'_> {
+    type Profile = Curves;
+
+    fn segments(&self) -> usize {
+        self.segments
+    }
+
+    fn pinch_on(&self, total: f64, segments: usize) -> Result<Pinch<Curves>> {
+        let (curves, [hot, cold]) = self.curves(total, segments)?;
+        let differences: Vec<f64> = curves
+            .hot
+            .iter()
+            .zip(&curves.cold)
+            .map(|(h, c)| h - c)
+            .collect();
+        let mut seeds: Vec<Option<State>> = vec![None; self.members.len()];
+        let (difference, position) =
+            pinch::refined_minimum(&curves.positions, &differences, |f, _| {
+                Ok(hot.temperature_at(f * total, &mut seeds)?
+                    - cold.temperature_at(f * total, &mut seeds)?)
+            })?;
+        Ok(Pinch {
+            duty: total,
+            difference,
+            position,
+            profile: curves,
+        })
+    }
+
+    /// By central differences at the pinch's position.
+    fn pinch_slope(&self, pinch: &Pinch<Curves>) -> Result<f64> {
+        let step = (1e-6 * pinch.duty).max(1e-9);
+        let above = self.difference_at(pinch.duty + step, pinch.position)?;
+        let below = self.difference_at(pinch.duty - step, pinch.position)?;
+        Ok((above - below) / (2.0 * step))
+    }
+}
+
+/// One stream's figures in the exchanger's report.
+#[derive(Debug, Clone, PartialEq)]
+pub struct StreamRecord {
+    /// The stream's name.
+    pub name: String,
+    /// `hot` or `cold`.
+    pub side: &'static str,
+    /// K.
+    pub inlet_temperature: f64,
+    /// K.
+    pub outlet_temperature: f64,
+    /// Heat exchanged, W.
+    pub duty: f64,
+    /// Whether its outlet temperature was specified.
+    pub outlet_specified: bool,
+}
+
+/// Solves the multistream exchanger for its inlets (in stream order).
+pub fn exchange(
+    design: &MultistreamExchanger,
+    inlets: &[Flow],
+    context: &Context,
+) -> Result<(Vec<Flow>, Performance)> {
+    let unit = "multistream exchanger";
+    let members = design
+        .streams
+        .iter()
+        .zip(inlets)
+        .map(|(spec, inlet)| {
+            Ok(Member {
+                spec,
+                inlet,
+                path: StreamPath::new(&inlet.state, spec.catalyst, unit)?,
+            })
+        })
+        .collect::<Result<Vec<_>>>()?;
+    // Streams without flow take no part; the specification still counts them.
+    let mut fixed = Vec::with_capacity(members.len());
+    for member in &members {
+        fixed.push(match member.spec.outlet_temperature {
+            _ if member.inlet.flow <= 0.0 => Some(0.0),
+            Some(t) => {
+                let duty = member.duty_for_outlet(t)?;
+                if duty < 0.0 {
+                    return Err(Error::Input(format!(
+                        "{unit}: the {} stream '{}' enters at {:.3} K and cannot leave at {t:.3} K{}",
+                        member.spec.side.word(),
+                        member.spec.name,
+                        member.inlet.state.temperature,
+                        if member.hot() { ": a hot stream is cooled" } else { ": a cold stream is warmed" }
+                    )));
+                }
+                Some(duty)
+            }
+            None => None,
+        });
+    }
+    let arrangement = Arrangement {
+        members,
+        fixed,
+        segments: design.segments,
+    };
+    let known = |side: Side| -> f64 {
+        arrangement
+            .members
+            .iter()
+            .zip(&arrangement.fixed)
+            .filter(|(m, _)| m.spec.side == side)
+            .filter_map(|(_, d)| *d)
+            .sum()
+    };
+    let (known_hot, known_cold) = (known(Side::Hot), known(Side::Cold));
+    let free_of = |side: Side| {
+        arrangement
+            .members
+            .iter()
+            .zip(&arrangement.fixed)
+            .find(|(m, d)| m.spec.side == side && d.is_none())
+            .map(|(m, _)| m)
+    };
+    let total = match design.minimum_approach {
+        None => {
+            // One free stream takes what the energy balance leaves.
+            let (free, own, other) = match (free_of(Side::Hot), free_of(Side::Cold)) {
+                (Some(free), None) => (free, known_hot, known_cold),
+                (None, Some(free)) => (free, known_cold, known_hot),
+                _ => {
+                    return Err(Error::Internal(
+                        "a multistream exchanger set by outlet temperatures needs one free stream"
+                            .into(),
+                    ))
+                }
+            };
+            if other < own && free.inlet.flow > 0.0 {
+                return Err(Error::Input(format!(
+                    "{unit}: the energy balance leaves the {side} stream '{name}' a negative duty of {:.3} kW: the other {side} streams exchange {:.3} kW, the {opposite} streams only {:.3} kW; change an outlet temperature",
+                    (other - own) / 1e3,
+                    own / 1e3,
+                    other / 1e3,
+                    side = free.spec.side.word(),
+                    name = free.spec.name,
+                    opposite = if free.hot() { "cold" } else { "hot" }
+                )));
+            }
+            other.max(own)
+        }
+        Some(dt) => {
+            let hot = free_of(Side::Hot);
+            let cold = free_of(Side::Cold);
+            let (Some(hot), Some(cold)) = (hot, cold) else {
+                return Err(Error::Internal(
+                    "a multistream exchanger sized by its approach needs one free stream a side".into(),
+                ));
+            };
+            let coldest_cold = arrangement
+                .members
+                .iter()
+                .filter(|m| !m.hot() && m.inlet.flow > 0.0)
+                .map(|m| m.inlet.state.temperature)
+                .fold(f64::INFINITY, f64::min);
+            let warmest_hot = arrangement
+                .members
+                .iter()
+                .filter(|m| m.hot() && m.inlet.flow > 0.0)
+                .map(|m| m.inlet.state.temperature)
+                .fold(f64::NEG_INFINITY, f64::max);
+            let low = known_hot.max(known_cold);
+            let upper = if hot.inlet.flow > 0.0 && cold.inlet.flow > 0.0 {
+                (known_hot + hot.duty_limit(coldest_cold)?)
+                    .min(known_cold + cold.duty_limit(warmest_hot)?)
+            } else {
+                low
+            };
+            if upper <= low {
+                low
+            } else {
+                let at_low = arrangement.pinch_on(low, design.segments)?.difference;
+                if at_low <= dt {
+                    low
+                } else {
+                    let start = context.duty_hint.unwrap_or_else(|| {
+                        let at_upper = arrangement
+                            .pinch_on(upper, design.segments / 5)
+                            .map(|p| p.difference)
+                            .unwrap_or(0.0);
+                        low + (upper - low) * (at_low - dt) / (at_low - at_upper).max(1e-300)
+                    });
+                    pinch::duty_for_difference(
+                        &arrangement,
+                        "multistream exchanger duty for a minimum approach",
+                        dt,
+                        start,
+                        low,
+                        upper,
+                    )?
+                }
+            }
+        }
+    };
+    let duties = arrangement.duties(total);
+    let outlets = arrangement
+        .members
+        .iter()
+        .zip(&duties)
+        .map(|(m, q)| {
+            let state = m
+                .path
+                .state_ph(m.outlet_pressure(), m.enthalpy_after(*q, *q))?;
+            Ok(Flow {
+                state,
+                flow: m.inlet.flow,
+            })
+        })
+        .collect::<Result<Vec<Flow>>>()?;
+    let leak: f64 = design.streams.iter().map(|s| s.heat_leak).sum();
+    let mut performance = Performance {
+        heat_in: vec![(leak, context.ambient)],
+        duty: Some(total),
+        ..Performance::default()
+    };
+    if context.detailed && total > 0.0 {
+        let pinch = arrangement.pinch_on(total, design.segments)?;
+        let curves = &pinch.profile;
+        let profile: Vec<ProfilePoint> = (0..curves.duties.len())
+            .map(|k| ProfilePoint {
+                duty: curves.duties[k],
+                hot_temperature: curves.hot[k],
+                cold_temperature: curves.cold[k],
+            })
+            .collect();
+        let ua = if pinch.difference <= super::exchanger::ZERO_PINCH {
+            f64::INFINITY
+        } else {
+            pinch::conductance(profile.iter().map(|p| (p.duty, p.hot_temperature - p.cold_temperature)))
+        };
+        let (specified, delivered, specification_met) = match design.minimum_approach {
+            Some(dt) => (
+                ExchangerSpec::MinimumApproach(dt),
+                pinch.difference,
+                (pinch.difference - dt).abs() <= APPROACH_TOLERANCE,
+            ),
+            None => (ExchangerSpec::OutletTemperatures, pinch.difference, true),
+        };
+        let streams = arrangement
+            .members
+            .iter()
+            .zip(&duties)
+            .zip(&outlets)
+            .map(|((m, q), out)| StreamRecord {
+                name: m.spec.name.to_string(),
+                side: m.spec.side.word(),
+                inlet_temperature: m.inlet.state.temperature,
+                outlet_temperature: out.state.temperature,
+                duty: *q,
+                outlet_specified: m.spec.outlet_temperature.is_some(),
+            })
+            .collect();
+        let first = profile.first().copied();
+        let last = profile.last().copied();
+        let report = ExchangerReport {
+            ua,
+            effectiveness: f64::NAN,
+            max_duty: f64::NAN,
+            min_approach: pinch.difference,
+            min_approach_position: pinch.position,
+            warm_end_approach: first.map_or(f64::NAN, |p| p.hot_temperature - p.cold_temperature),
+            cold_end_approach: last.map_or(f64::NAN, |p| p.hot_temperature - p.cold_temperature),
+            profile,
+            specified,
+            delivered,
+            specification_met,
+            streams,
+        };
+        performance.details = Details::Exchanger(Box::new(report));
+    }
+    Ok((outlets, performance))
+}
