@@ -36,6 +36,10 @@ pub enum Coupling {
     /// Inlet k passes to outlet k only: the sides of an exchanger, each with its own
     /// flow and fluid.
     Sides,
+    /// Every inlet and the first outlet belong to one flow network; each further
+    /// outlet starts a network of its own, of the unit's own fluid (a bath's routed
+    /// boil-off).
+    WithSource,
 }
 
 /// How a feed's flow is set.
@@ -114,6 +118,22 @@ pub trait Equipment: std::fmt::Debug + Send + Sync {
     /// For a hydrogen feed, whether it gives the stream a para fraction (the
     /// ortho–para solution) rather than frozen normal hydrogen; `None` otherwise.
     fn gives_para_fraction(&self) -> Option<bool> {
+        None
+    }
+
+    /// Outlet ports that may be left unconnected (a bath's `boil-off`, vented when
+    /// it is not routed).
+    fn optional_outlets(&self) -> Vec<&'static str> {
+        Vec::new()
+    }
+
+    /// Marks the optional outlet `port` as connected: it becomes one of
+    /// [`Equipment::ports`].
+    fn route(&mut self, _port: &str) {}
+
+    /// The fluid an outlet that starts its own flow network carries (see
+    /// [`Coupling::WithSource`]).
+    fn source_fluid(&self, _outlet_position: usize) -> Option<&'static Fluid> {
         None
     }
 

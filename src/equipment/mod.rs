@@ -47,6 +47,13 @@ macro_rules! register_kinds {
                     $(UnitSpec::$variant(parameters) => parameters,)*
                 }
             }
+
+            /// The kind's behaviour, to change (connecting an optional outlet).
+            pub fn equipment_mut(&mut self) -> &mut (dyn Equipment + 'static) {
+                match self {
+                    $(UnitSpec::$variant(parameters) => parameters,)*
+                }
+            }
         }
 
         /// Every registered kind, in registration order.
@@ -203,4 +210,8 @@ pub struct Performance {
     pub extra_destroyed: f64,
     /// Kind-specific figures.
     pub details: Details,
+    /// Matter entering the plant through the unit that is no stream of the
+    /// flowsheet: the liquid cryogen fed to a bath whose boil-off is routed on as a
+    /// stream (its mass, enthalpy and entropy enter the balances).
+    pub utility_in: Option<Flow>,
 }

@@ -741,7 +741,12 @@ pub fn exchange(
             _ if member.inlet.flow <= 0.0 => Some(0.0),
             Some(t) => {
                 let duty = member.duty_for_outlet(t)?;
-                if duty < 0.0 {
+                // While the tear streams settle, an inlet may pass for a moment on
+                // the wrong side of its outlet temperature: no duty then. On the
+                // final pass it is an error.
+                if duty < 0.0 && !context.detailed {
+                    Some(0.0)
+                } else if duty < 0.0 {
                     return Err(Error::Input(format!(
                         "{unit}: the {} stream '{}' enters at {:.3} K and cannot leave at {t:.3} K{}",
                         member.spec.side.word(),
@@ -749,8 +754,9 @@ pub fn exchange(
                         member.inlet.state.temperature,
                         if member.hot() { ": a hot stream is cooled" } else { ": a cold stream is warmed" }
                     )));
+                } else {
+                    Some(duty)
                 }
-                Some(duty)
             }
             None => None,
         });

@@ -45,7 +45,13 @@ pub struct Precooler {
     pub source: PrecoolerSource,
     /// Whether the process side carries an ortho–para catalyst.
     pub catalyst: bool,
+    /// Whether a bath's boil-off leaves as a stream (its `boil-off` port is
+    /// connected) instead of being vented.
+    pub boil_off_routed: bool,
 }
+
+/// The optional outlet of a bath precooler: its cryogen's boil-off as a stream.
+pub const BOIL_OFF_PORT: &str = "boil-off";
 
 /// The figure of merit assumed for the plant that makes a bath's cryogen, when the
 /// flowsheet gives no `liquid_work` (common practice for industrial liquefiers,
@@ -115,6 +121,7 @@ impl EquipmentKind for Precooler {
             approach,
             source,
             catalyst: r.choice("catalyst", "a catalyst setting", &["false", "true"])? == 1,
+            boil_off_routed: false,
         })
     }
 }
@@ -191,6 +198,10 @@ impl Equipment for Precooler {
                 inlets: vec!["in", "coolant-in"],
                 outlets: vec!["out", "coolant-out"],
             },
+            PrecoolerSource::Bath { .. } if self.boil_off_routed => Ports {
+                inlets: vec!["in"],
+                outlets: vec!["out", BOIL_OFF_PORT],
+            },
             _ => Ports::through(),
         }
     }
@@ -198,7 +209,30 @@ impl Equipment for Precooler {
     fn coupling(&self) -> Coupling {
         match self.source {
             PrecoolerSource::Coolant => Coupling::Sides,
+            PrecoolerSource::Bath { .. } if self.boil_off_routed => Coupling::WithSource,
             _ => Coupling::Joined,
+        }
+    }
+
+    fn optional_outlets(&self) -> Vec<&'static str> {
+        match self.source {
+            PrecoolerSource::Bath { .. } => vec![BOIL_OFF_PORT],
+            _ => Vec::new(),
+        }
+    }
+
+    fn route(&mut self, port: &str) {
+        if port == BOIL_OFF_PORT && matches!(self.source, PrecoolerSource::Bath { .. }) {
+            self.boil_off_routed = true;
+        }
+    }
+
+    fn source_fluid(&self, outlet_position: usize) -> Option<&'static Fluid> {
+        match self.source {
+            PrecoolerSource::Bath { fluid, .. } if self.boil_off_routed && outlet_position == 1 => {
+                Some(fluid)
+            }
+            _ => None,
         }
     }
 
@@ -215,20 +249,78 @@ impl Equipment for Precooler {
 
     fn outlet_pressures(&self, inlets: &[Option<f64>]) -> Vec<Option<f64>> {
         let mut out = vec![less_drop(inlets[0], self.pressure_drop)];
-        out.extend(inlets.get(1).copied());
+        match self.source {
+            PrecoolerSource::Bath { pressure, .. } if self.boil_off_routed => {
+                out.push(Some(pressure))
+            }
+            _ => out.extend(inlets.get(1).copied()),
+        }
         out
     }
 
     fn run(&self, inlets: &[Flow], context: &Context) -> Result<(Vec<Flow>, Performance)> {
-        precool(
+        let (mut outlets, mut performance) = precool(
             inlets,
             self.outlet_temperature,
             self.pressure_drop,
             &self.source,
             self.catalyst,
             context,
-        )
+        )?;
+        if self.boil_off_routed {
+            let boil_off = route_boil_off(&self.source, &mut performance)?;
+            outlets.push(boil_off);
+        }
+        Ok((outlets, performance))
     }
+}
+
+/// Turns a bath's vented boil-off into a stream: the liquid cryogen it boils enters
+/// the plant through the unit (`utility_in`) and leaves as saturated vapour at the
+/// bath pressure, carrying the duty, instead of the heat leaving to the bath. The
+/// liquid is still charged at its work equivalent, and a vacuum pump (for a bath
+/// below one atmosphere) still at its work: it pumps the vapour up to one atmosphere
+/// once the flowsheet has warmed it. Returns the boil-off stream.
+fn route_boil_off(source: &PrecoolerSource, performance: &mut Performance) -> Result<Flow> {
+    let PrecoolerSource::Bath {
+        fluid: cryogen,
+        pressure,
+        ..
+    } = *source
+    else {
+        return Err(crate::error::Error::Internal(
+            "a boil-off routed from a precooler without a bath".into(),
+        ));
+    };
+    let Details::Precooler {
+        boil_off: Some(boil_off),
+        sink_temperature,
+    } = performance.details
+    else {
+        return Err(crate::error::Error::Internal(
+            "a bath precooler that reports no boil-off".into(),
+        ));
+    };
+    if boil_off < 0.0 {
+        return Err(crate::error::Error::Input(format!(
+            "the precooler's stream arrives colder than its outlet temperature, so the bath would condense {:.4} g/s of its vapour; a routed boil-off needs the bath to take heat",
+            -boil_off * 1e3
+        )));
+    }
+    let liquid = cryogen.state_p_quality(pressure, 0.0)?;
+    let vapour = cryogen.state_p_quality(pressure, 1.0)?;
+    // The heat goes into the boil-off stream, not out to the bath.
+    performance
+        .heat_in
+        .retain(|(_, temperature)| *temperature != sink_temperature);
+    performance.utility_in = Some(Flow {
+        state: liquid,
+        flow: boil_off,
+    });
+    Ok(Flow {
+        state: vapour,
+        flow: boil_off,
+    })
 }
 
 /// Cools `inlets[0]` to `outlet_temperature` (over an ortho–para catalyst when

@@ -9,6 +9,16 @@ use crate::fluids::Fluid;
 use crate::reading::Params;
 use std::collections::BTreeMap;
 
+/// The unit's optional outlets that are connected.
+fn optional(unit: &Unit) -> Vec<&'static str> {
+    let ports = unit.spec.ports().outlets;
+    unit.spec
+        .optional_outlets()
+        .into_iter()
+        .filter(|o| ports.contains(o))
+        .collect()
+}
+
 /// Whether the unit is a feed: a feed's `fluid` is its own, not an assertion.
 fn is_feed(unit: &Unit) -> bool {
     matches!(unit.spec.role(), Role::Feed(_))
@@ -21,6 +31,17 @@ impl Resolver<'_> {
         units: &mut [Unit],
         pending: &[PendingInlet],
     ) -> Result<Vec<(PortRef, PortRef)>, FlowsheetError> {
+        // Optional outlets (a bath's boil-off) that some inlet names become ports.
+        for PendingInlet { inlet, .. } in pending {
+            if let Some((id, port)) = inlet.reference.split_once('.') {
+                let (id, port) = (id.trim(), port.trim());
+                if let Some(source) = units.iter().position(|u| u.id == id) {
+                    if units[source].spec.optional_outlets().contains(&port) {
+                        units[source].spec.equipment_mut().route(port);
+                    }
+                }
+            }
+        }
         let ids: BTreeMap<&str, usize> = units
             .iter()
             .enumerate()
@@ -77,6 +98,12 @@ impl Resolver<'_> {
                         )
                     })?,
                 None if outlets.len() == 1 => outlets[0],
+                // A routed optional outlet (a bath's boil-off) is named when meant.
+                None if outlets.len() - optional(&units[source]).len() == 1 => outlets
+                    .iter()
+                    .copied()
+                    .find(|o| !optional(&units[source]).contains(o))
+                    .unwrap_or(outlets[0]),
                 None => {
                     return Err(params.error(
                         inlet.key,
@@ -161,6 +188,8 @@ impl Resolver<'_> {
                     .into_iter()
                     .collect(),
                 Coupling::Joined => unit.inlets.clone(),
+                Coupling::WithSource if outlet_position > 0 => Vec::new(),
+                Coupling::WithSource => unit.inlets.clone(),
             }
         };
         for _ in 0..=links.len() {
@@ -174,10 +203,10 @@ impl Resolver<'_> {
                     let own = if is_feed(unit) {
                         declared[ui].map(|d| d.0)
                     } else {
-                        None
+                        unit.spec.source_fluid(position)
                     };
                     let asserted = match unit.spec.coupling() {
-                        Coupling::Sides if position > 0 => None,
+                        Coupling::Sides | Coupling::WithSource if position > 0 => None,
                         _ => declared[ui].map(|d| d.0),
                     };
                     let candidate = own.or_else(|| from_inlets.first().copied()).or(asserted);

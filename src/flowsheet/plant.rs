@@ -165,6 +165,17 @@ pub fn flow_networks(units: &[Unit], stream_count: usize) -> Vec<usize> {
                     networks.union(pair[0], pair[1]);
                 }
             }
+            Coupling::WithSource => {
+                let joined: Vec<usize> = unit
+                    .inlets
+                    .iter()
+                    .chain(unit.outlets.first())
+                    .copied()
+                    .collect();
+                for pair in joined.windows(2) {
+                    networks.union(pair[0], pair[1]);
+                }
+            }
         }
     }
     let mut first_stream = std::collections::HashMap::new();

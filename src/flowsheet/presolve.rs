@@ -24,6 +24,15 @@ impl Resolver<'_> {
                 }
             }
         }
+        // A unit whose further outlets start networks of their own (a bath's routed
+        // boil-off) sets their flow.
+        for (ui, unit) in plant.units.iter().enumerate() {
+            if unit.spec.coupling() == crate::equipment::Coupling::WithSource {
+                for &s in unit.outlets.iter().skip(1) {
+                    bases.entry(network[s]).or_default().push(ui);
+                }
+            }
+        }
         // Two make-up feeds in one network would split the make-up by an arbitrary
         // rule: refuse.
         let mut balance_feeds: BTreeMap<usize, Vec<usize>> = BTreeMap::new();

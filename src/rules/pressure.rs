@@ -110,6 +110,8 @@ fn pressure_setter(plant: &Plant, mut stream: usize) -> Option<usize> {
         stream = match unit.spec.coupling() {
             crate::equipment::Coupling::Sides => *unit.inlets.get(k)?,
             crate::equipment::Coupling::Joined => *unit.inlets.first()?,
+            crate::equipment::Coupling::WithSource if k == 0 => *unit.inlets.first()?,
+            crate::equipment::Coupling::WithSource => return None,
         };
     }
     None

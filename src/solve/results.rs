@@ -225,12 +225,25 @@ pub fn assemble(
             }
             _ => {
                 let entropy_out: f64 = outflow.iter().map(|(_, f)| f.flow * f.state.entropy).sum();
-                let entropy_in: f64 = inflow.iter().map(|(_, f)| f.flow * f.state.entropy).sum();
+                let mut entropy_in: f64 =
+                    inflow.iter().map(|(_, f)| f.flow * f.state.entropy).sum();
                 let reservoirs: f64 = performance.heat_in.iter().map(|(q, t)| q / t).sum();
+                // Bought cryogen entering through the unit (a bath whose boil-off is
+                // routed on): it crosses the boundary like a feed.
+                let mut utility_exergy = 0.0;
+                if let Some(f) = &performance.utility_in {
+                    feed_mass += f.flow;
+                    energy_in += f.flow * f.state.enthalpy;
+                    boundary_enthalpy += (f.flow * f.state.enthalpy).abs();
+                    entropy_in += f.flow * f.state.entropy;
+                    utility_exergy = f.flow * dead.exergy(f)?;
+                }
                 destroyed =
                     t0 * (entropy_out - entropy_in - reservoirs) + performance.extra_destroyed;
-                s.precooling_exergy_outside +=
-                    performance.precooling_work - reservoir_exergy - performance.extra_destroyed;
+                s.precooling_exergy_outside += performance.precooling_work
+                    - reservoir_exergy
+                    - performance.extra_destroyed
+                    - utility_exergy;
             }
         }
         energy_in += performance.work_in + performance.heat_in.iter().map(|(q, _)| q).sum::<f64>();

@@ -246,6 +246,11 @@ impl Figure for TsDiagramFigure<'_> {
                     .iter()
                     .flat_map(|&i| unit.outlets.iter().map(move |&o| (i, o)))
                     .collect(),
+                Coupling::WithSource => unit
+                    .inlets
+                    .iter()
+                    .flat_map(|&i| unit.outlets.first().map(move |&o| (i, o)))
+                    .collect(),
             };
             for (i, o) in pairs {
                 let (a, b) = (&solution.streams[i].state, &solution.streams[o].state);
