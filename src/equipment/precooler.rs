@@ -268,7 +268,7 @@ impl Equipment for Precooler {
             context,
         )?;
         if self.boil_off_routed {
-            let boil_off = route_boil_off(&self.source, &mut performance)?;
+            let boil_off = route_boil_off(&self.source, &mut performance, context.detailed)?;
             outlets.push(boil_off);
         }
         Ok((outlets, performance))
@@ -281,7 +281,15 @@ impl Equipment for Precooler {
 /// liquid is still charged at its work equivalent, and a vacuum pump (for a bath
 /// below one atmosphere) still at its work: it pumps the vapour up to one atmosphere
 /// once the flowsheet has warmed it. Returns the boil-off stream.
-fn route_boil_off(source: &PrecoolerSource, performance: &mut Performance) -> Result<Flow> {
+///
+/// A stream arriving colder than the outlet temperature would condense vapour in the
+/// bath: on the final pass that is an error; while the tear streams settle, the
+/// boil-off is taken as none for that pass.
+fn route_boil_off(
+    source: &PrecoolerSource,
+    performance: &mut Performance,
+    final_pass: bool,
+) -> Result<Flow> {
     let PrecoolerSource::Bath {
         fluid: cryogen,
         pressure,
@@ -301,6 +309,13 @@ fn route_boil_off(source: &PrecoolerSource, performance: &mut Performance) -> Re
             "a bath precooler that reports no boil-off".into(),
         ));
     };
+    if boil_off < 0.0 && !final_pass {
+        let vapour = cryogen.state_p_quality(pressure, 1.0)?;
+        return Ok(Flow {
+            state: vapour,
+            flow: 0.0,
+        });
+    }
     if boil_off < 0.0 {
         return Err(crate::error::Error::Input(format!(
             "the precooler's stream arrives colder than its outlet temperature, so the bath would condense {:.4} g/s of its vapour; a routed boil-off needs the bath to take heat",
