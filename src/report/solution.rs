@@ -181,6 +181,8 @@ pub struct SolutionRecord {
     pub precooling_duty_w: f64,
     /// kg/s of cryogen boiled.
     pub cryogen_boil_off_kg_s: f64,
+    /// Cryogen bought (boiled) per kg of liquid product, kg/kg.
+    pub cryogen_per_kg_liquid: Option<f64>,
     /// Shaft power per kg liquid.
     #[serde(rename = "specific_energy_shaft_kWh_per_kg")]
     pub specific_energy_shaft: Option<f64>,
@@ -305,6 +307,8 @@ impl SolutionRecord {
             precooling_work_w: s.precooling_work,
             precooling_duty_w: s.precooling_duty,
             cryogen_boil_off_kg_s: s.cryogen_boil_off,
+            cryogen_per_kg_liquid: (s.liquid_flow > 0.0 && s.cryogen_boil_off > 0.0)
+                .then(|| s.cryogen_boil_off / s.liquid_flow),
             specific_energy_shaft: s.specific_energy_shaft,
             specific_energy: s.specific_energy,
             minimum_work_w: s.minimum_work,
@@ -543,12 +547,20 @@ pub fn summary_rows(solution: &Solution, units: super::Units) -> Vec<(&'static s
         rows.push((
             "precooling",
             format!(
-                "{:.3} kW removed; cryogen boiled {}; work equivalent {:.3} kW",
+                "{:.3} kW removed; cryogen boiled {}{}; work equivalent {:.3} kW",
                 s.precooling_duty / 1e3,
                 if engineering {
                     format!("{:.3} kg/h", s.cryogen_boil_off * 3600.0)
                 } else {
                     format!("{:.3} g/s", s.cryogen_boil_off * 1e3)
+                },
+                if s.liquid_flow > 0.0 && s.cryogen_boil_off > 0.0 {
+                    format!(
+                        " = {:.3} kg per kg liquid",
+                        s.cryogen_boil_off / s.liquid_flow
+                    )
+                } else {
+                    String::new()
                 },
                 s.precooling_work / 1e3
             ),
