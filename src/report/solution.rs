@@ -547,23 +547,21 @@ pub fn summary_rows(solution: &Solution, units: super::Units) -> Vec<(&'static s
         rows.push((
             "precooling",
             format!(
-                "{:.3} kW removed; cryogen boiled {}{}; work equivalent {:.3} kW",
+                "{:.3} kW removed; cryogen boiled {}; work equivalent {:.3} kW",
                 s.precooling_duty / 1e3,
                 if engineering {
                     format!("{:.3} kg/h", s.cryogen_boil_off * 3600.0)
                 } else {
                     format!("{:.3} g/s", s.cryogen_boil_off * 1e3)
                 },
-                if s.liquid_flow > 0.0 && s.cryogen_boil_off > 0.0 {
-                    format!(
-                        " = {:.3} kg per kg liquid",
-                        s.cryogen_boil_off / s.liquid_flow
-                    )
-                } else {
-                    String::new()
-                },
                 s.precooling_work / 1e3
             ),
+        ));
+    }
+    if s.liquid_flow > 0.0 && s.cryogen_boil_off > 0.0 {
+        rows.push((
+            "cryogen bought",
+            format!("{:.3} kg per kg liquid", s.cryogen_boil_off / s.liquid_flow),
         ));
     }
     rows.push((
