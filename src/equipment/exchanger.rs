@@ -219,6 +219,10 @@ pub struct ExchangerReport {
 /// it, K.
 pub const APPROACH_TOLERANCE: f64 = 1e-3;
 
+/// A coarse profile's smallest difference at zero duty this far above the target,
+/// K, settles that some duty meets the target.
+const ZERO_DUTY_MARGIN: f64 = 0.05;
+
 /// Below this smallest temperature difference, K, the pinch is taken as zero and the
 /// conductance as unbounded.
 pub const ZERO_PINCH: f64 = 1e-6;
@@ -303,6 +307,20 @@ impl PinchSearch for Sides<'_> {
 }
 
 impl Sides<'_> {
+    /// The smallest difference at zero duty, on a coarse profile when that is
+    /// clearly above `target` (it only decides whether any duty meets the target
+    /// and gives the search's first guess), else on the full profile.
+    fn difference_at_zero_duty(&self, target: f64) -> Result<f64> {
+        let coarse = self.design.segments / 5;
+        if coarse >= 8 {
+            let at_zero = self.pinch_on(0.0, coarse)?.difference;
+            if at_zero > target + ZERO_DUTY_MARGIN {
+                return Ok(at_zero);
+            }
+        }
+        Ok(self.pinch(0.0)?.difference)
+    }
+
     fn hot_outlet_pressure(&self) -> f64 {
         self.hot.state.pressure - self.design.hot_pressure_drop
     }
@@ -505,7 +523,7 @@ pub fn exchange(
             (hot.flow * (hot.state.enthalpy - out.enthalpy)).clamp(0.0, upper)
         }
         ExchangerSpec::MinimumApproach(dt) => {
-            let at_zero = sides.pinch(0.0)?.difference;
+            let at_zero = sides.difference_at_zero_duty(dt)?;
             if at_zero <= dt {
                 0.0
             } else {

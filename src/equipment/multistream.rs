@@ -544,6 +544,12 @@ struct Arrangement<'a> {
     /// Duties of streams with an outlet temperature (None for the free ones), W.
     fixed: Vec<Option<f64>>,
     segments: usize,
+    /// Each stream's last outlet state, to flash the next from (the duty search
+    /// moves the duties only a little between calls).
+    outlet_seeds: std::cell::RefCell<Vec<Option<State>>>,
+    /// Each composite's streams' last states at a single position (the slope's
+    /// two evaluations are at the same position), hot then cold.
+    position_seeds: std::cell::RefCell<[Vec<Option<State>>; 2]>,
 }
 
 /// Composite curves drawn on a duty grid: node positions (fraction of the duty
@@ -585,13 +591,18 @@ impl<'a> Arrangement<'a> {
         let duties = self.duties(total);
         let mut hot = Vec::new();
         let mut cold = Vec::new();
-        for (member, duty) in self.members.iter().zip(duties) {
+        let mut seeds = self.outlet_seeds.borrow_mut();
+        for ((member, duty), seed) in self.members.iter().zip(duties).zip(seeds.iter_mut()) {
             let inlet_temperature = member.inlet.state.temperature;
             let outlet_temperature = if duty > 0.0 {
-                member
-                    .path
-                    .state_ph(member.outlet_pressure(), member.enthalpy_after(duty, duty))?
-                    .temperature
+                let (p, h) = (member.outlet_pressure(), member.enthalpy_after(duty, duty));
+                let state = match seed.as_ref() {
+                    Some(near) => member.path.state(p, h, near)?,
+                    None => member.path.state_ph(p, h)?,
+                };
+                let t = state.temperature;
+                *seed = Some(state);
+                t
             } else {
                 inlet_temperature
             };
@@ -653,9 +664,10 @@ impl<'a> Arrangement<'a> {
     /// The difference between the composites at position `f` for `total` W.
     fn difference_at(&self, total: f64, f: f64) -> Result<f64> {
         let (hot, cold) = self.composites(total)?;
-        let mut seeds: Vec<Option<State>> = vec![None; self.members.len()];
-        let t_hot = hot.temperature_at(f * total, &mut seeds)?;
-        let t_cold = cold.temperature_at(f * total, &mut seeds)?;
+        let mut seeds = self.position_seeds.borrow_mut();
+        let [hot_seeds, cold_seeds] = &mut *seeds;
+        let t_hot = hot.temperature_at(f * total, hot_seeds)?;
+        let t_cold = cold.temperature_at(f * total, cold_seeds)?;
         Ok(t_hot - t_cold)
     }
 }
@@ -675,11 +687,12 @@ impl PinchSearch for Arrangement<'_> {
             .zip(&curves.cold)
             .map(|(h, c)| h - c)
             .collect();
-        let mut seeds: Vec<Option<State>> = vec![None; self.members.len()];
+        let mut hot_seeds: Vec<Option<State>> = vec![None; self.members.len()];
+        let mut cold_seeds: Vec<Option<State>> = vec![None; self.members.len()];
         let (difference, position) =
             pinch::refined_minimum(&curves.positions, &differences, |f, _| {
-                Ok(hot.temperature_at(f * total, &mut seeds)?
-                    - cold.temperature_at(f * total, &mut seeds)?)
+                Ok(hot.temperature_at(f * total, &mut hot_seeds)?
+                    - cold.temperature_at(f * total, &mut cold_seeds)?)
             })?;
         Ok(Pinch {
             duty: total,
@@ -761,10 +774,13 @@ pub fn exchange(
             None => None,
         });
     }
+    let count = members.len();
     let arrangement = Arrangement {
         members,
         fixed,
         segments: design.segments,
+        outlet_seeds: std::cell::RefCell::new(vec![None; count]),
+        position_seeds: std::cell::RefCell::new([vec![None; count], vec![None; count]]),
     };
     let known = |side: Side| -> f64 {
         arrangement
@@ -840,7 +856,16 @@ pub fn exchange(
             if upper <= low {
                 low
             } else {
-                let at_low = arrangement.pinch_on(low, design.segments)?.difference;
+                // On a coarse profile when clearly above the target (it decides only
+                // whether some duty meets it, and the first guess).
+                let coarse = arrangement
+                    .pinch_on(low, (design.segments / 5).max(8))?
+                    .difference;
+                let at_low = if coarse > dt + 0.05 {
+                    coarse
+                } else {
+                    arrangement.pinch_on(low, design.segments)?.difference
+                };
                 if at_low <= dt {
                     low
                 } else {
