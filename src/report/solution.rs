@@ -100,6 +100,30 @@ pub struct EquipmentRecord {
     pub boil_off_kg_s: Option<f64>,
     /// Expanders: liquid fraction at the outlet.
     pub outlet_liquid_fraction: Option<f64>,
+    /// Multistream exchangers: each stream's temperatures and duty.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub exchanger_streams: Option<Vec<ExchangerStreamRecord>>,
+}
+
+/// One stream of a multistream exchanger.
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
+pub struct ExchangerStreamRecord {
+    /// The stream's name (its outlet port).
+    pub name: String,
+    /// `hot` or `cold`.
+    pub side: String,
+    /// K.
+    #[serde(rename = "inlet_temperature_K")]
+    pub inlet_temperature_k: f64,
+    /// K.
+    #[serde(rename = "outlet_temperature_K")]
+    pub outlet_temperature_k: f64,
+    /// Heat exchanged with the other streams, W.
+    #[serde(rename = "duty_W")]
+    pub duty_w: f64,
+    /// Whether its outlet temperature was specified (else set by the energy balance
+    /// or the pinch).
+    pub outlet_specified: bool,
 }
 
 /// One row of the exergy account.
@@ -270,6 +294,7 @@ impl SolutionRecord {
                     discharge_temperatures_k: None,
                     boil_off_kg_s: None,
                     outlet_liquid_fraction: None,
+                    exchanger_streams: None,
                 };
                 match &p.details {
                     Details::Exchanger(x) => {
@@ -278,6 +303,21 @@ impl SolutionRecord {
                         record.ua_w_k = x.ua.is_finite().then_some(x.ua);
                         record.effectiveness =
                             x.effectiveness.is_finite().then_some(x.effectiveness);
+                        if !x.streams.is_empty() {
+                            record.exchanger_streams = Some(
+                                x.streams
+                                    .iter()
+                                    .map(|s| ExchangerStreamRecord {
+                                        name: s.name.clone(),
+                                        side: s.side.to_string(),
+                                        inlet_temperature_k: s.inlet_temperature,
+                                        outlet_temperature_k: s.outlet_temperature,
+                                        duty_w: s.duty,
+                                        outlet_specified: s.outlet_specified,
+                                    })
+                                    .collect(),
+                            );
+                        }
                     }
                     Details::Compressor {
                         discharge_temperatures,
