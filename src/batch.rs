@@ -10,6 +10,7 @@
 
 use crate::error::{Error, Result};
 use crate::fluids::{self, Property, Spec};
+use rayon::prelude::*;
 
 /// The output columns after the copied input columns, with units.
 pub const OUTPUT_COLUMNS: [&str; 13] = [
@@ -43,6 +44,61 @@ struct InputColumn {
     index: usize,
     property: Property,
     unit: Option<String>,
+    /// The SI value of one of the header's unit, where that unit is a plain factor
+    /// (no offset, not gauge): a cell's number times it is the value, as the
+    /// quantity parser would give. Cells are then read once, as numbers.
+    factor: Option<f64>,
+}
+
+impl InputColumn {
+    /// The column's specification in `cell`: by the header's factor where the cell
+    /// is a plain finite number (and, for a temperature, above zero), else through
+    /// the quantity parser, whose messages name what is wrong.
+    fn spec(&self, cell: &str) -> Result<Spec> {
+        if let (Some(factor), Ok(number)) = (self.factor, cell.parse::<f64>()) {
+            let value = number * factor + 0.0;
+            if value.is_finite() && (self.property != Property::Temperature || value > 0.0) {
+                return Ok(Spec::si(self.property, value));
+            }
+        }
+        let text = match &self.unit {
+            Some(unit) => format!("{}={cell} {unit}", self.property.key()),
+            None => format!("{}={cell}", self.property.key()),
+        };
+        Spec::parse(&text)
+    }
+}
+
+/// The factor of a header's unit, where it is a plain factor (see [`InputColumn`]).
+fn plain_factor(property: Property, unit: &Option<String>) -> Option<f64> {
+    let unit = unit.as_ref()?;
+    let key = property.key();
+    let zero = Spec::parse(&format!("{key}=0 {unit}")).ok();
+    let one = Spec::parse(&format!("{key}=1 {unit}")).ok()?;
+    // A unit with an offset (°C) or a gauge pressure reads 0 as something else
+    // (or, for a temperature, refuses it).
+    match zero {
+        Some(z) if z.value == 0.0 => Some(one.value),
+        None if property == Property::Temperature => {
+            // 0 K is refused; 2 of the unit is twice 1 of it for a plain factor.
+            let two = Spec::parse(&format!("{key}=2 {unit}")).ok()?;
+            (two.value == 2.0 * one.value).then_some(one.value)
+        }
+        _ => None,
+    }
+}
+
+/// Writes `value` in the shortest form that reads back to the same number.
+fn number(buffer: &mut ryu::Buffer, value: f64) -> &str {
+    if value.is_finite() {
+        buffer.format_finite(value)
+    } else if value.is_nan() {
+        "NaN"
+    } else if value > 0.0 {
+        "inf"
+    } else {
+        "-inf"
+    }
 }
 
 /// Reads `name` or `name [unit]`.
@@ -77,10 +133,12 @@ pub fn run(input: &str, source: &str, default_fluid: Option<&str>) -> Result<Bat
         if name.eq_ignore_ascii_case("fluid") {
             fluid_column = Some(index);
         } else if let Some(property) = Property::from_key(&name) {
+            let factor = plain_factor(property, &unit);
             inputs.push(InputColumn {
                 index,
                 property,
                 unit,
+                factor,
             });
         }
     }
@@ -98,93 +156,192 @@ pub fn run(input: &str, source: &str, default_fluid: Option<&str>) -> Result<Bat
     if let Some(name) = default_fluid {
         fluids::fluid(name)?;
     }
-    let mut writer = csv::Writer::from_writer(Vec::new());
-    let mut out_header: Vec<String> = headers.iter().map(str::to_string).collect();
-    out_header.extend(OUTPUT_COLUMNS.iter().map(|s| s.to_string()));
-    writer
-        .write_record(&out_header)
-        .map_err(|e| Error::Input(e.to_string()))?;
-    let mut rows = 0;
-    let mut failures = Vec::new();
+    let mut out = String::with_capacity(input.len() * 4);
+    let header_cells: Vec<&str> = headers
+        .iter()
+        .chain(OUTPUT_COLUMNS.iter().copied())
+        .collect();
+    for (i, cell) in header_cells.iter().enumerate() {
+        if i > 0 {
+            out.push(',');
+        }
+        push_cell(&mut out, cell);
+    }
+    out.push('\n');
     let width = headers.len();
     let text_lines: Vec<&str> = input.lines().collect();
-    for (number, record) in reader.records().enumerate() {
-        let record =
-            record.map_err(|e| Error::Input(format!("{source}: row {}: {e}", number + 1)))?;
-        // The line in the file, comment lines counted: the reader's position can
-        // stand on comment lines just before the record, so step past them.
-        let mut line = record.position().map_or(number + 2, |p| p.line() as usize);
+    // Read every row first (with its line in the file, comment lines counted: the
+    // reader's position can stand on comment lines just before the record).
+    let mut records: Vec<(csv::ByteRecord, usize)> = Vec::new();
+    loop {
+        let mut record = csv::ByteRecord::new();
+        match reader.read_byte_record(&mut record) {
+            Ok(true) => {}
+            Ok(false) => break,
+            Err(e) => {
+                return Err(Error::Input(format!(
+                    "{source}: row {}: {e}",
+                    records.len() + 1
+                )))
+            }
+        }
+        let mut line = record
+            .position()
+            .map_or(records.len() + 2, |p| p.line() as usize);
         while text_lines
             .get(line - 1)
             .is_some_and(|l| l.trim().is_empty() || l.trim_start().starts_with('#'))
         {
             line += 1;
         }
-        rows += 1;
-        let computed = (|| -> Result<Vec<String>> {
-            if record.len() != width {
-                return Err(Error::Input(format!(
-                    "this row has {} cells where the header has {width}",
-                    record.len()
-                )));
-            }
-            let name = match fluid_column {
-                Some(i) => record.get(i).unwrap_or(""),
-                None => default_fluid.unwrap_or(""),
-            };
-            let fluid = fluids::fluid(name)?;
-            let spec = |c: &InputColumn| -> Result<Spec> {
-                let cell = record.get(c.index).unwrap_or("");
-                let text = match &c.unit {
-                    Some(unit) => format!("{}={cell} {unit}", c.property.key()),
-                    None => format!("{}={cell}", c.property.key()),
-                };
-                Spec::parse(&text)
-            };
-            let state = fluid.state_from(spec(&inputs[0])?, spec(&inputs[1])?)?;
-            let opt = |v: Option<f64>| v.map_or(String::new(), |v| format!("{v:.10e}"));
-            Ok(vec![
-                format!("{:.10}", state.temperature),
-                format!("{:.6}", state.pressure),
-                format!("{:.10e}", state.density),
-                format!("{:.10e}", state.enthalpy),
-                format!("{:.10e}", state.entropy),
-                opt(state.cp()),
-                opt(state.cv()),
-                opt(state.speed_of_sound()),
-                opt(state.joule_thomson()),
-                format!("{:.10}", state.compressibility()),
-                state.phase.name().to_string(),
-                state.quality.map_or(String::new(), |x| format!("{x:.10}")),
-                String::new(),
-            ])
-        })();
-        // The copied input cells, as many as the header names (a ragged row's
-        // padded or cut, its error saying so).
-        let mut row: Vec<String> = (0..width)
-            .map(|i| record.get(i).unwrap_or("").to_string())
-            .collect();
-        match computed {
-            Ok(cells) => row.extend(cells),
-            Err(e) => {
-                let message = format!("line {line}: {e}");
-                row.extend(std::iter::repeat_n(String::new(), OUTPUT_COLUMNS.len() - 1));
-                row.push(e.to_string());
-                failures.push((line, message));
-            }
-        }
-        writer
-            .write_record(&row)
-            .map_err(|e| Error::Input(e.to_string()))?;
+        records.push((record, line));
     }
-    let bytes = writer
-        .into_inner()
-        .map_err(|e| Error::Input(e.to_string()))?;
+    // Then compute and write them in blocks on every core, each block into its own
+    // text, joined in order: the output does not depend on the number of threads.
+    let table = Table {
+        inputs: &inputs,
+        fluid_column,
+        default_fluid,
+        width,
+    };
+    let blocks: Vec<(String, Vec<(usize, String)>)> = records
+        .par_chunks(ROWS_PER_BLOCK)
+        .map(|block| table.block(block))
+        .collect();
+    let mut failures = Vec::new();
+    out.reserve(blocks.iter().map(|(text, _)| text.len()).sum());
+    for (text, failed) in blocks {
+        out.push_str(&text);
+        failures.extend(failed);
+    }
     Ok(BatchOutcome {
-        csv: String::from_utf8_lossy(&bytes).into_owned(),
-        rows,
+        csv: out,
+        rows: records.len(),
         failures,
     })
+}
+
+/// Rows computed and written together by one thread.
+const ROWS_PER_BLOCK: usize = 512;
+
+/// What every row needs to know about the table.
+struct Table<'a> {
+    inputs: &'a [InputColumn],
+    fluid_column: Option<usize>,
+    default_fluid: Option<&'a str>,
+    width: usize,
+}
+
+impl Table<'_> {
+    /// The output lines of `rows` (each with its line in the file), and the rows
+    /// that failed with their line and reason.
+    fn block(&self, rows: &[(csv::ByteRecord, usize)]) -> (String, Vec<(usize, String)>) {
+        let mut out = String::with_capacity(rows.len() * 256);
+        let mut failures = Vec::new();
+        // Each fluid named in the block, looked up once.
+        let mut known: Vec<(&str, &'static fluids::Fluid)> = Vec::new();
+        let mut buffer = ryu::Buffer::new();
+        for (record, line) in rows {
+            // The input is text, so every field is too.
+            let field = |i: usize| -> &str {
+                record
+                    .get(i)
+                    .and_then(|f| std::str::from_utf8(f).ok())
+                    .unwrap_or("")
+            };
+            let computed = (|| -> Result<fluids::State> {
+                if record.len() != self.width {
+                    return Err(Error::Input(format!(
+                        "this row has {} cells where the header has {}",
+                        record.len(),
+                        self.width
+                    )));
+                }
+                let name = match self.fluid_column {
+                    Some(i) => field(i),
+                    None => self.default_fluid.unwrap_or(""),
+                };
+                let fluid = match known.iter().find(|(n, _)| *n == name) {
+                    Some((_, fluid)) => *fluid,
+                    None => {
+                        let fluid = fluids::fluid(name)?;
+                        known.push((name, fluid));
+                        fluid
+                    }
+                };
+                let first = self.inputs[0].spec(field(self.inputs[0].index))?;
+                let second = self.inputs[1].spec(field(self.inputs[1].index))?;
+                fluid.state_from(first, second)
+            })();
+            // The copied input cells, as many as the header names (a ragged row's
+            // padded or cut, its error saying so).
+            for i in 0..self.width {
+                if i > 0 {
+                    out.push(',');
+                }
+                push_cell(&mut out, field(i));
+            }
+            match computed {
+                Ok(state) => {
+                    for value in [
+                        state.temperature,
+                        state.pressure,
+                        state.density,
+                        state.enthalpy,
+                        state.entropy,
+                    ] {
+                        out.push(',');
+                        out.push_str(number(&mut buffer, value));
+                    }
+                    for value in [
+                        state.cp(),
+                        state.cv(),
+                        state.speed_of_sound(),
+                        state.joule_thomson(),
+                    ] {
+                        out.push(',');
+                        if let Some(v) = value {
+                            out.push_str(number(&mut buffer, v));
+                        }
+                    }
+                    out.push(',');
+                    out.push_str(number(&mut buffer, state.compressibility()));
+                    out.push(',');
+                    out.push_str(state.phase.name());
+                    out.push(',');
+                    if let Some(x) = state.quality {
+                        out.push_str(number(&mut buffer, x));
+                    }
+                    out.push(',');
+                }
+                Err(e) => {
+                    for _ in 0..OUTPUT_COLUMNS.len() {
+                        out.push(',');
+                    }
+                    let reason = e.to_string();
+                    push_cell(&mut out, &reason);
+                    failures.push((*line, format!("line {line}: {reason}")));
+                }
+            }
+            out.push('\n');
+        }
+        (out, failures)
+    }
+}
+
+/// Appends `cell` as a CSV field: as it is, or quoted (inner quotes doubled) where
+/// it holds a comma, a quote or a line break.
+fn push_cell(out: &mut String, cell: &str) {
+    let plain = !cell
+        .bytes()
+        .any(|b| matches!(b, b',' | b'"' | b'\n' | b'\r'));
+    if plain {
+        out.push_str(cell);
+    } else {
+        out.push('"');
+        out.push_str(&cell.replace('"', "\"\""));
+        out.push('"');
+    }
 }
 
 #[cfg(test)]
