@@ -452,8 +452,8 @@ impl Sides<'_> {
             "exchanger largest duty (zero pinch)",
             0.0,
             start,
-            0.0,
-            upper,
+            (0.0, upper),
+            false,
         )
     }
 
@@ -535,8 +535,8 @@ pub fn exchange(
                     "exchanger duty for a minimum approach",
                     dt,
                     start,
-                    0.0,
-                    upper,
+                    (0.0, upper),
+                    context.loose,
                 )?
             }
         }

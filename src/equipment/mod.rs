@@ -151,6 +151,11 @@ pub struct Context {
     /// The unit's duty on the previous pass, W, which exchangers solved for their
     /// duty start from.
     pub duty_hint: Option<f64>,
+    /// The tear streams are still far from converged: an exchanger sized by its
+    /// pinch may stop at its coarse profile's answer (which differs from the full
+    /// profile's by far less than the tear streams still move). Never on the
+    /// final passes or the detailed one.
+    pub loose: bool,
 }
 
 impl Context {
@@ -161,6 +166,7 @@ impl Context {
             detailed: false,
             feed_flow: 0.0,
             duty_hint: None,
+            loose: false,
         }
     }
 }

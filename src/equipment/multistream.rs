@@ -881,8 +881,8 @@ pub fn exchange(
                         "multistream exchanger duty for a minimum approach",
                         dt,
                         start,
-                        low,
-                        upper,
+                        (low, upper),
+                        context.loose,
                     )?
                 }
             }

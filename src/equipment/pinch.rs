@@ -151,18 +151,25 @@ const COARSE_MINIMUM: usize = 8;
 /// exchanger's own profile from there: the refined pinch of the coarse profile is
 /// the same pinch to within the refinement's tolerance, so the second stage usually
 /// ends after one profile. Only the second stage's answer counts.
+///
+/// With `loose` (the tear streams still far from converged), the coarse stage's
+/// answer is returned as it is.
 pub fn duty_for_difference<S: PinchSearch>(
     search: &S,
     solver: &'static str,
     target: f64,
     start: f64,
-    low: f64,
-    upper: f64,
+    (low, upper): (f64, f64),
+    loose: bool,
 ) -> Result<f64> {
     let segments = search.segments();
     let coarse = segments / COARSE_FRACTION;
     let start = if coarse >= COARSE_MINIMUM {
-        duty_search(search, solver, target, start, low, upper, coarse)?
+        let rough = duty_search(search, solver, target, start, low, upper, coarse)?;
+        if loose {
+            return Ok(rough);
+        }
+        rough
     } else {
         start
     };

@@ -55,7 +55,13 @@ struct Problem<'a> {
     last: Option<(Vec<Option<Flow>>, Vec<Performance>)>,
     /// Each unit's duty on the last pass, to start the next from.
     duty_hints: std::cell::RefCell<Vec<Option<f64>>>,
+    /// The largest scaled change of a tear variable over the last pass.
+    last_change: std::cell::Cell<f64>,
 }
+
+/// While the tear variables still change by more than this (scaled) from one pass
+/// to the next, exchangers may size on their coarse profiles (`Context::loose`).
+const LOOSE_ABOVE: f64 = 1e-4;
 
 impl Problem<'_> {
     fn run_pass(&self, x: &[f64]) -> Result<PassOutput> {
@@ -129,6 +135,7 @@ impl Problem<'_> {
                     _ => 0.0,
                 },
                 duty_hint: self.duty_hints.borrow()[u],
+                loose: !self.context.detailed && self.last_change.get() > LOOSE_ABOVE,
                 ..self.context
             };
             let (mut outlets, performance) = unit
@@ -168,6 +175,12 @@ impl Problem<'_> {
             .ok_or_else(|| Error::Internal("a tear stream was not computed".into()))?;
             g[k] = v / self.scales[k];
         }
+        let change = g
+            .iter()
+            .zip(x)
+            .map(|(a, b)| (a - b).abs())
+            .fold(0.0, f64::max);
+        self.last_change.set(change);
         Ok((g, computed, performances))
     }
 
@@ -285,6 +298,7 @@ pub fn solve(plant: &Plant, options: &Options) -> Result<Solution> {
         context: Context::new(plant.ambient),
         last: None,
         duty_hints: std::cell::RefCell::new(vec![None; plant.units.len()]),
+        last_change: std::cell::Cell::new(f64::INFINITY),
     };
     let describe = |k: usize| -> String {
         let name = |s: usize| plant.streams[s].name.clone();
