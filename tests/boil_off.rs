@@ -18,16 +18,7 @@ fn solved(file: &str) -> (cryochain::flowsheet::Plant, Solution) {
 }
 
 fn reference(quantity: &str) -> f64 {
-    let (header, rows) = common::read_csv("coolprop_boil_off.csv");
-    let (q, v) = (
-        common::column(&header, "quantity"),
-        common::column(&header, "value"),
-    );
-    rows.iter()
-        .find(|r| r[q] == quantity)
-        .unwrap_or_else(|| panic!("{quantity}"))[v]
-        .parse()
-        .unwrap()
+    common::reference_value("coolprop_boil_off.csv", &[("quantity", quantity)], "value")
 }
 
 const VENTED: &str = "tests/flowsheets/hydrogen-ln2-precooled-frozen-normal.yaml";

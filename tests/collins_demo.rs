@@ -14,16 +14,7 @@ use cryochain::solve::{solve, Options};
 use std::path::Path;
 
 fn reference(quantity: &str) -> f64 {
-    let (header, rows) = common::read_csv("coolprop_collins.csv");
-    let (q, v) = (
-        common::column(&header, "quantity"),
-        common::column(&header, "value"),
-    );
-    rows.iter()
-        .find(|r| r[q] == quantity)
-        .unwrap_or_else(|| panic!("{quantity}"))[v]
-        .parse()
-        .unwrap()
+    common::reference_value("coolprop_collins.csv", &[("quantity", quantity)], "value")
 }
 
 #[test]

@@ -89,17 +89,11 @@ fn two_streams_written_as_a_multistream_exchanger_give_the_two_stream_result() {
 
 /// The CoolProp-based figures for `case`.
 fn reference(case: &str, quantity: &str) -> f64 {
-    let (header, rows) = common::read_csv("coolprop_multistream.csv");
-    let (c, q, v) = (
-        common::column(&header, "case"),
-        common::column(&header, "quantity"),
-        common::column(&header, "value"),
-    );
-    rows.iter()
-        .find(|r| r[c] == case && r[q] == quantity)
-        .unwrap_or_else(|| panic!("{case} {quantity}"))[v]
-        .parse()
-        .unwrap()
+    common::reference_value(
+        "coolprop_multistream.csv",
+        &[("case", case), ("quantity", quantity)],
+        "value",
+    )
 }
 
 /// Σ m (h_out − h_in) over the box's streams against the heat leaks, relative to

@@ -37,6 +37,20 @@ pub fn column(header: &[String], name: &str) -> usize {
         .unwrap_or_else(|| panic!("column {name}"))
 }
 
+/// The number in column `value` of the reference CSV `name` on the row whose
+/// columns hold the given keys (`[("quantity", "liquid_yield")]`).
+pub fn reference_value(name: &str, keys: &[(&str, &str)], value: &str) -> f64 {
+    let (header, rows) = read_csv(name);
+    let key_columns: Vec<(usize, &str)> =
+        keys.iter().map(|(c, k)| (column(&header, c), *k)).collect();
+    let v = column(&header, value);
+    rows.iter()
+        .find(|r| key_columns.iter().all(|(c, k)| r[*c] == *k))
+        .unwrap_or_else(|| panic!("{name}: no row {keys:?}"))[v]
+        .parse()
+        .unwrap()
+}
+
 /// Relative difference |a − b| / |b|.
 pub fn relative(a: f64, b: f64) -> f64 {
     (a - b).abs() / b.abs()
