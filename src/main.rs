@@ -8,6 +8,23 @@ mod cli;
 use clap::Parser;
 use std::io::Write;
 
+/// Environment variable that makes the binary fail on purpose, so the path of an
+/// internal fault (exit code 6) can be tested end to end: `panic` panics inside
+/// the command, `internal` returns an internal error. No input reaches code 6
+/// otherwise (docs/cli.md). Any other value is ignored.
+const FAULT_VARIABLE: &str = "CRYOCHAIN_INJECT_FAULT";
+
+/// The fault asked for by [`FAULT_VARIABLE`], raised where a real one would be.
+fn injected_fault(fault: Option<&str>) -> Result<(), cli::Failure> {
+    match fault {
+        Some("panic") => panic!("fault injected by {FAULT_VARIABLE}=panic"),
+        Some("internal") => Err(cli::Failure::from(cryochain::Error::Internal(format!(
+            "fault injected by {FAULT_VARIABLE}=internal"
+        )))),
+        _ => Ok(()),
+    }
+}
+
 fn main() {
     let parsed = match cli::Cli::try_parse() {
         Ok(parsed) => parsed,
@@ -22,7 +39,11 @@ fn main() {
             std::process::exit(code);
         }
     };
-    let (output, failure) = match cli::guarded(|| cli::run(parsed)) {
+    let fault = std::env::var(FAULT_VARIABLE).ok();
+    let (output, failure) = match cli::guarded(|| {
+        injected_fault(fault.as_deref())?;
+        cli::run(parsed)
+    }) {
         Ok(output) => (output, None),
         Err(mut failure) => (std::mem::take(&mut failure.partial), Some(failure)),
     };

@@ -62,6 +62,39 @@ fn every_exit_code() {
     assert_eq!(run(&["no-such-command"]).0, 5);
 }
 
+/// 6: an internal fault. No input is known to reach it, so the binary's fault hook
+/// (`CRYOCHAIN_INJECT_FAULT`) raises one where a real one would be: a panic and an
+/// internal error both exit 6 with the message, never Rust's 101, and without the
+/// default panic report.
+#[test]
+fn internal_faults_exit_six() {
+    for (fault, words) in [
+        ("panic", "fault injected by CRYOCHAIN_INJECT_FAULT=panic"),
+        (
+            "internal",
+            "fault injected by CRYOCHAIN_INJECT_FAULT=internal",
+        ),
+    ] {
+        let out = bin()
+            .args(["state", "nitrogen", "T=80K", "p=1bar"])
+            .env("CRYOCHAIN_INJECT_FAULT", fault)
+            .output()
+            .unwrap();
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert_eq!(out.status.code(), Some(6), "{fault}: {err}");
+        assert!(err.contains(words), "{fault}: {err}");
+        assert!(!err.contains("panicked at"), "{fault}: {err}");
+        assert!(out.stdout.is_empty(), "{fault}");
+    }
+    // An unknown value is ignored: the command runs as usual.
+    let out = bin()
+        .args(["state", "nitrogen", "T=80K", "p=1bar"])
+        .env("CRYOCHAIN_INJECT_FAULT", "none")
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(0));
+}
+
 /// Output that cannot be written: a closed pipe ends quietly with success (was a
 /// panic, exit 101); a full disk and a missing folder are file errors (were 1).
 #[test]

@@ -176,9 +176,9 @@ pub fn run(cli: Cli) -> Result<Output, Failure> {
 mod tests {
     use super::*;
 
-    /// No input reaches an internal fault (the fuzzers found none), so exit code 6
-    /// is checked here rather than end to end: an internal error and a panic both
-    /// leave with it, distinct from every other code.
+    /// The mapping behind exit code 6 (end to end in tests/cli_contract.rs with an
+    /// injected fault): an internal error and a panic both leave with it, distinct
+    /// from every other code.
     #[test]
     fn internal_faults_exit_with_their_own_code() {
         let failure = Failure::from(Error::Internal("a tear stream was not computed".into()));
