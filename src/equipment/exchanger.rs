@@ -8,6 +8,7 @@
 use super::kind::{less_drop, Coupling, EquipmentKind, Ports, Reader};
 use super::pinch::{self, Pinch, PinchSearch};
 use super::{Context, Details, Equipment, Flow, Performance};
+use std::ops::ControlFlow;
 use crate::error::{Error, FlowsheetError, Result};
 use crate::fluids::conversion::StreamPath;
 use crate::fluids::State;
@@ -304,6 +305,25 @@ impl PinchSearch for Sides<'_> {
         let below = self.difference_at(pinch.duty - step, pinch.position, near)?;
         Ok((above - below) / (2.0 * step))
     }
+
+    /// Warm end: the cold outlet at the hot inlet's temperature less `target`; cold
+    /// end: the hot outlet at the cold inlet's temperature plus `target`.
+    fn end_duties(&self, target: f64) -> [Option<f64>; 2] {
+        let (hot, cold) = (&self.hot.state, &self.cold.state);
+        let warm = self
+            .cold_path
+            .state_at(hot.temperature - target, self.cold_outlet_pressure())
+            .ok()
+            .map(|out| {
+                self.cold.flow * (out.enthalpy - cold.enthalpy) - self.design.heat_leak
+            });
+        let cold_end = self
+            .hot_path
+            .state_at(cold.temperature + target, self.hot_outlet_pressure())
+            .ok()
+            .map(|out| self.hot.flow * (hot.enthalpy - out.enthalpy));
+        [warm, cold_end]
+    }
 }
 
 impl Sides<'_> {
@@ -522,7 +542,9 @@ pub fn exchange(
             )?;
             (hot.flow * (hot.state.enthalpy - out.enthalpy)).clamp(0.0, upper)
         }
-        ExchangerSpec::MinimumApproach(dt) => {
+        ExchangerSpec::MinimumApproach(dt) => match pinch::end_pinch(&sides, dt, (0.0, upper), context.loose)? {
+            ControlFlow::Break(duty) => duty,
+            ControlFlow::Continue(bound) => {
             let at_zero = sides.difference_at_zero_duty(dt)?;
             if at_zero <= dt {
                 0.0
@@ -535,11 +557,12 @@ pub fn exchange(
                     "exchanger duty for a minimum approach",
                     dt,
                     start,
-                    (0.0, upper),
+                    (0.0, bound),
                     context.loose,
                 )?
             }
-        }
+            }
+        },
         ExchangerSpec::Effectiveness(e) => {
             let q_max = sides.max_duty(upper, None)?;
             known_max = Some(q_max);

@@ -18,6 +18,7 @@ use super::exchanger::{ExchangerReport, ExchangerSpec, ProfilePoint, APPROACH_TO
 use super::kind::{intern, Coupling, EquipmentKind, Ports, Reader};
 use super::pinch::{self, Pinch, PinchSearch};
 use super::{Context, Details, Equipment, Flow, Performance};
+use std::ops::ControlFlow;
 use crate::error::{Error, FlowsheetError, Result};
 use crate::fluids::conversion::StreamPath;
 use crate::fluids::State;
@@ -709,6 +710,45 @@ impl PinchSearch for Arrangement<'_> {
         let below = self.difference_at(pinch.duty - step, pinch.position)?;
         Ok((above - below) / (2.0 * step))
     }
+
+    /// Warm end: the free cold stream leaving at the warmest hot inlet's temperature
+    /// less `target`; cold end: the free hot stream leaving at the coldest cold
+    /// inlet's temperature plus `target` (the free stream need not be the one that
+    /// sets the end; the search's check on a profile decides).
+    fn end_duties(&self, target: f64) -> [Option<f64>; 2] {
+        let flowing = |hot: bool| {
+            self.members
+                .iter()
+                .filter(move |m| m.hot() == hot && m.inlet.flow > 0.0)
+                .map(|m| m.inlet.state.temperature)
+        };
+        let known = |hot: bool| -> f64 {
+            self.members
+                .iter()
+                .zip(&self.fixed)
+                .filter(|(m, _)| m.hot() == hot)
+                .filter_map(|(_, d)| *d)
+                .sum()
+        };
+        let free = |hot: bool| {
+            self.members
+                .iter()
+                .zip(&self.fixed)
+                .find(|(m, d)| m.hot() == hot && d.is_none() && m.inlet.flow > 0.0)
+                .map(|(m, _)| m)
+        };
+        let warmest_hot = flowing(true).fold(f64::NEG_INFINITY, f64::max);
+        let coldest_cold = flowing(false).fold(f64::INFINITY, f64::min);
+        let warm = free(false).and_then(|m| {
+            let duty = m.duty_for_outlet(warmest_hot - target).ok()?;
+            Some(known(false) + duty)
+        });
+        let cold_end = free(true).and_then(|m| {
+            let duty = m.duty_for_outlet(coldest_cold + target).ok()?;
+            Some(known(true) + duty)
+        });
+        [warm, cold_end]
+    }
 }
 
 /// One stream's figures in the exchanger's report.
@@ -853,9 +893,15 @@ pub fn exchange(
             } else {
                 low
             };
-            if upper <= low {
-                low
+            let end = if upper > low {
+                pinch::end_pinch(&arrangement, dt, (low, upper), context.loose)?
             } else {
+                ControlFlow::Continue(upper)
+            };
+            match end {
+                _ if upper <= low => low,
+                ControlFlow::Break(duty) => duty,
+                ControlFlow::Continue(bound) => {
                 // On a coarse profile when clearly above the target (it decides only
                 // whether some duty meets it, and the first guess).
                 let coarse = arrangement
@@ -881,9 +927,10 @@ pub fn exchange(
                         "multistream exchanger duty for a minimum approach",
                         dt,
                         start,
-                        (low, upper),
+                        (low, bound),
                         context.loose,
                     )?
+                }
                 }
             }
         }

@@ -131,6 +131,64 @@ pub trait PinchSearch {
     /// inside, the difference is smallest there, so the pinch moving with the duty
     /// changes it only to second order.
     fn pinch_slope(&self, pinch: &Pinch<Self::Profile>) -> Result<f64>;
+
+    /// The duties at which the difference at the warm end and at the cold end
+    /// would equal `target`, each from one flash of the outlet that sets it (None
+    /// where an end cannot be computed so). Only a guess: the search confirms one
+    /// on a profile before it takes it.
+    fn end_duties(&self, target: f64) -> [Option<f64>; 2];
+}
+
+/// How far, K, a profile's smallest difference may lie from the target at an end
+/// duty for the end to be taken as the pinch (the flashes' own agreement is about
+/// 1e-12 K; the minimum approach is held to 1 mK).
+const END_TOLERANCE: f64 = 1e-9;
+
+/// Where the pinch lies at an end, the duty is the smaller of the two end duties:
+/// the smallest difference falls as the duty rises, so it reaches the target no
+/// later than at either end duty, and at the smaller one exactly when the profile
+/// there has no difference below the target. That is checked on a profile (the
+/// coarse one while `loose`, else the full one): confirmed, the duty is
+/// returned; otherwise the pinch lies inside, and the smaller end duty, where the
+/// difference is below the target, bounds the search from above.
+///
+/// Tried before anything else: where it confirms an end, not even the difference
+/// at zero duty is needed (it is larger, the difference falling with the duty).
+/// Returns `Break(duty)` where an end is the pinch, else `Continue(bound)`, the
+/// upper end of the bracket for the search.
+pub fn end_pinch<S: PinchSearch>(
+    search: &S,
+    target: f64,
+    (low, upper): (f64, f64),
+    loose: bool,
+) -> Result<std::ops::ControlFlow<f64, f64>> {
+    use std::ops::ControlFlow::{Break, Continue};
+    let Some(end) = search
+        .end_duties(target)
+        .into_iter()
+        .flatten()
+        .filter(|q| q.is_finite() && *q > low && *q < upper)
+        .min_by(f64::total_cmp)
+    else {
+        return Ok(Continue(upper));
+    };
+    let segments = search.segments();
+    let coarse = segments / COARSE_FRACTION;
+    // While loose, the coarse profile decides; otherwise the full one does.
+    let checked_on = if loose && coarse >= COARSE_MINIMUM {
+        coarse
+    } else {
+        segments
+    };
+    let pinch = search.pinch_on(end, checked_on)?;
+    Ok(if pinch.difference < target - END_TOLERANCE {
+        Continue(end)
+    } else if pinch.difference > target + END_TOLERANCE {
+        // The end was not computed as the profile draws it: no shortcut.
+        Continue(upper)
+    } else {
+        Break(end)
+    })
 }
 
 /// The largest number of steps of each stage of the duty search.
@@ -154,6 +212,8 @@ const COARSE_MINIMUM: usize = 8;
 ///
 /// With `loose` (the tear streams still far from converged), the coarse stage's
 /// answer is returned as it is.
+///
+/// Callers try [`end_pinch`] first, which needs no search.
 pub fn duty_for_difference<S: PinchSearch>(
     search: &S,
     solver: &'static str,

@@ -423,13 +423,38 @@ impl Fluid {
         if pressure > self.pressure_max || pressure <= 0.0 {
             return None;
         }
+        // Newton in (T, ρ) together, one property evaluation a step; a root on the
+        // other side of the critical density is refused (a metastable branch), and
+        // the temperature-only Newton below is the fallback.
+        let joint = self
+            .joint_newton(
+                pressure,
+                target,
+                held,
+                &start,
+                (self.temperature_min, self.temperature_max),
+            )
+            .filter(|props| match region {
+                Region::Liquid => props.density > self.critical.density,
+                Region::Vapour => props.density < self.critical.density,
+                Region::AboveCritical => {
+                    props.temperature > self.critical.temperature
+                        || pressure > self.critical.pressure
+                }
+            });
         let mut current = start;
-        if (current.pressure - pressure).abs() > 1e-12 * pressure {
+        if let Some(props) = joint {
+            current = props;
+        } else if (current.pressure - pressure).abs() > 1e-12 * pressure {
             current = self
                 .properties_near(region, current.temperature, pressure, &current)
                 .ok()?;
         }
-        for _ in 0..QUICK_NEWTON_STEPS {
+        for _ in 0..if joint.is_some() {
+            0
+        } else {
+            QUICK_NEWTON_STEPS
+        } {
             let g = held.of(&current) - target;
             let t = current.temperature;
             if g.abs() <= 0.1 * held.rounding(self, t) {
@@ -658,6 +683,22 @@ impl Fluid {
         start: &Properties,
         bounds: (f64, f64),
     ) -> Option<Result<State>> {
+        let props = self.joint_newton(pressure, target, held, start, bounds)?;
+        let liquid_side = region == Region::Liquid;
+        Some(self.single_state(props, liquid_side))
+    }
+
+    /// The properties where p(T, ρ) = p and h (or s)(T, ρ) = target, by Newton in
+    /// (T, ρ) together from `start`; `None` unless it converges with T inside
+    /// `bounds` (open), mechanically stable (∂p/∂ρ > 0) and in range.
+    fn joint_newton(
+        &'static self,
+        pressure: f64,
+        target: f64,
+        held: Held,
+        start: &Properties,
+        bounds: (f64, f64),
+    ) -> Option<Properties> {
         let (mut t, mut rho) = (start.temperature, start.density);
         let mut props = *start;
         for _ in 0..NEAR_NEWTON_STEPS {
@@ -699,8 +740,7 @@ impl Fluid {
                 if !(props.dp_drho > 0.0) || self.check_range(t, pressure).is_err() {
                     return None;
                 }
-                let liquid_side = region == Region::Liquid;
-                return Some(self.single_state(props, liquid_side));
+                return Some(props);
             }
         }
         None
