@@ -374,6 +374,22 @@ impl Curve<'_, '_> {
     }
 
     /// The heat exchanged from the inlet to `temperature`, W, with the pressure
+    /// taken where `exchanged` W have been exchanged (one flash; repeated, it is
+    /// the substitution of [`Curve::exchanged_at`]).
+    fn exchanged_with_pressure_from(&self, temperature: f64, exchanged: f64) -> Result<f64> {
+        let m = self.member.inlet.flow;
+        let q = self.duty;
+        let per_exchanged = if self.member.hot() {
+            (q - self.member.spec.heat_leak) / q / m
+        } else {
+            (q + self.member.spec.heat_leak) / q / m
+        };
+        let p = self.member.pressure_after(exchanged.clamp(0.0, q), q);
+        let state = self.member.path.state_at(temperature, p)?;
+        Ok(((state.enthalpy - self.member.inlet.state.enthalpy) / per_exchanged).abs())
+    }
+
+    /// The heat exchanged from the inlet to `temperature`, W, with the pressure
     /// along the stream found by substitution (it moves the enthalpy only slightly).
     fn exchanged_at(&self, temperature: f64) -> Result<f64> {
         let m = self.member.inlet.flow;
@@ -483,59 +499,74 @@ impl<'m, 'a> Composite<'m, 'a> {
         if active.is_empty() {
             return Ok(warm);
         }
-        // Several streams: the temperature where their shares add up, by the
-        // Illinois method on the interval (exact at the ends).
-        let residual = |t: f64| -> Result<f64> {
-            let mut sum = fixed;
-            for &i in &active {
-                sum += self.curves[i].share_at(t)?;
-            }
-            Ok(sum - heat)
-        };
+        // Several streams: the temperature where their shares add up, by secant
+        // steps kept inside the interval (exact at its ends). Each stream's pressure
+        // there is taken from its last step's exchanged heat, so a step costs one
+        // flash a stream; the pressures settle with the temperature (they move the
+        // enthalpy only slightly).
         let (mut a, mut b) = (cold, warm);
-        let (mut fa, mut fb) = (points[(k + 1).min(points.len() - 1)].1 - heat, points[k].1 - heat);
+        let (fa, fb) = (points[(k + 1).min(points.len() - 1)].1 - heat, points[k].1 - heat);
         if fa <= 0.0 {
             return Ok(cold);
         }
         if fb >= 0.0 {
             return Ok(warm);
         }
-        let mut side = 0;
+        // Each active stream's exchanged heat, first on a straight line in temperature.
+        let mut exchanged: Vec<f64> = active
+            .iter()
+            .map(|&i| {
+                let c = &self.curves[i];
+                let span = c.outlet_temperature - c.inlet_temperature;
+                let along = if span != 0.0 {
+                    (((cold + warm) * 0.5 - c.inlet_temperature) / span).clamp(0.0, 1.0)
+                } else {
+                    1.0
+                };
+                along * c.duty
+            })
+            .collect();
+        let mut residual = |t: f64| -> Result<(f64, bool)> {
+            let mut sum = fixed;
+            let mut settled = true;
+            for (&i, e) in active.iter().zip(exchanged.iter_mut()) {
+                let c = &self.curves[i];
+                let next = c.exchanged_with_pressure_from(t, *e)?;
+                settled &= (next - *e).abs() <= 1e-12 * c.duty;
+                *e = next;
+                let e = next.min(c.duty);
+                sum += if c.member.hot() { e } else { c.duty - e };
+            }
+            Ok((sum - heat, settled))
+        };
+        let (mut x0, mut f0, mut x1, mut f1) = (warm, fb, cold, fa);
+        let mut last = f64::NAN;
         for _ in 0..COMPOSITE_STEPS {
-            if b - a <= 1e-10 * b {
-                break;
-            }
-            let t = (a * fb - b * fa) / (fb - fa);
-            let t = if t > a && t < b { t } else { 0.5 * (a + b) };
-            let ft = residual(t)?;
-            if ft == 0.0 {
-                return Ok(t);
-            }
+            let secant = x1 - f1 * (x1 - x0) / (f1 - f0);
+            let t = if secant > a && secant < b && secant.is_finite() {
+                secant
+            } else {
+                0.5 * (a + b)
+            };
+            let (ft, settled) = residual(t)?;
+            last = ft;
             if ft > 0.0 {
                 a = t;
-                fa = ft;
-                if side == 1 {
-                    fb *= 0.5;
-                }
-                side = 1;
-            } else {
+            } else if ft < 0.0 {
                 b = t;
-                fb = ft;
-                if side == -1 {
-                    fa *= 0.5;
-                }
-                side = -1;
+            }
+            let step = (t - x1).abs();
+            (x0, f0, x1, f1) = (x1, f1, t, ft);
+            if settled && (ft == 0.0 || step <= 1e-12 * t || b - a <= 1e-12 * b) {
+                return Ok(t);
             }
         }
-        if b - a > 1e-8 * b {
-            return Err(Error::NoConvergence {
-                solver: "multistream composite temperature",
-                iterations: COMPOSITE_STEPS,
-                residual: fa.abs().min(fb.abs()),
-                context: format!(": bracket [{a}, {b}] K at {heat} W"),
-            });
-        }
-        Ok(0.5 * (a + b))
+        Err(Error::NoConvergence {
+            solver: "multistream composite temperature",
+            iterations: COMPOSITE_STEPS,
+            residual: last.abs(),
+            context: format!(": bracket [{a}, {b}] K at {heat} W"),
+        })
     }
 }
 
