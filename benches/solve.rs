@@ -16,6 +16,7 @@ fn solving(c: &mut Criterion) {
         "flowsheets/nitrogen-claude.yaml",
         "flowsheets/cascade-nitrogen-hydrogen.yaml",
         "flowsheets/helium-collins.yaml",
+        "flowsheets/hydrogen-claude.yaml",
         // The hydrogen demos with frozen-normal hydrogen, and a once-through cold box
         // whose exchanger carries an ortho–para catalyst, beside its frozen twin.
         "tests/flowsheets/hydrogen-ln2-precooled-frozen-normal.yaml",

@@ -142,7 +142,7 @@ fn every_demo_has_a_whole_report() {
         .filter(|p| p.extension().is_some_and(|e| e == "yaml"))
         .collect();
     demos.sort();
-    assert_eq!(demos.len(), 6);
+    assert_eq!(demos.len(), 7);
     for demo in &demos {
         let stem = demo.file_stem().unwrap().to_string_lossy().into_owned();
         let page = dir.join(format!("{stem}.html"));
