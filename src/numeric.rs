@@ -89,19 +89,25 @@ pub fn bracketed_newton(
     for _ in 0..BRACKETED_NEWTON_CAP {
         let (value, slope) = f(t);
         last = value;
+        // An exact root is the answer (it would otherwise become a bracket's end,
+        // and a step of zero onto it would be taken for one leaving the bracket).
+        if value == 0.0 {
+            return Ok(t);
+        }
         if value < 0.0 {
             a = t;
         } else {
             b = t;
         }
-        let mut next = t - value / slope;
-        if !(next > a && next < b) {
-            next = 0.5 * (a + b);
+        let newton = t - value / slope;
+        if (newton - t).abs() <= relative * t {
+            return Ok(newton);
         }
-        if (next - t).abs() <= relative * t {
-            return Ok(next);
-        }
-        t = next;
+        t = if newton > a && newton < b {
+            newton
+        } else {
+            0.5 * (a + b)
+        };
     }
     Err(Error::NoConvergence {
         solver,
@@ -151,6 +157,19 @@ mod tests {
         assert!(bracketed_root("test", |x| x * x + 1.0, -1.0, 1.0, 1e-12).is_err());
     }
 
+    /// An iterate that is an exact root ends the search there, at once (it used to
+    /// become the bracket's end and send the search bisecting away from it).
+    #[test]
+    fn bracketed_newton_stops_on_an_exact_root() {
+        let calls = std::cell::Cell::new(0);
+        let f = |x: f64| {
+            calls.set(calls.get() + 1);
+            (x - 0.5, 1.0)
+        };
+        let root = bracketed_newton("test", f, 0.5, 0.0, 1.0, 1e-14).unwrap();
+        assert_eq!((root, calls.get()), (0.5, 1));
+    }
+
     #[test]
     fn bracketed_newton_converges_and_reports_its_cap() {
         let root =
@@ -158,7 +177,8 @@ mod tests {
         assert!((root - 2f64.sqrt()).abs() < 1e-12);
         // A stopping rule that can never be met (a negative relative step) ends in
         // NoConvergence at the cap, not in the last guess.
-        let error = bracketed_newton("test", |x| (x - 0.3, 1.0), 0.9, 0.0, 1.0, -1.0).unwrap_err();
+        let error =
+            bracketed_newton("test", |x| (x * x - 2.0, 2.0 * x), 1.0, 0.0, 2.0, -1.0).unwrap_err();
         let capped = matches!(
             error,
             Error::NoConvergence { iterations, .. } if iterations == BRACKETED_NEWTON_CAP

@@ -225,6 +225,7 @@ impl Blend {
         temperature: f64,
         pressure: f64,
         liquid: bool,
+        near: Option<f64>,
     ) -> Result<f64> {
         let factors = fluid.tau_factors(temperature);
         // Above the critical temperature the isotherm has one root.
@@ -234,7 +235,7 @@ impl Blend {
                 temperature,
                 pressure,
                 Branch::Supercritical,
-                None,
+                near,
                 None,
             );
         }
@@ -245,19 +246,17 @@ impl Blend {
         if liquid || pressure >= fluid.critical.pressure {
             let critical = fluid.critical.density;
             let low = (0.8 * liquid_density).max(critical);
-            fluid.solve_density(
-                &factors,
-                temperature,
-                pressure,
-                liquid_density,
-                low,
-                f64::INFINITY,
-            )
+            let seed = near.filter(|rho| *rho > low).unwrap_or(liquid_density);
+            fluid.solve_density(&factors, temperature, pressure, seed, low, f64::INFINITY)
         } else {
-            let seed = fluid
-                .ideal_gas_density(temperature, pressure)
-                .min(vapour_density);
             let high = (1.6 * vapour_density).min(fluid.critical.density);
+            let seed = near
+                .filter(|rho| *rho > 0.0 && *rho < high)
+                .unwrap_or_else(|| {
+                    fluid
+                        .ideal_gas_density(temperature, pressure)
+                        .min(vapour_density)
+                });
             fluid.solve_density(&factors, temperature, pressure, seed, 0.0, high)
         }
     }
@@ -269,8 +268,23 @@ impl Blend {
         pressure: f64,
         liquid: bool,
     ) -> Result<(Properties, Properties)> {
-        let para_density = Self::species_density(self.para, temperature, pressure, liquid)?;
-        let ortho_density = Self::species_density(self.ortho, temperature, pressure, liquid)?;
+        self.species_near(temperature, pressure, liquid, None)
+    }
+
+    /// As [`Blend::species`], each density solve started from `near`'s densities
+    /// (para, ortho) when given: the species' states at a nearby temperature on
+    /// the same side.
+    fn species_near(
+        &self,
+        temperature: f64,
+        pressure: f64,
+        liquid: bool,
+        near: Option<(f64, f64)>,
+    ) -> Result<(Properties, Properties)> {
+        let para_density =
+            Self::species_density(self.para, temperature, pressure, liquid, near.map(|n| n.0))?;
+        let ortho_density =
+            Self::species_density(self.ortho, temperature, pressure, liquid, near.map(|n| n.1))?;
         Ok((
             self.para.properties(temperature, para_density),
             self.ortho.properties(temperature, ortho_density),
@@ -506,13 +520,20 @@ impl Blend {
             }
         }
         low *= 1.0 + 1e-6;
+        // The last evaluation's side and species' densities, the next one's seeds.
+        let last: std::cell::Cell<Option<(bool, (f64, f64))>> = std::cell::Cell::new(None);
         // The property less the target, and its slope along the path, at T on a side.
         let evaluate = |t: f64, liquid: bool| -> (f64, f64) {
             let x = para_at(t);
-            let Ok((para, ortho)) = self.species(t, pressure, liquid) else {
+            let near = match last.get() {
+                Some((side, densities)) if side == liquid => Some(densities),
+                _ => None,
+            };
+            let Ok((para, ortho)) = self.species_near(t, pressure, liquid, near) else {
                 return (f64::NAN, f64::NAN);
             };
             let mixed = self.mix(x, &para, &ortho);
+            last.set(Some((liquid, (para.density, ortho.density))));
             // The path's share of the slope: d(property)/dx · dx/dT, both by
             // differences (the mix is arithmetic on the species' properties).
             let step = 1e-6;
@@ -526,6 +547,22 @@ impl Blend {
                 property.pick(&mixed) - target,
                 property.slope(&mixed) + along_x * dx_dt,
             )
+        };
+        // The state at the Newton's answer (one step past the last evaluation, which
+        // is more accurate than that evaluation); a residual beyond rounding is
+        // refused.
+        let finish = |t: f64, liquid: bool| -> Option<State> {
+            let x = para_at(t);
+            let near = match last.get() {
+                Some((side, densities)) if side == liquid => Some(densities),
+                _ => None,
+            };
+            let (para, ortho) = self.species_near(t, pressure, liquid, near).ok()?;
+            let properties = self.mix(x, &para, &ortho);
+            self.check(t, pressure, x).ok()?;
+            let residual = property.pick(&properties) - target;
+            (residual.abs() <= 1e-9 * property.slope(&properties).abs() * t)
+                .then(|| self.state(properties, liquid, x))
         };
         let mut liquid_below = false;
         // A point of the bracket's end with its value and slope, to start from.
@@ -546,6 +583,34 @@ impl Blend {
                 para_boiling.min(ortho_boiling),
                 para_boiling.max(ortho_boiling),
             );
+            // From a seed clearly on one side, Newton on that side first: an answer
+            // inside it is single phase, and the bracket's ends are not needed.
+            if let Some(seed) = seed {
+                let side = if seed > last && seed < high {
+                    Some((false, last, high))
+                } else if seed < first && seed > low {
+                    Some((true, low, first))
+                } else {
+                    None
+                };
+                if let Some((liquid, a, b)) = side {
+                    let found = crate::numeric::bracketed_newton(
+                        "ortho–para solution temperature from pressure",
+                        |t| evaluate(t, liquid),
+                        seed,
+                        a,
+                        b,
+                        1e-13,
+                    );
+                    if let Ok(t) = found {
+                        if t > a && t < b {
+                            if let Some(state) = finish(t, liquid) {
+                                return Ok(state);
+                            }
+                        }
+                    }
+                }
+            }
             let at_last = evaluate(last, false);
             if at_last.0 < 0.0 {
                 low = last;
@@ -630,16 +695,9 @@ impl Blend {
             high,
             1e-13,
         )?;
-        let x = para_at(t);
-        self.check(t, pressure, x)?;
-        let liquid = side(t);
-        let properties = self.tp_properties(t, pressure, x, liquid)?;
+        self.check(t, pressure, para_at(t))?;
         // A target outside [low, high] ends at an edge with a residual: refused.
-        let residual = property.pick(&properties) - target;
-        if !(residual.abs() <= 1e-9 * property.slope(&properties).abs() * t) {
-            return Err(out_of_range());
-        }
-        Ok(self.state(properties, liquid, x))
+        finish(t, side(t)).ok_or_else(out_of_range)
     }
 
     /// The para fraction of the two-phase solution at p along a para-fraction path:
