@@ -147,7 +147,7 @@ const END_TOLERANCE: f64 = 1e-9;
 /// Where the pinch lies at an end, the duty is the smaller of the two end duties:
 /// the smallest difference falls as the duty rises, so it reaches the target no
 /// later than at either end duty, and at the smaller one exactly when the profile
-/// there has no difference below the target. That is checked on a profile (the
+/// there has no difference below the target. That is checked on a profile (a
 /// coarse one while `loose`, else the full one): confirmed, the duty is
 /// returned; otherwise the pinch lies inside, and the smaller end duty, where the
 /// difference is below the target, bounds the search from above.
@@ -174,9 +174,11 @@ pub fn end_pinch<S: PinchSearch>(
     };
     let segments = search.segments();
     let coarse = segments / COARSE_FRACTION;
-    // While loose, the coarse profile decides; otherwise the full one does.
+    // While loose, a profile of a tenth of the segments (at least four) decides:
+    // such a pass is inexact anyway, and an internal pinch it misses is found once
+    // the tear streams settle. Otherwise the full profile decides.
     let checked_on = if loose && coarse >= COARSE_MINIMUM {
-        coarse
+        (segments / 10).max(4)
     } else {
         segments
     };
