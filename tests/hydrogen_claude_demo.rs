@@ -131,3 +131,30 @@ fn recovering_the_boil_off_saves_more_than_half_the_liquid_nitrogen() {
     let per_kg = |s: &Solution| s.summary.cryogen_boil_off / s.summary.liquid_flow;
     assert!(per_kg(&vented) > 2.0 * per_kg(&recovered));
 }
+
+/// `compare` puts the saving side by side: the cryogen bought per kg of liquid of
+/// each flowsheet, as the solutions give it.
+#[test]
+fn a_comparison_shows_the_liquid_nitrogen_per_kg() {
+    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+    let files = [
+        "flowsheets/hydrogen-claude.yaml",
+        "tests/flowsheets/hydrogen-claude-boil-off-vented.yaml",
+    ];
+    let (code, out, err) =
+        common::run_in(root, &["compare", files[0], files[1], "--format", "json"]);
+    assert_eq!(code, 0, "{err}");
+    let rows: serde_json::Value = serde_json::from_str(&out).unwrap();
+    for (row, file) in rows.as_array().unwrap().iter().zip(files) {
+        let (_, solution) = solved(file);
+        let want = solution.summary.cryogen_boil_off / solution.summary.liquid_flow;
+        let shown = row["cryogen_per_kg_liquid"].as_f64().unwrap();
+        assert!(
+            common::relative(shown, want) < 1e-9,
+            "{file}: {shown} vs {want}"
+        );
+    }
+    let (code, text, _) = common::run_in(root, &["compare", files[0], files[1]]);
+    assert_eq!(code, 0);
+    assert!(text.contains("cryogen [kg/kg]"), "{text}");
+}

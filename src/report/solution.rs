@@ -347,8 +347,7 @@ impl SolutionRecord {
             precooling_work_w: s.precooling_work,
             precooling_duty_w: s.precooling_duty,
             cryogen_boil_off_kg_s: s.cryogen_boil_off,
-            cryogen_per_kg_liquid: (s.liquid_flow > 0.0 && s.cryogen_boil_off > 0.0)
-                .then(|| s.cryogen_boil_off / s.liquid_flow),
+            cryogen_per_kg_liquid: s.cryogen_per_kg_liquid(),
             specific_energy_shaft: s.specific_energy_shaft,
             specific_energy: s.specific_energy,
             minimum_work_w: s.minimum_work,
@@ -598,11 +597,8 @@ pub fn summary_rows(solution: &Solution, units: super::Units) -> Vec<(&'static s
             ),
         ));
     }
-    if s.liquid_flow > 0.0 && s.cryogen_boil_off > 0.0 {
-        rows.push((
-            "cryogen bought",
-            format!("{:.3} kg per kg liquid", s.cryogen_boil_off / s.liquid_flow),
-        ));
+    if let Some(per_kg) = s.cryogen_per_kg_liquid() {
+        rows.push(("cryogen bought", format!("{per_kg:.3} kg per kg liquid")));
     }
     rows.push((
         "specific energy",

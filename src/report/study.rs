@@ -196,7 +196,7 @@ fn comparison_cells(case: &Compared) -> Vec<String> {
                 "failed: {}",
                 e.to_string().chars().take(70).collect::<String>()
             ));
-            cells.extend(std::iter::repeat_n(String::new(), 5));
+            cells.extend(std::iter::repeat_n(String::new(), 6));
             return cells;
         }
     };
@@ -206,6 +206,8 @@ fn comparison_cells(case: &Compared) -> Vec<String> {
         format!("{:.3}", s.liquid_flow * 3600.0),
         format!("{:.2}", s.shaft_power / 1e3),
         format!("{:.2}", s.precooling_work / 1e3),
+        s.cryogen_per_kg_liquid()
+            .map_or("—".into(), |c| format!("{c:.3}")),
         s.specific_energy.map_or("—".into(), |e| format!("{e:.3}")),
         s.figure_of_merit.map_or("—".into(), |f| format!("{f:.4}")),
     ]
@@ -220,6 +222,7 @@ pub fn comparison_text(cases: &[Compared]) -> String {
         ("liquid [kg/h]", Align::Right),
         ("power [kW]", Align::Right),
         ("precool [kW]", Align::Right),
+        ("cryogen [kg/kg]", Align::Right),
         ("kWh/kg", Align::Right),
         ("FOM", Align::Right),
     ]);
@@ -241,6 +244,7 @@ pub fn comparison_csv(cases: &[Compared]) -> Result<String> {
             "liquid_flow [kg/s]",
             "shaft_power [W]",
             "precooling_work [W]",
+            "cryogen_per_kg_liquid [kg/kg]",
             "specific_energy [kWh/kg]",
             "figure_of_merit [-]",
             "error",
@@ -255,13 +259,14 @@ pub fn comparison_csv(cases: &[Compared]) -> Result<String> {
                 s.liquid_flow.to_string(),
                 s.shaft_power.to_string(),
                 s.precooling_work.to_string(),
+                cell(s.cryogen_per_kg_liquid()),
                 cell(s.specific_energy),
                 cell(s.figure_of_merit),
                 String::new(),
             ],
             Err(e) => {
                 let mut row = vec![case.name.clone()];
-                row.extend(std::iter::repeat_n(String::new(), 6));
+                row.extend(std::iter::repeat_n(String::new(), 7));
                 row.push(e.to_string());
                 row
             }
@@ -285,6 +290,7 @@ pub fn comparison_json(cases: &[Compared]) -> String {
                 "liquid_flow_kg_s": s.liquid_flow,
                 "shaft_power_W": s.shaft_power,
                 "precooling_work_W": s.precooling_work,
+                "cryogen_per_kg_liquid": s.cryogen_per_kg_liquid(),
                 "specific_energy_kWh_per_kg": s.specific_energy,
                 "figure_of_merit": s.figure_of_merit,
             }),

@@ -96,6 +96,15 @@ pub struct Summary {
     pub exergy_closure: f64,
 }
 
+impl Summary {
+    /// Cryogen bought (boiled in baths) per kg of liquid product, where there is
+    /// both.
+    pub fn cryogen_per_kg_liquid(&self) -> Option<f64> {
+        (self.liquid_flow > 0.0 && self.cryogen_boil_off > 0.0)
+            .then(|| self.cryogen_boil_off / self.liquid_flow)
+    }
+}
+
 /// A solved flowsheet.
 #[derive(Debug, Clone)]
 pub struct Solution {
