@@ -377,7 +377,7 @@ pub fn comparison_page(
     );
     type Figure = fn(&crate::solve::Summary) -> Option<f64>;
     // (label, the figure, decimals, whether more is better)
-    let rows: [(&str, Figure, usize, bool); 7] = [
+    let rows: [(&str, Figure, usize, bool); 8] = [
         ("liquid yield", |s| s.liquid_yield, 5, true),
         (
             "liquid production [kg/h]",
@@ -389,6 +389,12 @@ pub fn comparison_page(
         (
             "precooling work [kW]",
             |s| Some(s.precooling_work / 1e3),
+            3,
+            false,
+        ),
+        (
+            "cryogen bought [kg per kg liquid]",
+            |s| s.cryogen_per_kg_liquid(),
             3,
             false,
         ),
