@@ -9,7 +9,6 @@ mod common;
 
 use cryochain::equipment::Details;
 use cryochain::flowsheet::load;
-use cryochain::rules::{check, Severity};
 use cryochain::solve::{solve, Options};
 use std::path::Path;
 
@@ -53,11 +52,6 @@ fn the_collins_demo_matches_a_cold_box_balance_and_breaks_no_rule() {
         );
     }
     // A demo follows good practice: no design error or warning.
-    let findings = check(&plant, &solution);
-    let serious: Vec<&str> = findings
-        .iter()
-        .filter(|f| matches!(f.severity, Severity::Error | Severity::Warning))
-        .map(|f| f.id.as_str())
-        .collect();
+    let serious = common::serious_findings(&plant, &solution);
     assert!(serious.is_empty(), "{serious:?}");
 }

@@ -18,7 +18,6 @@ mod common;
 
 use cryochain::equipment::Details;
 use cryochain::flowsheet::load;
-use cryochain::rules::{check, Severity};
 use cryochain::solve::{solve, Options, Solution};
 use std::path::Path;
 
@@ -53,12 +52,7 @@ fn warm_end_pinched(plant: &cryochain::flowsheet::Plant, solution: &Solution) {
 
 /// A demo follows good practice: no design error or warning.
 fn no_serious_findings(plant: &cryochain::flowsheet::Plant, solution: &Solution) {
-    let findings = check(plant, solution);
-    let serious: Vec<&str> = findings
-        .iter()
-        .filter(|f| matches!(f.severity, Severity::Error | Severity::Warning))
-        .map(|f| f.id.as_str())
-        .collect();
+    let serious = common::serious_findings(plant, solution);
     assert!(serious.is_empty(), "{serious:?}");
 }
 

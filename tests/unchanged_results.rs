@@ -123,6 +123,26 @@ fn matches_reference(
     );
 }
 
+/// Each flowsheet (its reference named after the file) against `folder`, both
+/// sides solved with the tear tolerance at 1e-13.
+fn tightly_matches_references(folder: &str, files: &[&str]) {
+    let root = std::path::Path::new(env!("CARGO_MANIFEST_DIR"));
+    for file in files {
+        let reference = std::path::Path::new(file)
+            .file_stem()
+            .unwrap()
+            .to_string_lossy()
+            .into_owned();
+        matches_reference(
+            root,
+            folder,
+            &reference,
+            file,
+            &["--set", "settings.tolerance=1e-13"],
+        );
+    }
+}
+
 /// Exchangers sized by their minimum approach (and by effectiveness or UA, through
 /// the largest duty) are solved by Newton steps on the duty instead of a secant and
 /// a bracketed search; the reference JSON in tests/reference/before_newton_sizing/
@@ -132,30 +152,19 @@ fn matches_reference(
 /// mixer's exergy destroyed moves by 3e-9 of itself between the two tolerances.
 #[test]
 fn every_demo_gives_the_results_it_gave_before_newton_sizing() {
-    let root = std::path::Path::new(env!("CARGO_MANIFEST_DIR"));
-    for file in [
-        "flowsheets/nitrogen-linde-hampson.yaml",
-        "flowsheets/helium-lh2-precooled.yaml",
-        "flowsheets/nitrogen-claude.yaml",
-        "flowsheets/hydrogen-ln2-precooled.yaml",
-        "flowsheets/cascade-nitrogen-hydrogen.yaml",
-        "tests/flowsheets/nitrogen-claude-warm-mixing.yaml",
-        "tests/flowsheets/hydrogen-ln2-precooled-minimum-approach.yaml",
-        "tests/flowsheets/hydrogen-ln2-precooled-converting-minimum-approach.yaml",
-    ] {
-        let reference = std::path::Path::new(file)
-            .file_stem()
-            .unwrap()
-            .to_string_lossy()
-            .into_owned();
-        matches_reference(
-            root,
-            "before_newton_sizing",
-            &reference,
-            file,
-            &["--set", "settings.tolerance=1e-13"],
-        );
-    }
+    tightly_matches_references(
+        "before_newton_sizing",
+        &[
+            "flowsheets/nitrogen-linde-hampson.yaml",
+            "flowsheets/helium-lh2-precooled.yaml",
+            "flowsheets/nitrogen-claude.yaml",
+            "flowsheets/hydrogen-ln2-precooled.yaml",
+            "flowsheets/cascade-nitrogen-hydrogen.yaml",
+            "tests/flowsheets/nitrogen-claude-warm-mixing.yaml",
+            "tests/flowsheets/hydrogen-ln2-precooled-minimum-approach.yaml",
+            "tests/flowsheets/hydrogen-ln2-precooled-converting-minimum-approach.yaml",
+        ],
+    );
 }
 
 /// A pinch at an exchanger's end is found from that end's outlet flash (confirmed
@@ -166,25 +175,14 @@ fn every_demo_gives_the_results_it_gave_before_newton_sizing() {
 /// predate. Both sides solve with the tear tolerance at 1e-13.
 #[test]
 fn multistream_flowsheets_give_the_results_they_gave_before_end_pinches() {
-    let root = std::path::Path::new(env!("CARGO_MANIFEST_DIR"));
-    for file in [
-        "flowsheets/helium-collins.yaml",
-        "tests/flowsheets/three-stream-exchanger.yaml",
-        "tests/flowsheets/three-stream-exchanger-approach.yaml",
-        "tests/flowsheets/hydrogen-ln2-boil-off-recovered.yaml",
-        "tests/flowsheets/hydrogen-ln2-precooled-multistream-pair.yaml",
-    ] {
-        let reference = std::path::Path::new(file)
-            .file_stem()
-            .unwrap()
-            .to_string_lossy()
-            .into_owned();
-        matches_reference(
-            root,
-            "before_end_pinch",
-            &reference,
-            file,
-            &["--set", "settings.tolerance=1e-13"],
-        );
-    }
+    tightly_matches_references(
+        "before_end_pinch",
+        &[
+            "flowsheets/helium-collins.yaml",
+            "tests/flowsheets/three-stream-exchanger.yaml",
+            "tests/flowsheets/three-stream-exchanger-approach.yaml",
+            "tests/flowsheets/hydrogen-ln2-boil-off-recovered.yaml",
+            "tests/flowsheets/hydrogen-ln2-precooled-multistream-pair.yaml",
+        ],
+    );
 }

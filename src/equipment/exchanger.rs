@@ -310,23 +310,30 @@ impl PinchSearch for Sides<'_> {
     /// end: the hot outlet at the cold inlet's temperature plus `target`.
     fn end_duties(&self, target: f64) -> [Option<f64>; 2] {
         let (hot, cold) = (&self.hot.state, &self.cold.state);
-        let warm = self
-            .cold_path
-            .state_at(hot.temperature - target, self.cold_outlet_pressure())
-            .ok()
-            .map(|out| {
-                self.cold.flow * (out.enthalpy - cold.enthalpy) - self.design.heat_leak
-            });
-        let cold_end = self
-            .hot_path
-            .state_at(cold.temperature + target, self.hot_outlet_pressure())
-            .ok()
-            .map(|out| self.hot.flow * (hot.enthalpy - out.enthalpy));
-        [warm, cold_end]
+        [
+            self.duty_for_cold_outlet(hot.temperature - target).ok(),
+            self.duty_for_hot_outlet(cold.temperature + target).ok(),
+        ]
     }
 }
 
 impl Sides<'_> {
+    /// The duty at which the cold stream leaves at `temperature`, W.
+    fn duty_for_cold_outlet(&self, temperature: f64) -> Result<f64> {
+        let out = self
+            .cold_path
+            .state_at(temperature, self.cold_outlet_pressure())?;
+        Ok(self.cold.flow * (out.enthalpy - self.cold.state.enthalpy) - self.design.heat_leak)
+    }
+
+    /// The duty at which the hot stream leaves at `temperature`, W.
+    fn duty_for_hot_outlet(&self, temperature: f64) -> Result<f64> {
+        let out = self
+            .hot_path
+            .state_at(temperature, self.hot_outlet_pressure())?;
+        Ok(self.hot.flow * (self.hot.state.enthalpy - out.enthalpy))
+    }
+
     /// The smallest difference at zero duty, on a coarse profile when that is
     /// clearly above `target` (it only decides whether any duty meets the target
     /// and gives the search's first guess), else on the full profile.
@@ -433,19 +440,8 @@ impl Sides<'_> {
             * (1.0 + 1e-6);
         let t_cold = cold.temperature.max(coldest_hot);
         let t_hot = hot.temperature.min(cold_fluid.temperature_max);
-        let hot_limit = self.hot.flow
-            * (hot.enthalpy
-                - self
-                    .hot_path
-                    .state_at(t_cold, self.hot_outlet_pressure())?
-                    .enthalpy);
-        let cold_limit = self.cold.flow
-            * (self
-                .cold_path
-                .state_at(t_hot, self.cold_outlet_pressure())?
-                .enthalpy
-                - cold.enthalpy)
-            - self.design.heat_leak;
+        let hot_limit = self.duty_for_hot_outlet(t_cold)?;
+        let cold_limit = self.duty_for_cold_outlet(t_hot)?;
         Ok(hot_limit.min(cold_limit).max(0.0))
     }
 
@@ -528,20 +524,12 @@ pub fn exchange(
             ))
         }
         _ if upper <= 0.0 => 0.0,
-        ExchangerSpec::WarmEndApproach(dt) => {
-            let out = sides.cold_path.state_at(
-                (hot.state.temperature - dt).max(cold.state.temperature),
-                sides.cold_outlet_pressure(),
-            )?;
-            (cold.flow * (out.enthalpy - cold.state.enthalpy) - design.heat_leak).clamp(0.0, upper)
-        }
-        ExchangerSpec::ColdEndApproach(dt) => {
-            let out = sides.hot_path.state_at(
-                (cold.state.temperature + dt).min(hot.state.temperature),
-                sides.hot_outlet_pressure(),
-            )?;
-            (hot.flow * (hot.state.enthalpy - out.enthalpy)).clamp(0.0, upper)
-        }
+        ExchangerSpec::WarmEndApproach(dt) => sides
+            .duty_for_cold_outlet((hot.state.temperature - dt).max(cold.state.temperature))?
+            .clamp(0.0, upper),
+        ExchangerSpec::ColdEndApproach(dt) => sides
+            .duty_for_hot_outlet((cold.state.temperature + dt).min(hot.state.temperature))?
+            .clamp(0.0, upper),
         ExchangerSpec::MinimumApproach(dt) => match pinch::end_pinch(&sides, dt, (0.0, upper), context.loose)? {
             ControlFlow::Break(duty) => duty,
             ControlFlow::Continue(bound) => {

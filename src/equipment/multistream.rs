@@ -384,7 +384,7 @@ impl Curve<'_, '_> {
         } else {
             (q + self.member.spec.heat_leak) / q / m
         };
-        let p = self.member.pressure_after(exchanged.clamp(0.0, q), q);
+        let p = self.member.pressure_after(exchanged, q);
         let state = self.member.path.state_at(temperature, p)?;
         Ok(((state.enthalpy - self.member.inlet.state.enthalpy) / per_exchanged).abs())
     }
@@ -392,19 +392,10 @@ impl Curve<'_, '_> {
     /// The heat exchanged from the inlet to `temperature`, W, with the pressure
     /// along the stream found by substitution (it moves the enthalpy only slightly).
     fn exchanged_at(&self, temperature: f64) -> Result<f64> {
-        let m = self.member.inlet.flow;
-        let h_in = self.member.inlet.state.enthalpy;
         let q = self.duty;
-        let per_exchanged = if self.member.hot() {
-            (q - self.member.spec.heat_leak) / q / m
-        } else {
-            (q + self.member.spec.heat_leak) / q / m
-        };
         let mut e = 0.5 * q;
         for _ in 0..PRESSURE_STEPS {
-            let p = self.member.pressure_after(e, q);
-            let state = self.member.path.state_at(temperature, p)?;
-            let next = ((state.enthalpy - h_in) / per_exchanged).abs();
+            let next = self.exchanged_with_pressure_from(temperature, e)?;
             let settled = (next - e).abs() <= 1e-12 * q;
             e = next;
             if settled || self.member.spec.pressure_drop == 0.0 {
@@ -599,23 +590,44 @@ impl<'a> Arrangement<'a> {
     fn duties(&self, total: f64) -> Vec<f64> {
         let mut duties: Vec<f64> = self.fixed.iter().map(|d| d.unwrap_or(0.0)).collect();
         for side in [Side::Hot, Side::Cold] {
-            let known: f64 = self
-                .members
-                .iter()
-                .zip(&self.fixed)
-                .filter(|(m, _)| m.spec.side == side)
-                .filter_map(|(_, d)| *d)
-                .sum();
-            if let Some(free) = self
-                .members
-                .iter()
-                .zip(&self.fixed)
-                .position(|(m, d)| m.spec.side == side && d.is_none())
-            {
-                duties[free] = (total - known).max(0.0);
+            if let Some(free) = self.free(side) {
+                duties[free] = (total - self.known(side)).max(0.0);
             }
         }
         duties
+    }
+
+    /// The heat of a side's streams with an outlet temperature, W.
+    fn known(&self, side: Side) -> f64 {
+        self.members
+            .iter()
+            .zip(&self.fixed)
+            .filter(|(m, _)| m.spec.side == side)
+            .filter_map(|(_, d)| *d)
+            .sum()
+    }
+
+    /// The warmest hot inlet and the coldest cold inlet among the streams that flow,
+    /// K.
+    fn inlet_extremes(&self) -> (f64, f64) {
+        let flowing = |hot: bool| {
+            self.members
+                .iter()
+                .filter(move |m| m.hot() == hot && m.inlet.flow > 0.0)
+                .map(|m| m.inlet.state.temperature)
+        };
+        (
+            flowing(true).fold(f64::NEG_INFINITY, f64::max),
+            flowing(false).fold(f64::INFINITY, f64::min),
+        )
+    }
+
+    /// The index of a side's free stream (the one without an outlet temperature).
+    fn free(&self, side: Side) -> Option<usize> {
+        self.members
+            .iter()
+            .zip(&self.fixed)
+            .position(|(m, d)| m.spec.side == side && d.is_none())
     }
 
     /// Both composites for a total duty.
@@ -747,38 +759,19 @@ impl PinchSearch for Arrangement<'_> {
     /// inlet's temperature plus `target` (the free stream need not be the one that
     /// sets the end; the search's check on a profile decides).
     fn end_duties(&self, target: f64) -> [Option<f64>; 2] {
-        let flowing = |hot: bool| {
-            self.members
-                .iter()
-                .filter(move |m| m.hot() == hot && m.inlet.flow > 0.0)
-                .map(|m| m.inlet.state.temperature)
+        // A side's flowing free stream's duty for an outlet at `temperature`, plus
+        // the side's known duties.
+        let total_for = |side: Side, temperature: f64| {
+            let member = &self.members[self.free(side)?];
+            let duty = (member.inlet.flow > 0.0)
+                .then(|| member.duty_for_outlet(temperature).ok())??;
+            Some(self.known(side) + duty)
         };
-        let known = |hot: bool| -> f64 {
-            self.members
-                .iter()
-                .zip(&self.fixed)
-                .filter(|(m, _)| m.hot() == hot)
-                .filter_map(|(_, d)| *d)
-                .sum()
-        };
-        let free = |hot: bool| {
-            self.members
-                .iter()
-                .zip(&self.fixed)
-                .find(|(m, d)| m.hot() == hot && d.is_none() && m.inlet.flow > 0.0)
-                .map(|(m, _)| m)
-        };
-        let warmest_hot = flowing(true).fold(f64::NEG_INFINITY, f64::max);
-        let coldest_cold = flowing(false).fold(f64::INFINITY, f64::min);
-        let warm = free(false).and_then(|m| {
-            let duty = m.duty_for_outlet(warmest_hot - target).ok()?;
-            Some(known(false) + duty)
-        });
-        let cold_end = free(true).and_then(|m| {
-            let duty = m.duty_for_outlet(coldest_cold + target).ok()?;
-            Some(known(true) + duty)
-        });
-        [warm, cold_end]
+        let (warmest_hot, coldest_cold) = self.inlet_extremes();
+        [
+            total_for(Side::Cold, warmest_hot - target),
+            total_for(Side::Hot, coldest_cold + target),
+        ]
     }
 }
 
@@ -797,6 +790,45 @@ pub struct StreamRecord {
     pub duty: f64,
     /// Whether its outlet temperature was specified.
     pub outlet_specified: bool,
+}
+
+/// The total duty that leaves a smallest difference of `dt` where the pinch lies
+/// inside: none above `low` if the difference is already below `dt` there, else
+/// the Newton search on the duty below `bound` (the smaller end duty, or `upper`).
+fn searched_duty(
+    arrangement: &Arrangement<'_>,
+    dt: f64,
+    (low, upper): (f64, f64),
+    bound: f64,
+    context: &Context,
+) -> Result<f64> {
+    let segments = arrangement.segments;
+    // On a coarse profile when clearly above the target (it decides only whether
+    // some duty meets it, and the first guess).
+    let coarse = arrangement.pinch_on(low, (segments / 5).max(8))?.difference;
+    let at_low = if coarse > dt + 0.05 {
+        coarse
+    } else {
+        arrangement.pinch_on(low, segments)?.difference
+    };
+    if at_low <= dt {
+        return Ok(low);
+    }
+    let start = context.duty_hint.unwrap_or_else(|| {
+        let at_upper = arrangement
+            .pinch_on(upper, segments / 5)
+            .map(|p| p.difference)
+            .unwrap_or(0.0);
+        low + (upper - low) * (at_low - dt) / (at_low - at_upper).max(1e-300)
+    });
+    pinch::duty_for_difference(
+        arrangement,
+        "multistream exchanger duty for a minimum approach",
+        dt,
+        start,
+        (low, bound),
+        context.loose,
+    )
 }
 
 /// Solves the multistream exchanger for its inlets (in stream order).
@@ -853,24 +885,8 @@ pub fn exchange(
         outlet_seeds: std::cell::RefCell::new(vec![None; count]),
         position_seeds: std::cell::RefCell::new([vec![None; count], vec![None; count]]),
     };
-    let known = |side: Side| -> f64 {
-        arrangement
-            .members
-            .iter()
-            .zip(&arrangement.fixed)
-            .filter(|(m, _)| m.spec.side == side)
-            .filter_map(|(_, d)| *d)
-            .sum()
-    };
-    let (known_hot, known_cold) = (known(Side::Hot), known(Side::Cold));
-    let free_of = |side: Side| {
-        arrangement
-            .members
-            .iter()
-            .zip(&arrangement.fixed)
-            .find(|(m, d)| m.spec.side == side && d.is_none())
-            .map(|(m, _)| m)
-    };
+    let (known_hot, known_cold) = (arrangement.known(Side::Hot), arrangement.known(Side::Cold));
+    let free_of = |side: Side| arrangement.free(side).map(|i| &arrangement.members[i]);
     let total = match design.minimum_approach {
         None => {
             // One free stream takes what the energy balance leaves.
@@ -905,18 +921,7 @@ pub fn exchange(
                     "a multistream exchanger sized by its approach needs one free stream a side".into(),
                 ));
             };
-            let coldest_cold = arrangement
-                .members
-                .iter()
-                .filter(|m| !m.hot() && m.inlet.flow > 0.0)
-                .map(|m| m.inlet.state.temperature)
-                .fold(f64::INFINITY, f64::min);
-            let warmest_hot = arrangement
-                .members
-                .iter()
-                .filter(|m| m.hot() && m.inlet.flow > 0.0)
-                .map(|m| m.inlet.state.temperature)
-                .fold(f64::NEG_INFINITY, f64::max);
+            let (warmest_hot, coldest_cold) = arrangement.inlet_extremes();
             let low = known_hot.max(known_cold);
             let upper = if hot.inlet.flow > 0.0 && cold.inlet.flow > 0.0 {
                 (known_hot + hot.duty_limit(coldest_cold)?)
@@ -924,44 +929,14 @@ pub fn exchange(
             } else {
                 low
             };
-            let end = if upper > low {
-                pinch::end_pinch(&arrangement, dt, (low, upper), context.loose)?
+            if upper <= low {
+                low
             } else {
-                ControlFlow::Continue(upper)
-            };
-            match end {
-                _ if upper <= low => low,
-                ControlFlow::Break(duty) => duty,
-                ControlFlow::Continue(bound) => {
-                // On a coarse profile when clearly above the target (it decides only
-                // whether some duty meets it, and the first guess).
-                let coarse = arrangement
-                    .pinch_on(low, (design.segments / 5).max(8))?
-                    .difference;
-                let at_low = if coarse > dt + 0.05 {
-                    coarse
-                } else {
-                    arrangement.pinch_on(low, design.segments)?.difference
-                };
-                if at_low <= dt {
-                    low
-                } else {
-                    let start = context.duty_hint.unwrap_or_else(|| {
-                        let at_upper = arrangement
-                            .pinch_on(upper, design.segments / 5)
-                            .map(|p| p.difference)
-                            .unwrap_or(0.0);
-                        low + (upper - low) * (at_low - dt) / (at_low - at_upper).max(1e-300)
-                    });
-                    pinch::duty_for_difference(
-                        &arrangement,
-                        "multistream exchanger duty for a minimum approach",
-                        dt,
-                        start,
-                        (low, bound),
-                        context.loose,
-                    )?
-                }
+                match pinch::end_pinch(&arrangement, dt, (low, upper), context.loose)? {
+                    ControlFlow::Break(duty) => duty,
+                    ControlFlow::Continue(bound) => {
+                        searched_duty(&arrangement, dt, (low, upper), bound, context)?
+                    }
                 }
             }
         }

@@ -522,14 +522,14 @@ impl Blend {
         low *= 1.0 + 1e-6;
         // The last evaluation's side and species' densities, the next one's seeds.
         let last: std::cell::Cell<Option<(bool, (f64, f64))>> = std::cell::Cell::new(None);
+        let seeds = |liquid: bool| match last.get() {
+            Some((side, densities)) if side == liquid => Some(densities),
+            _ => None,
+        };
         // The property less the target, and its slope along the path, at T on a side.
         let evaluate = |t: f64, liquid: bool| -> (f64, f64) {
             let x = para_at(t);
-            let near = match last.get() {
-                Some((side, densities)) if side == liquid => Some(densities),
-                _ => None,
-            };
-            let Ok((para, ortho)) = self.species_near(t, pressure, liquid, near) else {
+            let Ok((para, ortho)) = self.species_near(t, pressure, liquid, seeds(liquid)) else {
                 return (f64::NAN, f64::NAN);
             };
             let mixed = self.mix(x, &para, &ortho);
@@ -553,11 +553,7 @@ impl Blend {
         // refused.
         let finish = |t: f64, liquid: bool| -> Option<State> {
             let x = para_at(t);
-            let near = match last.get() {
-                Some((side, densities)) if side == liquid => Some(densities),
-                _ => None,
-            };
-            let (para, ortho) = self.species_near(t, pressure, liquid, near).ok()?;
+            let (para, ortho) = self.species_near(t, pressure, liquid, seeds(liquid)).ok()?;
             let properties = self.mix(x, &para, &ortho);
             self.check(t, pressure, x).ok()?;
             let residual = property.pick(&properties) - target;

@@ -82,3 +82,21 @@ pub fn stream<'a>(
         .unwrap_or_else(|| panic!("no stream {name}"));
     &solution.streams[index]
 }
+
+/// The ids of a solution's design findings that are errors or warnings: a demo
+/// follows good practice and has none.
+pub fn serious_findings(
+    plant: &cryochain::flowsheet::Plant,
+    solution: &cryochain::solve::Solution,
+) -> Vec<String> {
+    cryochain::rules::check(plant, solution)
+        .into_iter()
+        .filter(|f| {
+            matches!(
+                f.severity,
+                cryochain::rules::Severity::Error | cryochain::rules::Severity::Warning
+            )
+        })
+        .map(|f| f.id)
+        .collect()
+}
