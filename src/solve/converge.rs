@@ -20,6 +20,9 @@ pub struct Converged {
     pub iterations: usize,
     /// Largest scaled residual |G(x) − x| after each pass.
     pub log: Vec<f64>,
+    /// Broyden's approximate inverse Jacobian of F(x) = G(x) − x at the end
+    /// (row-major), to start a neighbouring case from; `None` from other methods.
+    pub inverse_jacobian: Option<Vec<f64>>,
 }
 
 fn largest(a: &[f64], b: &[f64]) -> (f64, usize) {
@@ -107,6 +110,7 @@ pub fn wegstein(
                 x,
                 iterations: iteration,
                 log,
+                inverse_jacobian: None,
             });
         }
         let grew = r > 1.5 * last_residual;
@@ -186,6 +190,7 @@ pub fn damped(
                 x,
                 iterations: iteration,
                 log,
+                inverse_jacobian: None,
             });
         }
         let safe = x.clone();
@@ -216,10 +221,12 @@ pub fn damped(
 }
 
 /// Broyden's good method on F(x) = G(x) − x, starting from J = −I (a plain
-/// substitution), with a backtracking step when the residual grows.
+/// substitution) or from a neighbouring case's inverse Jacobian (`initial_inverse`,
+/// row-major, n × n), with a backtracking step when the residual grows.
 pub fn broyden(
     problem: &mut impl FixedPoint,
     start: Vec<f64>,
+    initial_inverse: Option<&[f64]>,
     tolerance: f64,
     cap: usize,
     describe: &dyn Fn(usize) -> String,
@@ -230,7 +237,12 @@ pub fn broyden(
     let g = guarded_pass(problem, &mut xs, &start)?;
     x = DVector::from_vec(xs);
     let mut f = DVector::from_vec(g) - &x;
-    let mut inverse = -DMatrix::<f64>::identity(n, n);
+    let mut inverse = match initial_inverse {
+        Some(h) if h.len() == n * n && h.iter().all(|v| v.is_finite()) => {
+            DMatrix::from_row_slice(n, n, h)
+        }
+        _ => -DMatrix::<f64>::identity(n, n),
+    };
     let mut log = vec![f.amax()];
     for iteration in 1..=cap {
         let r = f.amax();
@@ -239,6 +251,7 @@ pub fn broyden(
                 x: x.as_slice().to_vec(),
                 iterations: iteration,
                 log,
+                inverse_jacobian: Some(inverse.transpose().as_slice().to_vec()),
             });
         }
         let step = -(&inverse * &f);
@@ -289,6 +302,33 @@ pub fn broyden(
     })
 }
 
+/// Relative step of the finite-difference Jacobian (on scaled variables of order
+/// one): far above the passes' noise (about 1e-12), small against their curvature.
+const DIFFERENCE_STEP: f64 = 1e-6;
+
+/// The inverse of the Jacobian of F(x) = G(x) − x at `x`, by forward differences
+/// (n + 1 passes), row-major; `None` when a pass fails or the matrix is singular.
+pub fn finite_difference_inverse(problem: &mut impl FixedPoint, x: &[f64]) -> Option<Vec<f64>> {
+    let n = x.len();
+    let residual = |g: Vec<f64>, at: &[f64]| -> DVector<f64> {
+        DVector::from_iterator(n, g.iter().zip(at).map(|(gi, xi)| gi - xi))
+    };
+    let f0 = residual(problem.pass(x).ok()?, x);
+    let mut jacobian = DMatrix::<f64>::zeros(n, n);
+    for k in 0..n {
+        let mut shifted = x.to_vec();
+        let h = DIFFERENCE_STEP * x[k].abs().max(1.0);
+        shifted[k] += h;
+        let fk = residual(problem.pass(&shifted).ok()?, &shifted);
+        jacobian.set_column(k, &((fk - &f0) / h));
+    }
+    let inverse = jacobian.try_inverse()?;
+    inverse
+        .iter()
+        .all(|v| v.is_finite())
+        .then(|| inverse.transpose().as_slice().to_vec())
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -301,12 +341,39 @@ mod tests {
         }
     }
 
+    /// The estimated inverse Jacobian of the linear map is exact, and Broyden started
+    /// from it is Newton's method: one step to the fixed point.
+    #[test]
+    fn a_finite_difference_jacobian_makes_broyden_newton() {
+        let describe = |i: usize| format!("x{i}");
+        let inverse = finite_difference_inverse(&mut Linear, &[1.0, 2.0]).unwrap();
+        // J = [[-0.05, 0], [0.5, -1.9]], so J⁻¹ = [[-20, 0], [-100/19, -10/19]].
+        let expected = [-20.0, 0.0, -100.0 / 19.0, -10.0 / 19.0];
+        for (got, want) in inverse.iter().zip(expected) {
+            assert!(
+                (got - want).abs() < 1e-6 * want.abs().max(1.0),
+                "{inverse:?}"
+            );
+        }
+        let solved = broyden(
+            &mut Linear,
+            vec![0.0, 0.0],
+            Some(&inverse),
+            1e-9,
+            400,
+            &describe,
+        )
+        .unwrap();
+        assert!(solved.iterations <= 3, "{} passes", solved.iterations);
+        assert!((solved.x[0] - 20.0).abs() < 1e-6, "{:?}", solved.x);
+    }
+
     #[test]
     fn both_methods_find_the_fixed_point() {
         let describe = |i: usize| format!("x{i}");
         for solved in [
             wegstein(&mut Linear, vec![0.0, 0.0], 1e-11, 400, &describe).unwrap(),
-            broyden(&mut Linear, vec![0.0, 0.0], 1e-11, 400, &describe).unwrap(),
+            broyden(&mut Linear, vec![0.0, 0.0], None, 1e-11, 400, &describe).unwrap(),
         ] {
             assert!((solved.x[0] - 20.0).abs() < 1e-9, "{:?}", solved.x);
             assert!((solved.x[1] - 10.0 / 1.9).abs() < 1e-9, "{:?}", solved.x);

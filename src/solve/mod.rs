@@ -26,9 +26,27 @@ pub struct Options {
     pub max_iterations: Option<usize>,
     /// Method (overrides the settings).
     pub method: Option<Method>,
-    /// Start the recycle from this converged vector of a neighbouring case (used
-    /// when its length matches this plant's).
-    pub warm_start: Option<Vec<f64>>,
+    /// Start the recycle from a neighbouring case's converged recycle (used when
+    /// its length matches this plant's; where it does not converge, the solve starts
+    /// cold).
+    pub warm_start: Option<WarmStart>,
+    /// After converging, estimate the recycle's Jacobian by finite differences (one
+    /// more pass per tear variable) and hand its inverse out in the solution's
+    /// [`WarmStart`], so that the neighbouring cases of a study start from it.
+    /// Done only where it pays: when converging took more passes than that.
+    pub estimate_jacobian: bool,
+}
+
+/// A converged recycle, to start a neighbouring case from (a sweep's next case, an
+/// optimiser's next point): the scaled tear vector and, where Broyden converged it,
+/// its approximate inverse Jacobian, so that a small change of the case costs a few
+/// passes instead of a solve from scratch.
+#[derive(Debug, Clone, Default)]
+pub struct WarmStart {
+    /// The converged scaled tear vector.
+    pub tear_vector: Vec<f64>,
+    /// Broyden's inverse Jacobian of the residual there (row-major, n × n).
+    pub inverse_jacobian: Option<Vec<f64>>,
 }
 
 /// What one pass produces: G(x), every stream, every unit's performance.
@@ -330,34 +348,35 @@ pub fn solve(plant: &Plant, options: &Options) -> Result<Solution> {
             x: vec![],
             iterations: 1,
             log: vec![0.0],
+            inverse_jacobian: None,
         }
     } else {
-        // The chosen method first; where it fails, the other from the same start
-        // (Wegstein is quick on smooth loops, Broyden surer where a unit switches
-        // regime, as a coolant-limited precooler does), then a damped substitution.
-        // All failing is the first method's error.
         let method = options.method.unwrap_or(plant.settings.method);
-        let run = |problem: &mut Problem, method: Method, start: Vec<f64>| match method {
-            Method::Wegstein => converge::wegstein(problem, start, tolerance, cap, &describe),
-            Method::Broyden => converge::broyden(problem, start, tolerance, cap, &describe),
-        };
-        match run(&mut problem, method, start.clone()) {
-            Ok(c) => c,
-            Err(first @ Error::NoConvergence { .. }) => {
-                let other = match method {
-                    Method::Wegstein => Method::Broyden,
-                    Method::Broyden => Method::Wegstein,
-                };
-                match run(&mut problem, other, start.clone()) {
-                    Ok(c) => c,
-                    // Last, a damped substitution from the same start.
-                    Err(_) => {
-                        converge::damped(&mut problem, start, 0.3, tolerance, 2 * cap, &describe)
-                            .map_err(|_| first)?
-                    }
-                }
-            }
-            Err(e) => return Err(e),
+        // A neighbouring case's converged vector, where one is given and fits, is
+        // tried first; where it does not converge, the cold start follows.
+        let warm = options.warm_start.as_ref().filter(|w| {
+            w.tear_vector.len() == start.len() && w.tear_vector.iter().all(|v| v.is_finite())
+        });
+        // With a Jacobian to start from, the warm start takes Broyden's quasi-Newton
+        // steps whatever the method (a result the same to the tolerance).
+        let from_warm = warm.and_then(|w| {
+            converge_from(
+                &mut problem,
+                match w.inverse_jacobian {
+                    Some(_) => Method::Broyden,
+                    None => method,
+                },
+                w.tear_vector.clone(),
+                w.inverse_jacobian.as_deref(),
+                tolerance,
+                cap,
+                &describe,
+            )
+            .ok()
+        });
+        match from_warm {
+            Some(c) => c,
+            None => converge_from(&mut problem, method, start, None, tolerance, cap, &describe)?,
         }
     };
     // The reported streams come from a pass at the converged point, in detail.
@@ -384,6 +403,57 @@ pub fn solve(plant: &Plant, options: &Options) -> Result<Solution> {
         converged.iterations,
         converged.log,
     )?;
-    solution.tear_vector = converged.x;
+    // The Jacobian for neighbouring cases: estimated when asked for (on the
+    // converging passes' footing, not the detailed one), else Broyden's own.
+    let pays = converged.iterations > converged.x.len() + 1;
+    let inverse_jacobian = if options.estimate_jacobian && pays {
+        problem.context.detailed = false;
+        converge::finite_difference_inverse(&mut problem, &converged.x)
+            .or(converged.inverse_jacobian)
+    } else {
+        converged.inverse_jacobian
+    };
+    solution.warm_start = WarmStart {
+        tear_vector: converged.x,
+        inverse_jacobian,
+    };
     Ok(solution)
+}
+
+/// Converges the recycle from `start`: the chosen method first; where it fails, the
+/// other from the same start (Wegstein is quick on smooth loops, Broyden surer where
+/// a unit switches regime, as a coolant-limited precooler does), then a damped
+/// substitution. All failing is the first method's error. Broyden starts from
+/// `inverse_jacobian` where one is given.
+fn converge_from(
+    problem: &mut Problem,
+    method: Method,
+    start: Vec<f64>,
+    inverse_jacobian: Option<&[f64]>,
+    tolerance: f64,
+    cap: usize,
+    describe: &dyn Fn(usize) -> String,
+) -> Result<converge::Converged> {
+    let run = |problem: &mut Problem, method: Method, start: Vec<f64>| match method {
+        Method::Wegstein => converge::wegstein(problem, start, tolerance, cap, describe),
+        Method::Broyden => {
+            converge::broyden(problem, start, inverse_jacobian, tolerance, cap, describe)
+        }
+    };
+    match run(problem, method, start.clone()) {
+        Ok(c) => Ok(c),
+        Err(first @ Error::NoConvergence { .. }) => {
+            let other = match method {
+                Method::Wegstein => Method::Broyden,
+                Method::Broyden => Method::Wegstein,
+            };
+            match run(problem, other, start.clone()) {
+                Ok(c) => Ok(c),
+                // Last, a damped substitution from the same start.
+                Err(_) => converge::damped(problem, start, 0.3, tolerance, 2 * cap, describe)
+                    .map_err(|_| first),
+            }
+        }
+        Err(e) => Err(e),
+    }
 }

@@ -19,6 +19,7 @@
 //! made), which the exergy balance checks.
 
 use super::order::Sequence;
+use super::WarmStart;
 use crate::equipment::{Details, Flow, Performance, ProductRole, Role};
 use crate::error::Result;
 use crate::flowsheet::plant::flow_networks;
@@ -130,8 +131,8 @@ pub struct Solution {
     pub tears: Vec<String>,
     /// The recycles, as lists of unit ids.
     pub recycles: Vec<Vec<String>>,
-    /// The converged (scaled) tear vector, to warm-start a neighbouring case.
-    pub tear_vector: Vec<f64>,
+    /// The converged recycle, to warm-start a neighbouring case.
+    pub warm_start: WarmStart,
     /// Canonical names of the fluids the plant uses: its streams' and its baths'.
     pub fluids: Vec<String>,
 }
@@ -351,7 +352,7 @@ pub fn assemble(
             .iter()
             .map(|&t| plant.streams[t].name.clone())
             .collect(),
-        tear_vector: Vec::new(),
+        warm_start: WarmStart::default(),
         fluids: fluids_used(plant),
         recycles: sequence
             .recycles

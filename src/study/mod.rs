@@ -11,7 +11,7 @@ use crate::error::{Error, Result};
 use crate::flowsheet::{load_str, Override};
 use crate::quantity;
 use crate::rules;
-use crate::solve::{solve, Options, Solution};
+use crate::solve::{solve, Options, Solution, WarmStart};
 use rayon::prelude::*;
 
 const NO_STEPS: &str = "give the number of steps after ':' (2 to 100000), as in p=50bar..250bar:21";
@@ -287,7 +287,7 @@ pub fn sweep(
     let results: Vec<Vec<CaseResult>> = runs
         .par_iter()
         .map(|&(row, start)| {
-            let mut warm: Option<Vec<f64>> = None;
+            let mut warm: Option<WarmStart> = None;
             (start..(start + run_length).min(row_length))
                 .map(|j| {
                     let index = row * row_length + j;
@@ -302,15 +302,18 @@ pub fn sweep(
                     let outcome = load_str(text, file, &set)
                         .map_err(|e| e.to_string())
                         .and_then(|plant| {
+                            // The first case of a run estimates the recycle's
+                            // Jacobian for the cases after it.
                             let options = Options {
                                 warm_start: warm.clone(),
+                                estimate_jacobian: warm.is_none(),
                                 ..Options::default()
                             };
                             let solved = solve(&plant, &options)
                                 .or_else(|_| solve(&plant, &Options::default()));
                             solved
                                 .map(|s| {
-                                    warm = Some(s.tear_vector.clone());
+                                    warm = Some(s.warm_start.clone());
                                     Metrics::of(&plant, &s)
                                 })
                                 .map_err(|e| e.to_string())

@@ -5,11 +5,12 @@
 use super::{split_range, Metrics};
 use crate::error::{Error, Result};
 use crate::flowsheet::{load_str, Override};
-use crate::solve::{solve, Options};
+use crate::solve::{solve, Options, WarmStart};
 use argmin::core::{CostFunction, Executor, State};
 use argmin::solver::brent::BrentOpt;
 use argmin::solver::neldermead::NelderMead;
 use rayon::prelude::*;
+use std::collections::HashMap;
 use std::sync::atomic::{AtomicUsize, Ordering};
 use std::sync::Mutex;
 
@@ -139,6 +140,13 @@ struct Problem<'a> {
     solves: AtomicUsize,
     infeasible: AtomicUsize,
     best: Mutex<Option<(f64, Vec<f64>, Metrics)>>,
+    /// Converged recycles of the search so far (at box-scaled points), each case
+    /// starting from the nearest; empty during the scan, whose cases start cold.
+    warm: Mutex<Vec<(Vec<f64>, WarmStart)>>,
+    /// The figures of every point solved (`None`: it could not be solved), by the
+    /// bits of its clamped values: a search that steps outside the box comes back
+    /// to the same clamped point often, and pays for it once.
+    solved: Mutex<HashMap<Vec<u64>, Option<Metrics>>>,
 }
 
 const PENALTY: f64 = 1e6;
@@ -161,14 +169,7 @@ impl Problem<'_> {
                 c
             })
             .collect();
-        let mut set = self.overrides.to_vec();
-        set.extend(self.variables.iter().zip(&clamped).map(|(b, v)| b.set(*v)));
-        self.solves.fetch_add(1, Ordering::Relaxed);
-        let metrics = load_str(self.text, self.file, &set).ok().and_then(|plant| {
-            solve(&plant, &Options::default())
-                .ok()
-                .map(|s| Metrics::of(&plant, &s))
-        });
+        let metrics = self.metrics_at(&clamped);
         let Some(m) = metrics else { return PENALTY };
         let mut cost = self.objective.cost(&m);
         if !cost.is_finite() {
@@ -195,6 +196,93 @@ impl Problem<'_> {
             *best = Some((cost, clamped, m));
         }
         cost
+    }
+}
+
+impl Problem<'_> {
+    /// The figures at a point inside the box: solved once, from the nearest warm
+    /// start, and remembered.
+    fn metrics_at(&self, clamped: &[f64]) -> Option<Metrics> {
+        let key: Vec<u64> = clamped.iter().map(|v| v.to_bits()).collect();
+        if let Some(known) = self
+            .solved
+            .lock()
+            .unwrap_or_else(|e| e.into_inner())
+            .get(&key)
+        {
+            return *known;
+        }
+        self.solves.fetch_add(1, Ordering::Relaxed);
+        let scaled = self.scaled(clamped);
+        let metrics = load_str(self.text, self.file, &self.overrides_at(clamped))
+            .ok()
+            .and_then(|plant| {
+                let options = Options {
+                    warm_start: self.nearest_warm_start(&scaled),
+                    ..Options::default()
+                };
+                let solution = solve(&plant, &options).ok()?;
+                self.remember(scaled, &solution.warm_start);
+                Some(Metrics::of(&plant, &solution))
+            });
+        self.solved
+            .lock()
+            .unwrap_or_else(|e| e.into_inner())
+            .insert(key, metrics);
+        metrics
+    }
+
+    /// The flowsheet's overrides with the variables set to `x`.
+    fn overrides_at(&self, x: &[f64]) -> Vec<Override> {
+        let mut set = self.overrides.to_vec();
+        set.extend(self.variables.iter().zip(x).map(|(b, v)| b.set(*v)));
+        set
+    }
+
+    /// A point in box-scaled coordinates (each variable's range 0 to 1).
+    fn scaled(&self, x: &[f64]) -> Vec<f64> {
+        x.iter()
+            .zip(self.variables)
+            .map(|(v, b)| (v - b.low) / (b.high - b.low))
+            .collect()
+    }
+
+    /// The converged recycle of the nearest case solved so far in the search.
+    fn nearest_warm_start(&self, scaled: &[f64]) -> Option<WarmStart> {
+        let warm = self.warm.lock().unwrap_or_else(|e| e.into_inner());
+        let distance =
+            |p: &[f64]| -> f64 { p.iter().zip(scaled).map(|(a, b)| (a - b).powi(2)).sum() };
+        warm.iter()
+            .min_by(|a, b| distance(&a.0).total_cmp(&distance(&b.0)))
+            .map(|(_, w)| w.clone())
+    }
+
+    /// Keeps a case's converged recycle for its neighbours, once the search has
+    /// started (see [`Problem::warm`]).
+    fn remember(&self, scaled: Vec<f64>, warm_start: &WarmStart) {
+        let mut warm = self.warm.lock().unwrap_or_else(|e| e.into_inner());
+        if !warm.is_empty() {
+            warm.push((scaled, warm_start.clone()));
+        }
+    }
+
+    /// Solves the search's starting point once more, estimating the recycle's
+    /// Jacobian there, and makes it the first warm start of the search.
+    fn seed_warm_start(&self, start: &[f64]) {
+        let Ok(plant) = load_str(self.text, self.file, &self.overrides_at(start)) else {
+            return;
+        };
+        let options = Options {
+            estimate_jacobian: true,
+            ..Options::default()
+        };
+        self.solves.fetch_add(1, Ordering::Relaxed);
+        if let Ok(solution) = solve(&plant, &options) {
+            self.warm
+                .lock()
+                .unwrap_or_else(|e| e.into_inner())
+                .push((self.scaled(start), solution.warm_start));
+        }
     }
 }
 
@@ -262,6 +350,8 @@ pub fn optimize(
         solves: AtomicUsize::new(0),
         infeasible: AtomicUsize::new(0),
         best: Mutex::new(None),
+        warm: Mutex::new(Vec::new()),
+        solved: Mutex::new(HashMap::new()),
     };
     let fail = |e: argmin::core::Error| Error::NoConvergence {
         solver: "optimisation (argmin)",
@@ -306,6 +396,8 @@ pub fn optimize(
     else {
         return Err(no_feasible_point(&problem, min_approach));
     };
+    // The search's cases are neighbours: each starts from the nearest converged one.
+    problem.seed_warm_start(&start);
     let iterations = if variables.len() == 1 {
         let b = &variables[0];
         let (low, high) = (
