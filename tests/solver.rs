@@ -233,7 +233,11 @@ fn a_warm_start_converges_in_a_few_passes_to_the_cold_answer() {
         let (a, b) = (&started.summary, &cold.summary);
         for (name, x, y) in [
             ("yield", a.liquid_yield.unwrap(), b.liquid_yield.unwrap()),
-            ("specific energy", a.specific_energy.unwrap(), b.specific_energy.unwrap()),
+            (
+                "specific energy",
+                a.specific_energy.unwrap(),
+                b.specific_energy.unwrap(),
+            ),
             ("shaft power", a.shaft_power, b.shaft_power),
         ] {
             assert!(

@@ -140,8 +140,8 @@ struct Problem<'a> {
     solves: AtomicUsize,
     infeasible: AtomicUsize,
     best: Mutex<Option<(f64, Vec<f64>, Metrics)>>,
-    /// Converged recycles of the search so far (at box-scaled points), each case
-    /// starting from the nearest; empty during the scan, whose cases start cold.
+    /// Converged recycles of the cases so far (at box-scaled points): each case of
+    /// the search starts from the nearest.
     warm: Mutex<Vec<(Vec<f64>, WarmStart)>>,
     /// The figures of every point solved (`None`: it could not be solved), by the
     /// bits of its clamped values: a search that steps outside the box comes back
@@ -156,8 +156,22 @@ const PENALTY: f64 = 1e6;
 /// feasible one.
 const INFEASIBLE_PENALTY: f64 = 1e4;
 
+/// Where a case's recycle starts.
+enum Start {
+    /// From the nearest case solved so far (the search, one case at a time).
+    Nearest,
+    /// From the case before it in a run of the scan (`None`: the run's first case,
+    /// which starts cold and estimates the recycle's Jacobian for the next).
+    After(Option<WarmStart>),
+}
+
 impl Problem<'_> {
     fn evaluate(&self, x: &[f64]) -> f64 {
+        self.evaluate_from(x, Start::Nearest).0
+    }
+
+    /// The cost at `x`, with the converged recycle for the next case of a run.
+    fn evaluate_from(&self, x: &[f64], start: Start) -> (f64, Option<WarmStart>) {
         // Outside the box: penalised by the distance.
         let mut outside = 0.0;
         let clamped: Vec<f64> = x
@@ -169,11 +183,13 @@ impl Problem<'_> {
                 c
             })
             .collect();
-        let metrics = self.metrics_at(&clamped);
-        let Some(m) = metrics else { return PENALTY };
+        let (metrics, warm) = self.metrics_at(&clamped, start);
+        let Some(m) = metrics else {
+            return (PENALTY, warm);
+        };
         let mut cost = self.objective.cost(&m);
         if !cost.is_finite() {
-            return PENALTY;
+            return (PENALTY, warm);
         }
         // A case with design errors, or one that breaks the constraint, is a
         // constraint violation: penalised, and never taken as the optimum.
@@ -195,14 +211,14 @@ impl Problem<'_> {
         if feasible && outside == 0.0 && best.as_ref().is_none_or(|b| cost < b.0) {
             *best = Some((cost, clamped, m));
         }
-        cost
+        (cost, warm)
     }
 }
 
 impl Problem<'_> {
-    /// The figures at a point inside the box: solved once, from the nearest warm
-    /// start, and remembered.
-    fn metrics_at(&self, clamped: &[f64]) -> Option<Metrics> {
+    /// The figures at a point inside the box, solved once and remembered, with
+    /// the converged recycle (`None` for a point solved before or not solved).
+    fn metrics_at(&self, clamped: &[f64], start: Start) -> (Option<Metrics>, Option<WarmStart>) {
         let key: Vec<u64> = clamped.iter().map(|v| v.to_bits()).collect();
         if let Some(known) = self
             .solved
@@ -210,26 +226,38 @@ impl Problem<'_> {
             .unwrap_or_else(|e| e.into_inner())
             .get(&key)
         {
-            return *known;
+            return (*known, None);
         }
         self.solves.fetch_add(1, Ordering::Relaxed);
         let scaled = self.scaled(clamped);
-        let metrics = load_str(self.text, self.file, &self.overrides_at(clamped))
+        let warm_start = match start {
+            Start::Nearest => self.nearest_warm_start(&scaled),
+            Start::After(warm) => warm,
+        };
+        let options = Options {
+            estimate_jacobian: warm_start.is_none(),
+            warm_start,
+            ..Options::default()
+        };
+        let solved = load_str(self.text, self.file, &self.overrides_at(clamped))
             .ok()
             .and_then(|plant| {
-                let options = Options {
-                    warm_start: self.nearest_warm_start(&scaled),
-                    ..Options::default()
-                };
                 let solution = solve(&plant, &options).ok()?;
-                self.remember(scaled, &solution.warm_start);
-                Some(Metrics::of(&plant, &solution))
+                Some((Metrics::of(&plant, &solution), solution.warm_start))
             });
+        let metrics = solved.as_ref().map(|(m, _)| *m);
         self.solved
             .lock()
             .unwrap_or_else(|e| e.into_inner())
             .insert(key, metrics);
-        metrics
+        let warm = solved.map(|(_, w)| {
+            self.warm
+                .lock()
+                .unwrap_or_else(|e| e.into_inner())
+                .push((scaled, w.clone()));
+            w
+        });
+        (metrics, warm)
     }
 
     /// The flowsheet's overrides with the variables set to `x`.
@@ -252,37 +280,19 @@ impl Problem<'_> {
         let warm = self.warm.lock().unwrap_or_else(|e| e.into_inner());
         let distance =
             |p: &[f64]| -> f64 { p.iter().zip(scaled).map(|(a, b)| (a - b).powi(2)).sum() };
+        // Ties go to the lower point, so that the choice does not depend on the
+        // order in which the scan's threads finished.
         warm.iter()
-            .min_by(|a, b| distance(&a.0).total_cmp(&distance(&b.0)))
+            .min_by(|a, b| {
+                distance(&a.0).total_cmp(&distance(&b.0)).then_with(|| {
+                    a.0.iter()
+                        .zip(&b.0)
+                        .fold(std::cmp::Ordering::Equal, |o, (p, q)| {
+                            o.then(p.total_cmp(q))
+                        })
+                })
+            })
             .map(|(_, w)| w.clone())
-    }
-
-    /// Keeps a case's converged recycle for its neighbours, once the search has
-    /// started (see [`Problem::warm`]).
-    fn remember(&self, scaled: Vec<f64>, warm_start: &WarmStart) {
-        let mut warm = self.warm.lock().unwrap_or_else(|e| e.into_inner());
-        if !warm.is_empty() {
-            warm.push((scaled, warm_start.clone()));
-        }
-    }
-
-    /// Solves the search's starting point once more, estimating the recycle's
-    /// Jacobian there, and makes it the first warm start of the search.
-    fn seed_warm_start(&self, start: &[f64]) {
-        let Ok(plant) = load_str(self.text, self.file, &self.overrides_at(start)) else {
-            return;
-        };
-        let options = Options {
-            estimate_jacobian: true,
-            ..Options::default()
-        };
-        self.solves.fetch_add(1, Ordering::Relaxed);
-        if let Ok(solution) = solve(&plant, &options) {
-            self.warm
-                .lock()
-                .unwrap_or_else(|e| e.into_inner())
-                .push((self.scaled(start), solution.warm_start));
-        }
     }
 }
 
@@ -384,8 +394,18 @@ pub fn optimize(
                 .collect()
         })
         .collect();
-    grid.par_iter().for_each(|x| {
-        problem.evaluate(x);
+    // The scan runs along rows of the grid (the first variable changing), each case
+    // starting from the one before; the runs do not depend on the number of threads.
+    let run = if variables.len() == 1 {
+        SCAN_POINTS_ONE.div_ceil(2)
+    } else {
+        steps
+    };
+    grid.par_chunks(run).for_each(|cases| {
+        let mut warm = None;
+        for x in cases {
+            warm = problem.evaluate_from(x, Start::After(warm)).1;
+        }
     });
     let Some(start) = problem
         .best
@@ -396,8 +416,6 @@ pub fn optimize(
     else {
         return Err(no_feasible_point(&problem, min_approach));
     };
-    // The search's cases are neighbours: each starts from the nearest converged one.
-    problem.seed_warm_start(&start);
     let iterations = if variables.len() == 1 {
         let b = &variables[0];
         let (low, high) = (
