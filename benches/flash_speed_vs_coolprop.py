@@ -1,0 +1,163 @@
+#!/usr/bin/env python3
+"""Flash speed side by side: cryochain against the CoolProp library (PyPI), on the
+same random single-phase states of nitrogen, hydrogen and helium, in one run.
+
+1. Draws N states a fluid (seeded; T and p log-uniform over 65/14.5/2.5 K to 500 K
+   and 0.5 to 200 bar; single phase, at least 2 % in pressure away from saturation,
+   below the melting line by 2 %) and computes CoolProp's density, enthalpy and
+   entropy there.
+2. Times CoolProp's AbstractState("HEOS", fluid).update(...) over every state for
+   (T, p), (p, h) and (p, s) inputs, best of three rounds, less the Python loop's own
+   cost (the same loop calling a trivial getter, also best of three).
+3. Writes the states and runs `cargo bench --bench flash_states` on them
+   (CRYOCHAIN_FLASH_STATES), which times cryochain's flashes on the same states
+   (criterion median of all N flashes, each fluid and input pair) and writes the
+   largest density difference against CoolProp and the (p, h) and (p, s) round trips.
+4. Prints the table and the ratios against the speed issue's targets (cryochain at
+   least 10x CoolProp for (T, p), 30x for (p, h) and (p, s)).
+
+Usage:  pip install CoolProp==8.0.0 && python3 benches/flash_speed_vs_coolprop.py [N]
+"""
+import json
+import math
+import os
+import random
+import subprocess
+import sys
+import tempfile
+import time
+
+import CoolProp
+import CoolProp.CoolProp as CP
+
+HERE = os.path.dirname(os.path.abspath(__file__))
+ROOT = os.path.dirname(HERE)
+
+FLUIDS = [("nitrogen", "Nitrogen", 65.0), ("hydrogen", "Hydrogen", 14.5), ("helium", "Helium", 2.5)]
+T_HIGH = 500.0
+P_LOW, P_HIGH = 0.5e5, 200e5
+TARGETS = {"(T, p)": 10.0, "(p, h)": 30.0, "(p, s)": 30.0}
+
+
+def draw_states(name, coolprop_name, t_low, count, seed):
+    rng = random.Random(f"{seed}-{name}")
+    state = CoolProp.AbstractState("HEOS", coolprop_name)
+    t_crit = state.T_critical()
+    states = []
+    while len(states) < count:
+        t = t_low * (T_HIGH / t_low) ** rng.random()
+        p = P_LOW * (P_HIGH / P_LOW) ** rng.random()
+        try:
+            if t < t_crit:
+                state.update(CoolProp.QT_INPUTS, 0.0, t)
+                if abs(p / state.p() - 1.0) < 0.02:
+                    continue
+            # Not in the solid, with the same margin.
+            try:
+                if p > 0.98 * state.melting_line(CoolProp.iP, CoolProp.iT, t):
+                    continue
+            except ValueError:
+                pass
+            state.update(CoolProp.PT_INPUTS, p, t)
+            states.append((t, p, state.rhomass(), state.hmass(), state.smass()))
+        except ValueError:
+            continue
+    return states
+
+
+def best_of_three(run):
+    times = []
+    for _ in range(3):
+        start = time.perf_counter()
+        run()
+        times.append(time.perf_counter() - start)
+    return min(times)
+
+
+def time_coolprop(coolprop_name, states):
+    state = CoolProp.AbstractState("HEOS", coolprop_name)
+    update = state.update
+    getter = state.T
+    pt, hp, ps = CoolProp.PT_INPUTS, CoolProp.HmassP_INPUTS, CoolProp.PSmass_INPUTS
+    tp_pairs = [(p, t) for t, p, _, _, _ in states]
+    hp_pairs = [(h, p) for _, p, _, h, _ in states]
+    ps_pairs = [(p, s) for _, p, _, _, s in states]
+    state.update(pt, states[0][1], states[0][0])
+
+    def loop_cost():
+        for a, b in tp_pairs:
+            getter()
+
+    def tp():
+        for p, t in tp_pairs:
+            update(pt, p, t)
+
+    def ph():
+        for h, p in hp_pairs:
+            update(hp, h, p)
+
+    def ps_():
+        for p, s in ps_pairs:
+            update(ps, p, s)
+
+    overhead = best_of_three(loop_cost)
+    n = len(states)
+    return {
+        "(T, p)": (best_of_three(tp) - overhead) / n,
+        "(p, h)": (best_of_three(ph) - overhead) / n,
+        "(p, s)": (best_of_three(ps_) - overhead) / n,
+    }, overhead / n
+
+
+def criterion_median(name, kind):
+    # criterion keeps the group and function names with unsafe characters replaced.
+    group = f"flash states {name}".replace(" ", "_")
+    function = kind.replace(" ", "_").replace(",", "_")
+    for g in (f"flash states {name}", group):
+        for f in (kind, function):
+            path = os.path.join(ROOT, "target", "criterion", g, f, "new", "estimates.json")
+            if os.path.exists(path):
+                with open(path) as handle:
+                    return json.load(handle)["median"]["point_estimate"] * 1e-9
+    raise FileNotFoundError(f"no criterion estimate for {name} {kind} under target/criterion")
+
+
+def main():
+    count = int(sys.argv[1]) if len(sys.argv) > 1 else 20000
+    directory = tempfile.mkdtemp(prefix="cryochain-flash-states-")
+    drawn = {}
+    for name, coolprop_name, t_low in FLUIDS:
+        states = draw_states(name, coolprop_name, t_low, count, 2026)
+        drawn[name] = states
+        with open(os.path.join(directory, f"{name}.csv"), "w") as out:
+            out.write("T [K],p [Pa],rho [kg/m3]\n")
+            for t, p, rho, _, _ in states:
+                out.write(f"{t!r},{p!r},{rho!r}\n")
+    coolprop_times = {}
+    overheads = {}
+    for name, coolprop_name, _ in FLUIDS:
+        coolprop_times[name], overheads[name] = time_coolprop(coolprop_name, drawn[name])
+    environment = dict(os.environ, CRYOCHAIN_FLASH_STATES=directory)
+    subprocess.run(["cargo", "bench", "--bench", "flash_states"], cwd=ROOT, env=environment,
+                   check=True, stdout=sys.stderr)
+    print(f"CoolProp {CoolProp.__version__}, {count} states a fluid, states in {directory}")
+    print(f"{'fluid':<9} {'input':<7} {'cryochain':>11} {'CoolProp':>11} {'ratio':>7} {'target':>7}  met")
+    all_met = True
+    for name, _, _ in FLUIDS:
+        for kind, target in TARGETS.items():
+            ours = criterion_median(name, kind) / count
+            theirs = coolprop_times[name][kind]
+            ratio = theirs / ours
+            met = ratio >= target
+            all_met &= met
+            print(f"{name:<9} {kind:<7} {ours * 1e6:>8.3f} µs {theirs * 1e6:>8.3f} µs {ratio:>7.1f} {target:>6.0f}x  {'yes' if met else 'no'}")
+    for name, _, _ in FLUIDS:
+        with open(os.path.join(directory, f"{name}-accuracy.csv")) as handle:
+            header, values = handle.read().split()
+        print(f"{name}: largest relative differences {dict(zip(header.split(','), values.split(',')))};"
+              f" Python loop cost per call {overheads[name] * 1e6:.3f} µs (subtracted)")
+    print("every target met" if all_met else "not every target met")
+
+
+if __name__ == "__main__":
+    main()
