@@ -121,6 +121,16 @@ pub struct Properties {
     pub dp_dt: f64,
 }
 
+/// Key of an evaluation of the residual part: which part (its address), τ and δ
+/// (their bits).
+type ResidualKey = (usize, u64, u64);
+
+thread_local! {
+    /// The last residual evaluation on this thread (see `Fluid::residual_at_delta`).
+    static LAST_RESIDUAL: std::cell::Cell<Option<(ResidualKey, ResidualDerivatives)>> =
+        const { std::cell::Cell::new(None) };
+}
+
 impl Fluid {
     /// The source as people cite it in a caption: "Leachman et al. 2009", "Span and
     /// Wagner 1996", "Smith 1990" — surnames from the authors of `source`, the year
@@ -249,7 +259,29 @@ impl Fluid {
 
     /// The residual derivatives at (T, ρ) from precomputed τ factors.
     pub fn residual_at(&self, factors: &TauFactors, density: f64) -> ResidualDerivatives {
-        self.residual.evaluate(factors, self.delta(density))
+        self.residual_at_delta(factors, self.delta(density))
+    }
+
+    /// The residual derivatives at (τ, δ). The last evaluation of each thread is
+    /// kept: a density solve ends by evaluating its root, and the state's properties
+    /// are then evaluated at exactly that root, so the second evaluation is the
+    /// first's (the same bits in, the same bits out).
+    fn residual_at_delta(&self, factors: &TauFactors, delta: f64) -> ResidualDerivatives {
+        let key = (
+            &self.residual as *const _ as usize,
+            factors.tau().to_bits(),
+            delta.to_bits(),
+        );
+        LAST_RESIDUAL.with(|last| {
+            if let Some((k, r)) = last.get() {
+                if k == key {
+                    return r;
+                }
+            }
+            let r = self.residual.evaluate(factors, delta);
+            last.set(Some((key, r)));
+            r
+        })
     }
 
     /// Pressure and (∂p/∂ρ)_T at (T, ρ), from precomputed τ factors.
@@ -260,7 +292,7 @@ impl Fluid {
         density: f64,
     ) -> (f64, f64) {
         let delta = self.delta(density);
-        let r = self.residual.evaluate(factors, delta);
+        let r = self.residual_at_delta(factors, delta);
         let rt = self.gas_constant * temperature;
         let p = density * rt * (1.0 + delta * r.alpha_delta);
         let slope = rt * (1.0 + 2.0 * delta * r.alpha_delta + delta * delta * r.alpha_delta_delta);
@@ -282,7 +314,7 @@ impl Fluid {
     ) -> Properties {
         let tau = factors.tau();
         let delta = self.delta(density);
-        let r = self.residual.evaluate(factors, delta);
+        let r = self.residual_at_delta(factors, delta);
         let i = self.ideal.evaluate(tau);
         let rt = self.gas_constant * temperature;
         let big_r = self.gas_constant;
