@@ -517,6 +517,8 @@ pub fn exchange(
     };
     // The largest duty, where a specification needed it.
     let mut known_max = None;
+    // Where the pinch was found (for the next pass's hint).
+    let mut pinch_at_end = None;
     let duty = match design.spec {
         ExchangerSpec::OutletTemperatures => {
             return Err(Error::Internal(
@@ -530,9 +532,13 @@ pub fn exchange(
         ExchangerSpec::ColdEndApproach(dt) => sides
             .duty_for_hot_outlet((cold.state.temperature + dt).min(hot.state.temperature))?
             .clamp(0.0, upper),
-        ExchangerSpec::MinimumApproach(dt) => match pinch::end_pinch(&sides, dt, (0.0, upper), context.loose)? {
-            ControlFlow::Break(duty) => duty,
+        ExchangerSpec::MinimumApproach(dt) => match pinch::hinted_end_pinch(&sides, dt, (0.0, upper), context)? {
+            ControlFlow::Break(duty) => {
+                pinch_at_end = Some(true);
+                duty
+            }
             ControlFlow::Continue(bound) => {
+            pinch_at_end = Some(false);
             let at_zero = sides.difference_at_zero_duty(dt)?;
             if at_zero <= dt {
                 0.0
@@ -586,6 +592,7 @@ pub fn exchange(
         let performance = Performance {
             heat_in: vec![(design.heat_leak, context.ambient)],
             duty: Some(duty),
+            pinch_at_end,
             ..Performance::default()
         };
         return Ok((outlets(hot, cold, hot_out, cold_out), performance));
@@ -696,6 +703,7 @@ pub fn exchange(
         heat_in: vec![(design.heat_leak, context.ambient)],
         duty: Some(duty),
         details: Details::Exchanger(Box::new(report)),
+        pinch_at_end,
         ..Performance::default()
     };
     Ok((outlets(hot, cold, hot_out, cold_out), performance))

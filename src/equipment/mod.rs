@@ -156,6 +156,25 @@ pub struct Context {
     /// profile's by far less than the tear streams still move). Never on the
     /// final passes or the detailed one.
     pub loose: bool,
+    /// Where an exchanger sized by its pinch found it on the previous passes.
+    /// Always [`PinchHint::Check`] on the detailed pass; the solver checks the
+    /// converged point with every pinch found afresh.
+    pub pinch_hint: PinchHint,
+}
+
+/// Where an exchanger sized by its pinch found it lately, and so where a pass may
+/// look for it first: the hint saves profiles, and the solver's detailed pass
+/// finds every pinch afresh to check the converged point.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum PinchHint {
+    /// No hint: try the ends, confirmed on a profile, then search inside.
+    #[default]
+    Check,
+    /// At an end on the pass before: once the tear streams settle, take that end's
+    /// duty from the end flash alone.
+    End,
+    /// Inside, lately: search for it, without trying the ends first.
+    Inside,
 }
 
 impl Context {
@@ -167,6 +186,7 @@ impl Context {
             feed_flow: 0.0,
             duty_hint: None,
             loose: false,
+            pinch_hint: PinchHint::Check,
         }
     }
 }
@@ -220,4 +240,7 @@ pub struct Performance {
     /// flowsheet: the liquid cryogen fed to a bath whose boil-off is routed on as a
     /// stream (its mass, enthalpy and entropy enter the balances).
     pub utility_in: Option<Flow>,
+    /// Where an exchanger sized by its pinch found it: at an end (`Some(true)`) or
+    /// inside (`Some(false)`); see [`Context::pinch_hint`].
+    pub pinch_at_end: Option<bool>,
 }

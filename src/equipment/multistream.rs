@@ -887,6 +887,8 @@ pub fn exchange(
     };
     let (known_hot, known_cold) = (arrangement.known(Side::Hot), arrangement.known(Side::Cold));
     let free_of = |side: Side| arrangement.free(side).map(|i| &arrangement.members[i]);
+    // Where the pinch was found (for the next pass's hint).
+    let mut pinch_at_end = None;
     let total = match design.minimum_approach {
         None => {
             // One free stream takes what the energy balance leaves.
@@ -932,9 +934,13 @@ pub fn exchange(
             if upper <= low {
                 low
             } else {
-                match pinch::end_pinch(&arrangement, dt, (low, upper), context.loose)? {
-                    ControlFlow::Break(duty) => duty,
+                match pinch::hinted_end_pinch(&arrangement, dt, (low, upper), context)? {
+                    ControlFlow::Break(duty) => {
+                        pinch_at_end = Some(true);
+                        duty
+                    }
                     ControlFlow::Continue(bound) => {
+                        pinch_at_end = Some(false);
                         searched_duty(&arrangement, dt, (low, upper), bound, context)?
                     }
                 }
@@ -960,6 +966,7 @@ pub fn exchange(
     let mut performance = Performance {
         heat_in: vec![(leak, context.ambient)],
         duty: Some(total),
+        pinch_at_end,
         ..Performance::default()
     };
     if context.detailed && total > 0.0 {

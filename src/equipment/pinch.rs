@@ -7,6 +7,7 @@
 //! them by successive parabolic interpolation of the exact difference; the duty that
 //! gives a smallest difference asked for is found by Newton steps on the duty.
 
+use super::{Context, PinchHint};
 use crate::error::{Error, Result};
 
 /// Steps of the parabolic refinement of the smallest temperature difference.
@@ -155,12 +156,17 @@ const END_TOLERANCE: f64 = 1e-9;
 /// Tried before anything else: where it confirms an end, not even the difference
 /// at zero duty is needed (it is larger, the difference falling with the duty).
 /// Returns `Break(duty)` where an end is the pinch, else `Continue(bound)`, the
-/// upper end of the bracket for the search.
+/// upper end of the bracket for the search. With `lately` (the end was the pinch on
+/// the pass before) and the tear streams settling (not `loose`, so that they move
+/// by less than 1e-4 of themselves a pass and the pinch with them), the end duty
+/// is taken from the end flash alone; the solver's detailed pass confirms every
+/// end pinch on the full profile at the converged point.
 pub fn end_pinch<S: PinchSearch>(
     search: &S,
     target: f64,
     (low, upper): (f64, f64),
     loose: bool,
+    lately: bool,
 ) -> Result<std::ops::ControlFlow<f64, f64>> {
     use std::ops::ControlFlow::{Break, Continue};
     let Some(end) = search
@@ -177,6 +183,9 @@ pub fn end_pinch<S: PinchSearch>(
     // While loose, a profile of a tenth of the segments (at least four) decides:
     // such a pass is inexact anyway, and an internal pinch it misses is found once
     // the tear streams settle. Otherwise the full profile decides.
+    if lately && !loose {
+        return Ok(Break(end));
+    }
     let checked_on = if loose && coarse >= COARSE_MINIMUM {
         (segments / 10).max(4)
     } else {
@@ -191,6 +200,27 @@ pub fn end_pinch<S: PinchSearch>(
     } else {
         Break(end)
     })
+}
+
+/// The pinch at an end where the hint allows ([`end_pinch`]): tried and confirmed
+/// without a hint, taken from the end flash where the pinch lay at that end on the
+/// pass before, not tried where it lay inside lately.
+pub fn hinted_end_pinch<S: PinchSearch>(
+    search: &S,
+    target: f64,
+    (low, upper): (f64, f64),
+    context: &Context,
+) -> Result<std::ops::ControlFlow<f64, f64>> {
+    match context.pinch_hint {
+        PinchHint::Inside => Ok(std::ops::ControlFlow::Continue(upper)),
+        hint => end_pinch(
+            search,
+            target,
+            (low, upper),
+            context.loose,
+            hint == PinchHint::End,
+        ),
+    }
 }
 
 /// The largest number of steps of each stage of the duty search.

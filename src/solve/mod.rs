@@ -7,7 +7,7 @@ pub mod results;
 
 pub use results::{Solution, Summary, UnitResult};
 
-use crate::equipment::{Context, FeedFlow, Flow, Performance, Role};
+use crate::equipment::{Context, FeedFlow, Flow, Performance, PinchHint, Role};
 use crate::error::{Error, Result};
 use crate::flowsheet::plant::{flow_networks, static_pressures, Method};
 use crate::flowsheet::Plant;
@@ -75,11 +75,34 @@ struct Problem<'a> {
     duty_hints: std::cell::RefCell<Vec<Option<f64>>>,
     /// The largest scaled change of a tear variable over the last pass.
     last_change: std::cell::Cell<f64>,
+    /// For each exchanger sized by its pinch, where it found it on the last pass
+    /// (at an end or not) and the passes since it looked everywhere.
+    pinch_places: std::cell::RefCell<Vec<Option<(bool, usize)>>>,
+    /// Whether passes pass on where each pinch lay (`Context::pinch_hint`); off
+    /// once a converged point failed its check with every pinch found afresh.
+    trusting: std::cell::Cell<bool>,
 }
 
 /// While the tear variables still change by more than this (scaled) from one pass
 /// to the next, exchangers may size on their coarse profiles (`Context::loose`).
 const LOOSE_ABOVE: f64 = 1e-4;
+
+/// A pinch found inside is searched for directly for this many passes before a
+/// pass tries the ends again (it may move to an end as the tear streams settle).
+const HINTED_PASSES: usize = 4;
+
+/// The detailed pass at the converged point may differ from the converging passes
+/// by rounding (its exchangers draw their outlets from the profile); a change of a
+/// tear variable above this many tolerances means a trusted end pinch did not hold.
+const TRUSTED_CHECK: f64 = 1e3;
+
+/// The largest scaled difference between two vectors.
+fn largest_change(a: &[f64], b: &[f64]) -> f64 {
+    a.iter()
+        .zip(b)
+        .map(|(x, y)| (x - y).abs())
+        .fold(0.0, f64::max)
+}
 
 impl Problem<'_> {
     fn run_pass(&self, x: &[f64]) -> Result<PassOutput> {
@@ -154,6 +177,12 @@ impl Problem<'_> {
                 },
                 duty_hint: self.duty_hints.borrow()[u],
                 loose: !self.context.detailed && self.last_change.get() > LOOSE_ABOVE,
+                pinch_hint: match self.pinch_places.borrow()[u] {
+                    _ if self.context.detailed || !self.trusting.get() => PinchHint::Check,
+                    Some((true, _)) => PinchHint::End,
+                    Some((false, n)) if n < HINTED_PASSES => PinchHint::Inside,
+                    _ => PinchHint::Check,
+                },
                 ..self.context
             };
             let (mut outlets, performance) = unit
@@ -161,6 +190,13 @@ impl Problem<'_> {
                 .run(&inlets, &context)
                 .map_err(|e| e.in_equipment(&unit.id))?;
             self.duty_hints.borrow_mut()[u] = performance.duty;
+            let mut places = self.pinch_places.borrow_mut();
+            places[u] = match (performance.pinch_at_end, context.pinch_hint) {
+                (None, _) => None,
+                (Some(at_end), PinchHint::Check) => Some((at_end, 0)),
+                (Some(at_end), _) => places[u].map(|(_, n)| (at_end, n + 1)),
+            };
+            drop(places);
             if let (Some(basis), Some(first)) = (unit.flow_basis, outlets.first_mut()) {
                 if !matches!(role, Role::Feed(_)) {
                     first.flow = basis;
@@ -317,6 +353,8 @@ pub fn solve(plant: &Plant, options: &Options) -> Result<Solution> {
         last: None,
         duty_hints: std::cell::RefCell::new(vec![None; plant.units.len()]),
         last_change: std::cell::Cell::new(f64::INFINITY),
+        pinch_places: std::cell::RefCell::new(vec![None; plant.units.len()]),
+        trusting: std::cell::Cell::new(true),
     };
     let describe = |k: usize| -> String {
         let name = |s: usize| plant.streams[s].name.clone();
@@ -379,9 +417,35 @@ pub fn solve(plant: &Plant, options: &Options) -> Result<Solution> {
             None => converge_from(&mut problem, method, start, None, tolerance, cap, &describe)?,
         }
     };
-    // The reported streams come from a pass at the converged point, in detail.
+    // The reported streams come from a pass at the converged point, in detail, where
+    // every pinch is found afresh. Where that moves the tear streams (a pinch moved
+    // inside while the passes took it at an end), the recycle converges again from
+    // there without the passes' hints.
     problem.context.detailed = true;
-    problem.pass(&converged.x)?;
+    let detailed = problem.pass(&converged.x)?;
+    let converged = if largest_change(&detailed, &converged.x) > TRUSTED_CHECK * tolerance {
+        problem.trusting.set(false);
+        problem.context.detailed = false;
+        let method = options.method.unwrap_or(plant.settings.method);
+        let again = converge_from(
+            &mut problem,
+            method,
+            converged.x,
+            converged.inverse_jacobian.as_deref(),
+            tolerance,
+            cap,
+            &describe,
+        )?;
+        problem.context.detailed = true;
+        problem.pass(&again.x)?;
+        converge::Converged {
+            iterations: converged.iterations + again.iterations,
+            log: [converged.log, again.log].concat(),
+            ..again
+        }
+    } else {
+        converged
+    };
     let (flows, performances) = problem
         .last
         .take()
