@@ -349,3 +349,74 @@ pub fn conductance(nodes: impl Iterator<Item = (f64, f64)>) -> f64 {
     }
     ua
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use std::cell::Cell;
+    use std::ops::ControlFlow::{Break, Continue};
+
+    /// Straight-line differences: the warm end 10 − q, the cold end 10 − q/2, and
+    /// an inside point 9 − 0.9 q, so that for a 2 K target the warm end's duty is
+    /// 8 W but the inside is then at 1.8 K: the pinch lies inside.
+    struct Lines {
+        profiles: Cell<usize>,
+    }
+
+    impl PinchSearch for Lines {
+        type Profile = ();
+        fn segments(&self) -> usize {
+            50
+        }
+        fn pinch_on(&self, duty: f64, _segments: usize) -> Result<Pinch<()>> {
+            self.profiles.set(self.profiles.get() + 1);
+            let (warm, cold, inside) = (10.0 - duty, 10.0 - 0.5 * duty, 9.0 - 0.9 * duty);
+            let (difference, position) = [(warm, 0.0), (inside, 0.5), (cold, 1.0)]
+                .into_iter()
+                .fold((f64::INFINITY, 0.0), |a, b| if b.0 < a.0 { b } else { a });
+            Ok(Pinch {
+                duty,
+                difference,
+                position,
+                profile: (),
+            })
+        }
+        fn pinch_slope(&self, pinch: &Pinch<()>) -> Result<f64> {
+            Ok(if pinch.position == 0.5 { -0.9 } else { -1.0 })
+        }
+        fn end_duties(&self, target: f64) -> [Option<f64>; 2] {
+            [Some(10.0 - target), Some(2.0 * (10.0 - target))]
+        }
+    }
+
+    fn context(pinch_hint: PinchHint, loose: bool) -> Context {
+        Context {
+            pinch_hint,
+            loose,
+            ..Context::new(300.0)
+        }
+    }
+
+    /// Without a hint the end is tried and refused on its profile; a hint that the
+    /// pinch lay inside skips the ends; a hint that it lay at an end is taken from
+    /// the end flash alone once the tear streams settle (the solver's detailed pass
+    /// then finds the pinch afresh), but still checked while they move.
+    #[test]
+    fn hints_save_profiles_and_only_settled_passes_trust_an_end() {
+        let lines = Lines {
+            profiles: Cell::new(0),
+        };
+        let run = |hint, loose| {
+            lines.profiles.set(0);
+            let flow = hinted_end_pinch(&lines, 2.0, (0.0, 20.0), &context(hint, loose)).unwrap();
+            (flow, lines.profiles.get())
+        };
+        assert_eq!(run(PinchHint::Check, false), (Continue(8.0), 1));
+        assert_eq!(run(PinchHint::Inside, false), (Continue(20.0), 0));
+        assert_eq!(run(PinchHint::End, false), (Break(8.0), 0));
+        assert_eq!(run(PinchHint::End, true), (Continue(8.0), 1));
+        // The search itself finds the inside pinch: 9 − 0.9 q = 2 at q = 70/9.
+        let duty = duty_for_difference(&lines, "test", 2.0, 5.0, (0.0, 8.0), false).unwrap();
+        assert!((duty - 70.0 / 9.0).abs() < 1e-9, "{duty}");
+    }
+}
