@@ -92,9 +92,10 @@ const LOOSE_ABOVE: f64 = 1e-4;
 const HINTED_PASSES: usize = 4;
 
 /// The detailed pass at the converged point may differ from the converging passes
-/// by rounding (its exchangers draw their outlets from the profile); a change of a
-/// tear variable above this many tolerances means a trusted end pinch did not hold.
-const TRUSTED_CHECK: f64 = 1e3;
+/// by rounding (its exchangers draw their outlets from the profile: about 1e-11,
+/// scaled); a change of a tear variable above this, or above ten tolerances, means
+/// an end pinch taken from the hint did not hold.
+const DETAILED_ROUNDING: f64 = 1e-9;
 
 /// The largest scaled difference between two vectors.
 fn largest_change(a: &[f64], b: &[f64]) -> f64 {
@@ -229,12 +230,7 @@ impl Problem<'_> {
             .ok_or_else(|| Error::Internal("a tear stream was not computed".into()))?;
             g[k] = v / self.scales[k];
         }
-        let change = g
-            .iter()
-            .zip(x)
-            .map(|(a, b)| (a - b).abs())
-            .fold(0.0, f64::max);
-        self.last_change.set(change);
+        self.last_change.set(largest_change(&g, x));
         Ok((g, computed, performances))
     }
 
@@ -423,7 +419,8 @@ pub fn solve(plant: &Plant, options: &Options) -> Result<Solution> {
     // there without the passes' hints.
     problem.context.detailed = true;
     let detailed = problem.pass(&converged.x)?;
-    let converged = if largest_change(&detailed, &converged.x) > TRUSTED_CHECK * tolerance {
+    let moved = largest_change(&detailed, &converged.x);
+    let converged = if moved > (10.0 * tolerance).max(DETAILED_ROUNDING) {
         problem.trusting.set(false);
         problem.context.detailed = false;
         let method = options.method.unwrap_or(plant.settings.method);
