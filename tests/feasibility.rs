@@ -68,6 +68,13 @@ fn the_optimiser_stays_feasible() {
     );
     assert_eq!(best.metrics.design_errors, 0);
     assert!(best.infeasible_solves > 0);
+    // Each point is solved once, and its infeasibility counted once.
+    assert!(
+        best.infeasible_solves <= best.solves,
+        "{} infeasible of {} solves",
+        best.infeasible_solves,
+        best.solves
+    );
 
     // Over 2 to 2000 bar, where both ends make no liquid: the feasible optimum.
     let bounded = Bounded::parse("compressor.outlet_pressure=2bar..2000bar").unwrap();

@@ -183,7 +183,7 @@ impl Problem<'_> {
                 c
             })
             .collect();
-        let (metrics, warm) = self.metrics_at(&clamped, start);
+        let (metrics, warm, fresh) = self.metrics_at(&clamped, start);
         let Some(m) = metrics else {
             return (PENALTY, warm);
         };
@@ -203,7 +203,8 @@ impl Problem<'_> {
                 feasible = false;
             }
         }
-        if !feasible {
+        // Counted once a point, as the solves are.
+        if !feasible && fresh {
             self.infeasible.fetch_add(1, Ordering::Relaxed);
         }
         cost += PENALTY * outside;
@@ -217,8 +218,13 @@ impl Problem<'_> {
 
 impl Problem<'_> {
     /// The figures at a point inside the box, solved once and remembered, with
-    /// the converged recycle (`None` for a point solved before or not solved).
-    fn metrics_at(&self, clamped: &[f64], start: Start) -> (Option<Metrics>, Option<WarmStart>) {
+    /// the converged recycle (`None` for a point solved before or not solved) and
+    /// whether it was solved now (not remembered).
+    fn metrics_at(
+        &self,
+        clamped: &[f64],
+        start: Start,
+    ) -> (Option<Metrics>, Option<WarmStart>, bool) {
         let key: Vec<u64> = clamped.iter().map(|v| v.to_bits()).collect();
         if let Some(known) = self
             .solved
@@ -226,7 +232,7 @@ impl Problem<'_> {
             .unwrap_or_else(|e| e.into_inner())
             .get(&key)
         {
-            return (*known, None);
+            return (*known, None, false);
         }
         self.solves.fetch_add(1, Ordering::Relaxed);
         let scaled = self.scaled(clamped);
@@ -257,7 +263,7 @@ impl Problem<'_> {
                 .push((scaled, w.clone()));
             w
         });
-        (metrics, warm)
+        (metrics, warm, true)
     }
 
     /// The flowsheet's overrides with the variables set to `x`.
@@ -330,7 +336,7 @@ fn no_feasible_point(problem: &Problem, min_approach: Option<f64>) -> Error {
             Some(floor) => format!(" or a smallest approach below {floor} K"),
             None => String::new(),
         },
-        solves - infeasible
+        solves.saturating_sub(infeasible)
     ))
 }
 
