@@ -86,7 +86,13 @@ pub struct Fluid {
     pub(crate) residual: ResidualPart,
     /// The inversion curve, traced on first use.
     pub(crate) inversion_cache: std::sync::OnceLock<Result<super::inversion::InversionCurve>>,
+    /// A number of its own among the fluids built in this process, naming its
+    /// residual part in the evaluation kept by `Fluid::residual_at_delta`.
+    pub(crate) identity: u64,
 }
+
+/// The next fluid's `identity`.
+static NEXT_IDENTITY: std::sync::atomic::AtomicU64 = std::sync::atomic::AtomicU64::new(0);
 
 /// Every single-phase property at one (T, ρ).
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -121,9 +127,9 @@ pub struct Properties {
     pub dp_dt: f64,
 }
 
-/// Key of an evaluation of the residual part: which part (its address), τ and δ
-/// (their bits).
-type ResidualKey = (usize, u64, u64);
+/// Key of an evaluation of the residual part: which fluid's (its identity), τ and
+/// δ (their bits).
+type ResidualKey = (u64, u64, u64);
 
 thread_local! {
     /// The last residual evaluation on this thread (see `Fluid::residual_at_delta`).
@@ -212,6 +218,7 @@ impl Fluid {
             ideal,
             residual,
             inversion_cache: std::sync::OnceLock::new(),
+            identity: NEXT_IDENTITY.fetch_add(1, std::sync::atomic::Ordering::Relaxed),
         };
         let mut fluid = fluid;
         fluid.saturation_pressures = fluid
@@ -267,11 +274,7 @@ impl Fluid {
     /// are then evaluated at exactly that root, so the second evaluation is the
     /// first's (the same bits in, the same bits out).
     fn residual_at_delta(&self, factors: &TauFactors, delta: f64) -> ResidualDerivatives {
-        let key = (
-            &self.residual as *const _ as usize,
-            factors.tau().to_bits(),
-            delta.to_bits(),
-        );
+        let key = (self.identity, factors.tau().to_bits(), delta.to_bits());
         LAST_RESIDUAL.with(|last| {
             if let Some((k, r)) = last.get() {
                 if k == key {
