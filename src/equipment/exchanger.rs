@@ -532,31 +532,11 @@ pub fn exchange(
         ExchangerSpec::ColdEndApproach(dt) => sides
             .duty_for_hot_outlet((cold.state.temperature + dt).min(hot.state.temperature))?
             .clamp(0.0, upper),
-        ExchangerSpec::MinimumApproach(dt) => match pinch::hinted_end_pinch(&sides, dt, (0.0, upper), context)? {
-            ControlFlow::Break(duty) => {
-                pinch_at_end = Some(true);
-                duty
-            }
-            ControlFlow::Continue(bound) => {
-            pinch_at_end = Some(false);
-            let at_zero = sides.difference_at_zero_duty(dt)?;
-            if at_zero <= dt {
-                0.0
-            } else {
-                // Without the last pass's duty, start where the difference would
-                // reach the target if it fell linearly to zero at `upper`.
-                let start = duty_hint.unwrap_or(upper * (at_zero - dt) / at_zero);
-                pinch::duty_for_difference(
-                    &sides,
-                    "exchanger duty for a minimum approach",
-                    dt,
-                    start,
-                    (0.0, bound),
-                    context.loose,
-                )?
-            }
-            }
-        },
+        ExchangerSpec::MinimumApproach(dt) => {
+            let (duty, at_end) = minimum_approach_duty(&sides, dt, upper, duty_hint, context)?;
+            pinch_at_end = Some(at_end);
+            duty
+        }
         ExchangerSpec::Effectiveness(e) => {
             let q_max = sides.max_duty(upper, None)?;
             known_max = Some(q_max);
@@ -707,6 +687,38 @@ pub fn exchange(
         ..Performance::default()
     };
     Ok((outlets(hot, cold, hot_out, cold_out), performance))
+}
+
+/// The duty at which the smallest difference is `dt` (at most `upper`), and whether
+/// the pinch lies at an end: an end pinch first ([`pinch::hinted_end_pinch`]), else
+/// the search, from the last pass's duty where there is one.
+fn minimum_approach_duty(
+    sides: &Sides,
+    dt: f64,
+    upper: f64,
+    duty_hint: Option<f64>,
+    context: &Context,
+) -> Result<(f64, bool)> {
+    let bound = match pinch::hinted_end_pinch(sides, dt, (0.0, upper), context)? {
+        ControlFlow::Break(duty) => return Ok((duty, true)),
+        ControlFlow::Continue(bound) => bound,
+    };
+    let at_zero = sides.difference_at_zero_duty(dt)?;
+    if at_zero <= dt {
+        return Ok((0.0, false));
+    }
+    // Without the last pass's duty, start where the difference would reach the
+    // target if it fell linearly to zero at `upper`.
+    let start = duty_hint.unwrap_or(upper * (at_zero - dt) / at_zero);
+    let duty = pinch::duty_for_difference(
+        sides,
+        "exchanger duty for a minimum approach",
+        dt,
+        start,
+        (0.0, bound),
+        context.loose,
+    )?;
+    Ok((duty, false))
 }
 
 /// The two outlet flows, each side keeping its mass flow.
