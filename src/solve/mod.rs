@@ -75,14 +75,44 @@ struct Problem<'a> {
     duty_hints: std::cell::RefCell<Vec<Option<f64>>>,
     /// The largest scaled change of a tear variable over the last pass.
     last_change: std::cell::Cell<f64>,
-    /// For each exchanger sized by its pinch, where it found it on the last pass
-    /// (at an end or not) and the passes since it looked everywhere.
-    pinch_places: std::cell::RefCell<Vec<Option<(bool, usize)>>>,
+    /// For each exchanger sized by its pinch, where it found it lately.
+    pinch_places: std::cell::RefCell<Vec<Option<PinchPlace>>>,
     /// Whether passes pass on where each pinch lay (`Context::pinch_hint`); off
     /// once a converged point failed its check with every pinch found afresh.
     trusting: std::cell::Cell<bool>,
     /// [`LOOSE_ABOVE`], or infinite where the passes are never loose.
     loose_above: f64,
+}
+
+/// Where an exchanger sized by its pinch found it lately, as the next pass's hint.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+struct PinchPlace {
+    /// At an end (else inside).
+    at_end: bool,
+    /// Passes since the exchanger last looked everywhere.
+    passes: usize,
+    /// Found on a full profile (a settled pass), not on a loose pass's coarse one:
+    /// only such an end is taken from its end flash alone.
+    confirmed: bool,
+}
+
+impl PinchPlace {
+    /// The hint for the next pass.
+    fn hint(self) -> PinchHint {
+        match self {
+            PinchPlace {
+                at_end: true,
+                confirmed: true,
+                ..
+            } => PinchHint::End,
+            PinchPlace {
+                at_end: false,
+                passes,
+                ..
+            } if passes < HINTED_PASSES => PinchHint::Inside,
+            _ => PinchHint::Check,
+        }
+    }
 }
 
 /// While the tear variables still change by more than this (scaled) from one pass
@@ -182,9 +212,8 @@ impl Problem<'_> {
                 loose: !self.context.detailed && self.last_change.get() > self.loose_above,
                 pinch_hint: match self.pinch_places.borrow()[u] {
                     _ if self.context.detailed || !self.trusting.get() => PinchHint::Check,
-                    Some((true, _)) => PinchHint::End,
-                    Some((false, n)) if n < HINTED_PASSES => PinchHint::Inside,
-                    _ => PinchHint::Check,
+                    Some(place) => place.hint(),
+                    None => PinchHint::Check,
                 },
                 ..self.context
             };
@@ -196,8 +225,16 @@ impl Problem<'_> {
             let mut places = self.pinch_places.borrow_mut();
             places[u] = match (performance.pinch_at_end, context.pinch_hint) {
                 (None, _) => None,
-                (Some(at_end), PinchHint::Check) => Some((at_end, 0)),
-                (Some(at_end), _) => places[u].map(|(_, n)| (at_end, n + 1)),
+                (Some(at_end), PinchHint::Check) => Some(PinchPlace {
+                    at_end,
+                    passes: 0,
+                    confirmed: !context.loose,
+                }),
+                (Some(at_end), _) => places[u].map(|place| PinchPlace {
+                    at_end,
+                    passes: place.passes + 1,
+                    ..place
+                }),
             };
             drop(places);
             if let (Some(basis), Some(first)) = (unit.flow_basis, outlets.first_mut()) {
@@ -287,7 +324,7 @@ pub fn solve(plant: &Plant, options: &Options) -> Result<Solution> {
 #[derive(Debug, Default)]
 struct FirstPass {
     /// Each unit's pinch place, as `Problem::pinch_places` holds them.
-    pinch_places: Option<Vec<Option<(bool, usize)>>>,
+    pinch_places: Option<Vec<Option<PinchPlace>>>,
     /// The tear streams taken as settled from the first pass on, and never loose
     /// (so that a wrong end hint is never corrected by a coarse pass, and only the
     /// detailed pass's check can find it).
@@ -567,7 +604,14 @@ mod tests {
         let plant = crate::flowsheet::load(&path, &[]).unwrap();
         let reference = solve(&plant, &Options::default()).unwrap();
         let wrong = FirstPass {
-            pinch_places: Some(vec![Some((true, 0)); plant.units.len()]),
+            pinch_places: Some(vec![
+                Some(PinchPlace {
+                    at_end: true,
+                    passes: 0,
+                    confirmed: true,
+                });
+                plant.units.len()
+            ]),
             settled: true,
         };
         let options = Options {
