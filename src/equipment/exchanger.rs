@@ -470,6 +470,7 @@ impl Sides<'_> {
             start,
             (0.0, upper),
             false,
+            None,
         )
     }
 
@@ -717,6 +718,7 @@ fn minimum_approach_duty(
         start,
         (0.0, bound),
         context.loose,
+        None,
     )?;
     Ok((duty, false))
 }

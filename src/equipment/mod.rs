@@ -160,6 +160,10 @@ pub struct Context {
     /// Always [`PinchHint::Check`] on the detailed pass; the solver checks the
     /// converged point with every pinch found afresh.
     pub pinch_hint: PinchHint,
+    /// Where the pinch lay on the pass before (fraction of the duty from the warm
+    /// end), given with [`PinchHint::Inside`] only: a multistream exchanger then
+    /// draws its composite curves only around there.
+    pub pinch_position: Option<f64>,
 }
 
 /// Where an exchanger sized by its pinch found it lately, and so where a pass may
@@ -187,6 +191,7 @@ impl Context {
             duty_hint: None,
             loose: false,
             pinch_hint: PinchHint::Check,
+            pinch_position: None,
         }
     }
 }
@@ -243,4 +248,7 @@ pub struct Performance {
     /// Where an exchanger sized by its pinch found it: at an end (`Some(true)`) or
     /// inside (`Some(false)`); see [`Context::pinch_hint`].
     pub pinch_at_end: Option<bool>,
+    /// Where a pinch searched for inside lay (fraction of the duty from the warm
+    /// end), where the exchanger reports it; see [`Context::pinch_position`].
+    pub pinch_position: Option<f64>,
 }

@@ -406,6 +406,9 @@ impl Curve<'_, '_> {
     }
 }
 
+/// Nodes either side of the last pass's pinch that a hinted search draws.
+const NEAR_NODES: usize = 2;
+
 /// Substitution steps for a stream's pressure at a temperature.
 const PRESSURE_STEPS: usize = 30;
 
@@ -573,6 +576,8 @@ struct Arrangement<'a> {
     /// Each composite's streams' last states at a single position (the slope's
     /// two evaluations are at the same position), hot then cold.
     position_seeds: std::cell::RefCell<[Vec<Option<State>>; 2]>,
+    /// Where the last refined pinch lay (fraction of the duty from the warm end).
+    last_position: std::cell::Cell<Option<f64>>,
 }
 
 /// Composite curves drawn on a duty grid: node positions (fraction of the duty
@@ -666,15 +671,23 @@ impl<'a> Arrangement<'a> {
     }
 
     /// The composite curves for `total` W on `segments` equal duty steps, with every
-    /// stream's ends added as nodes.
-    fn curves(&self, total: f64, segments: usize) -> Result<(Curves, [Composite<'_, 'a>; 2])> {
+    /// stream's ends added as nodes; with `window` (a range of node numbers), only
+    /// the nodes from the first to the last of it, ends included.
+    fn curves(
+        &self,
+        total: f64,
+        segments: usize,
+        window: Option<(usize, usize)>,
+    ) -> Result<(Curves, [Composite<'_, 'a>; 2])> {
         let (hot, cold) = self.composites(total)?;
         let n = segments.max(1);
-        let mut positions: Vec<f64> = (0..=n).map(|k| k as f64 / n as f64).collect();
+        let (first, last) = window.unwrap_or((0, n));
+        let mut positions: Vec<f64> = (first..=last).map(|k| k as f64 / n as f64).collect();
+        let (from, to) = (first as f64 / n as f64, last as f64 / n as f64);
         if total > 0.0 {
             for (_, heat) in hot.breakpoints.iter().chain(&cold.breakpoints) {
                 let f = heat / total;
-                if positions.iter().all(|p| (p - f).abs() > 1e-9) && f > 0.0 && f < 1.0 {
+                if positions.iter().all(|p| (p - f).abs() > 1e-9) && f > from && f < to {
                     positions.push(f);
                 }
             }
@@ -716,15 +729,16 @@ impl<'a> Arrangement<'a> {
     }
 }
 
-impl PinchSearch for Arrangement<'_> {
-    type Profile = Curves;
-
-    fn segments(&self) -> usize {
-        self.segments
-    }
-
-    fn pinch_on(&self, total: f64, segments: usize) -> Result<Pinch<Curves>> {
-        let (curves, [hot, cold]) = self.curves(total, segments)?;
+impl<'a> Arrangement<'a> {
+    /// The refined pinch on the composite curves for `total` W on `segments`
+    /// segments, all of them or only the nodes of `window`.
+    fn pinch_in(
+        &self,
+        total: f64,
+        segments: usize,
+        window: Option<(usize, usize)>,
+    ) -> Result<Pinch<Curves>> {
+        let (curves, [hot, cold]) = self.curves(total, segments, window)?;
         let differences: Vec<f64> = curves
             .hot
             .iter()
@@ -738,6 +752,7 @@ impl PinchSearch for Arrangement<'_> {
                 Ok(hot.temperature_at(f * total, &mut hot_seeds)?
                     - cold.temperature_at(f * total, &mut cold_seeds)?)
             })?;
+        self.last_position.set(Some(position));
         Ok(Pinch {
             duty: total,
             difference,
@@ -745,7 +760,44 @@ impl PinchSearch for Arrangement<'_> {
             profile: curves,
         })
     }
+}
 
+impl PinchSearch for Arrangement<'_> {
+    type Profile = Curves;
+
+    fn segments(&self) -> usize {
+        self.segments
+    }
+
+    fn pinch_on(&self, total: f64, segments: usize) -> Result<Pinch<Curves>> {
+        self.pinch_in(total, segments, None)
+    }
+
+    /// On the nodes two either side of the one nearest `position` (and the stream
+    /// ends between them): where the smallest of them lies inside that stretch, or
+    /// at the exchanger's end, the refinement starts from the same three nodes as
+    /// on the whole profile and gives the same pinch.
+    fn pinch_near(&self, total: f64, segments: usize, position: Option<f64>) -> Result<Pinch<Curves>> {
+        let Some(position) = position.filter(|p| p.is_finite()) else {
+            return self.pinch_on(total, segments);
+        };
+        let n = segments.max(1);
+        let centre = (position.clamp(0.0, 1.0) * n as f64).round() as usize;
+        let window = (centre.saturating_sub(NEAR_NODES), (centre + NEAR_NODES).min(n));
+        let pinch = self.pinch_in(total, segments, Some(window))?;
+        let differences = pinch.profile.hot.iter().zip(&pinch.profile.cold).map(|(h, c)| h - c);
+        let smallest = differences
+            .enumerate()
+            .fold((0, f64::INFINITY), |a, (k, d)| if d < a.1 { (k, d) } else { a })
+            .0;
+        let edge = pinch.profile.positions.len() - 1;
+        let inside = (smallest > 0 || window.0 == 0) && (smallest < edge || window.1 == n);
+        if inside {
+            Ok(pinch)
+        } else {
+            self.pinch_on(total, segments)
+        }
+    }
     /// By central differences at the pinch's position.
     fn pinch_slope(&self, pinch: &Pinch<Curves>) -> Result<f64> {
         let step = (1e-6 * pinch.duty).max(1e-9);
@@ -803,13 +855,18 @@ fn searched_duty(
     context: &Context,
 ) -> Result<f64> {
     let segments = arrangement.segments;
+    // Where the pinch lay inside on the pass before, the profiles are drawn around
+    // there only (the solver's detailed pass draws them whole).
+    let near = context.pinch_position;
     // On a coarse profile when clearly above the target (it decides only whether
     // some duty meets it, and the first guess).
-    let coarse = arrangement.pinch_on(low, (segments / 5).max(8))?.difference;
+    let coarse = arrangement
+        .pinch_near(low, (segments / 5).max(8), near)?
+        .difference;
     let at_low = if coarse > dt + 0.05 {
         coarse
     } else {
-        arrangement.pinch_on(low, segments)?.difference
+        arrangement.pinch_near(low, segments, near)?.difference
     };
     if at_low <= dt {
         return Ok(low);
@@ -828,6 +885,7 @@ fn searched_duty(
         start,
         (low, bound),
         context.loose,
+        near,
     )
 }
 
@@ -884,11 +942,13 @@ pub fn exchange(
         segments: design.segments,
         outlet_seeds: std::cell::RefCell::new(vec![None; count]),
         position_seeds: std::cell::RefCell::new([vec![None; count], vec![None; count]]),
+        last_position: std::cell::Cell::new(None),
     };
     let (known_hot, known_cold) = (arrangement.known(Side::Hot), arrangement.known(Side::Cold));
     let free_of = |side: Side| arrangement.free(side).map(|i| &arrangement.members[i]);
     // Where the pinch was found (for the next pass's hint).
     let mut pinch_at_end = None;
+    let mut pinch_position = None;
     let total = match design.minimum_approach {
         None => {
             // One free stream takes what the energy balance leaves.
@@ -941,7 +1001,9 @@ pub fn exchange(
                     }
                     ControlFlow::Continue(bound) => {
                         pinch_at_end = Some(false);
-                        searched_duty(&arrangement, dt, (low, upper), bound, context)?
+                        let duty = searched_duty(&arrangement, dt, (low, upper), bound, context)?;
+                        pinch_position = arrangement.last_position.get();
+                        duty
                     }
                 }
             }
@@ -967,6 +1029,7 @@ pub fn exchange(
         heat_in: vec![(leak, context.ambient)],
         duty: Some(total),
         pinch_at_end,
+        pinch_position,
         ..Performance::default()
     };
     if context.detailed && total > 0.0 {

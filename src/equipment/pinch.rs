@@ -127,6 +127,23 @@ pub trait PinchSearch {
     /// The profile at `duty` on `segments` segments and its refined pinch.
     fn pinch_on(&self, duty: f64, segments: usize) -> Result<Pinch<Self::Profile>>;
 
+    /// The pinch at `duty` where it lay near `position` (the fraction of the duty
+    /// from the warm end) on the pass before: where the exchanger can, it draws only
+    /// the nodes of the `segments`-segment profile around there and refines the
+    /// smallest of them as [`PinchSearch::pinch_on`] would, so that the answer is
+    /// the same wherever the pinch has stayed near `position`; the profile returned
+    /// is then only that stretch. Without a position, or where the smallest node
+    /// lies at the stretch's edge, the whole profile. By default, the whole profile.
+    fn pinch_near(
+        &self,
+        duty: f64,
+        segments: usize,
+        position: Option<f64>,
+    ) -> Result<Pinch<Self::Profile>> {
+        let _ = position;
+        self.pinch_on(duty, segments)
+    }
+
     /// The slope of the smallest temperature difference with the duty, K/W: the
     /// difference at the pinch's position, differentiated. Where the pinch lies
     /// inside, the difference is smallest there, so the pinch moving with the duty
@@ -243,7 +260,9 @@ const COARSE_MINIMUM: usize = 8;
 /// ends after one profile. Only the second stage's answer counts.
 ///
 /// With `loose` (the tear streams still far from converged), the coarse stage's
-/// answer is returned as it is.
+/// answer is returned as it is. With `near` (where the pinch lay inside on the
+/// pass before), each profile is drawn only around the pinch
+/// ([`PinchSearch::pinch_near`]), following it from step to step.
 ///
 /// Callers try [`end_pinch`] first, which needs no search.
 pub fn duty_for_difference<S: PinchSearch>(
@@ -253,11 +272,15 @@ pub fn duty_for_difference<S: PinchSearch>(
     start: f64,
     (low, upper): (f64, f64),
     loose: bool,
+    near: Option<f64>,
 ) -> Result<f64> {
     let segments = search.segments();
     let coarse = segments / COARSE_FRACTION;
+    let stage = |start: f64, segments: usize| {
+        duty_search(search, solver, target, start, (low, upper), segments, near)
+    };
     let start = if coarse >= COARSE_MINIMUM {
-        let rough = duty_search(search, solver, target, start, low, upper, coarse)?;
+        let rough = stage(start, coarse)?;
         if loose {
             return Ok(rough);
         }
@@ -265,7 +288,7 @@ pub fn duty_for_difference<S: PinchSearch>(
     } else {
         start
     };
-    duty_search(search, solver, target, start, low, upper, segments)
+    stage(start, segments)
 }
 
 /// One stage of [`duty_for_difference`], on profiles of `segments` segments:
@@ -282,9 +305,9 @@ fn duty_search<S: PinchSearch>(
     solver: &'static str,
     target: f64,
     start: f64,
-    low: f64,
-    upper: f64,
+    (low, upper): (f64, f64),
     segments: usize,
+    mut near: Option<f64>,
 ) -> Result<f64> {
     let tolerance = 1e-12 * upper;
     let (mut low, mut high) = (low, upper);
@@ -295,7 +318,8 @@ fn duty_search<S: PinchSearch>(
     };
     let mut last = f64::NAN;
     for _ in 0..DUTY_STEPS {
-        let pinch = search.pinch_on(q, segments)?;
+        let pinch = search.pinch_near(q, segments, near)?;
+        near = near.map(|_| pinch.position);
         let residual = pinch.difference - target;
         last = residual;
         if !residual.is_finite() {
@@ -416,7 +440,7 @@ mod tests {
         assert_eq!(run(PinchHint::End, false), (Break(8.0), 0));
         assert_eq!(run(PinchHint::End, true), (Continue(8.0), 1));
         // The search itself finds the inside pinch: 9 − 0.9 q = 2 at q = 70/9.
-        let duty = duty_for_difference(&lines, "test", 2.0, 5.0, (0.0, 8.0), false).unwrap();
+        let duty = duty_for_difference(&lines, "test", 2.0, 5.0, (0.0, 8.0), false, None).unwrap();
         assert!((duty - 70.0 / 9.0).abs() < 1e-9, "{duty}");
     }
 }

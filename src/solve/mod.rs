@@ -85,7 +85,7 @@ struct Problem<'a> {
 }
 
 /// Where an exchanger sized by its pinch found it lately, as the next pass's hint.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq)]
 struct PinchPlace {
     /// At an end (else inside).
     at_end: bool,
@@ -94,6 +94,8 @@ struct PinchPlace {
     /// Found on a full profile (a settled pass), not on a loose pass's coarse one:
     /// only such an end is taken from its end flash alone.
     confirmed: bool,
+    /// Where an inside pinch lay, where the exchanger reports it.
+    position: Option<f64>,
 }
 
 impl PinchPlace {
@@ -217,6 +219,13 @@ impl Problem<'_> {
                 },
                 ..self.context
             };
+            let context = Context {
+                pinch_position: match context.pinch_hint {
+                    PinchHint::Inside => self.pinch_places.borrow()[u].and_then(|p| p.position),
+                    _ => None,
+                },
+                ..context
+            };
             let (mut outlets, performance) = unit
                 .spec
                 .run(&inlets, &context)
@@ -229,10 +238,12 @@ impl Problem<'_> {
                     at_end,
                     passes: 0,
                     confirmed: !context.loose,
+                    position: performance.pinch_position,
                 }),
                 (Some(at_end), _) => places[u].map(|place| PinchPlace {
                     at_end,
                     passes: place.passes + 1,
+                    position: performance.pinch_position,
                     ..place
                 }),
             };
@@ -609,6 +620,7 @@ mod tests {
                     at_end: true,
                     passes: 0,
                     confirmed: true,
+                    position: None,
                 });
                 plant.units.len()
             ]),
