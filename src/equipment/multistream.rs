@@ -855,19 +855,20 @@ fn searched_duty(
     context: &Context,
 ) -> Result<f64> {
     let segments = arrangement.segments;
-    // Where the pinch lay inside on the pass before, the profiles are drawn around
-    // there only (the solver's detailed pass draws them whole).
-    let near = context.pinch_position;
     // On a coarse profile when clearly above the target (it decides only whether
     // some duty meets it, and the first guess).
-    let coarse = arrangement
-        .pinch_near(low, (segments / 5).max(8), near)?
-        .difference;
+    let coarse = arrangement.pinch_on(low, (segments / 5).max(8))?.difference;
     let at_low = if coarse > dt + 0.05 {
         coarse
     } else {
-        arrangement.pinch_near(low, segments, near)?.difference
+        arrangement.pinch_on(low, segments)?.difference
     };
+    // Where the pinch lay inside on the pass before, a settled pass's search draws
+    // its full profiles around there only (the solver's detailed pass draws them
+    // whole). Loose passes draw their coarse profiles whole: they are cheap, and
+    // a coarse stretch that missed a narrow inside pinch one pass and caught it the
+    // next would make the passes disagree and the recycle take longer.
+    let near = context.pinch_position.filter(|_| !context.loose);
     if at_low <= dt {
         return Ok(low);
     }

@@ -600,6 +600,25 @@ fn converge_from(
 mod tests {
     use super::*;
 
+    /// An end found on a loose pass's coarse profile is looked at again (it may
+    /// hide an inside pinch the coarse profile stepped over); one found on the full
+    /// profile is trusted; an inside pinch is searched for near where it lay for
+    /// a few passes, then looked for everywhere again.
+    #[test]
+    fn only_an_end_found_on_the_full_profile_is_trusted() {
+        let place = |at_end, passes, confirmed| PinchPlace {
+            at_end,
+            passes,
+            confirmed,
+            position: Some(0.4),
+        };
+        assert_eq!(place(true, 0, false).hint(), PinchHint::Check);
+        assert_eq!(place(true, 0, true).hint(), PinchHint::End);
+        assert_eq!(place(true, 9, true).hint(), PinchHint::End);
+        assert_eq!(place(false, 0, false).hint(), PinchHint::Inside);
+        assert_eq!(place(false, HINTED_PASSES, true).hint(), PinchHint::Check);
+    }
+
     /// Hints that every pinch lies at an end, given to settled passes of the
     /// nitrogen Claude demo started from its converged tear streams: its
     /// exchangers' pinches do not all lie at an end, so the passes take wrong
