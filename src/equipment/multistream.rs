@@ -17,7 +17,7 @@
 use super::exchanger::{ExchangerReport, ExchangerSpec, ProfilePoint, APPROACH_TOLERANCE};
 use super::kind::{intern, Coupling, EquipmentKind, Ports, Reader};
 use super::pinch::{self, Pinch, PinchSearch};
-use super::{Context, Details, Equipment, Flow, Performance};
+use super::{Context, Details, Equipment, Flow, Performance, PinchHint};
 use std::ops::ControlFlow;
 use crate::error::{Error, FlowsheetError, Result};
 use crate::fluids::conversion::StreamPath;
@@ -855,6 +855,28 @@ fn searched_duty(
     context: &Context,
 ) -> Result<f64> {
     let segments = arrangement.segments;
+    // Where the pinch lay inside on the pass before, a settled pass's search draws
+    // its full profiles around there only (the solver's detailed pass draws them
+    // whole). Loose passes draw their coarse profiles whole: they are cheap, and
+    // a coarse stretch that missed a narrow inside pinch one pass and caught it the
+    // next would make the passes disagree and the recycle take longer.
+    let near = context.pinch_position.filter(|_| !context.loose);
+    let hinted = context.pinch_hint == PinchHint::Inside;
+    if let (true, Some(start)) = (hinted, context.duty_hint) {
+        // The pass before found a duty with the pinch inside: the search starts
+        // there without first looking at the lowest duty. Where the difference is
+        // below the target even there, the search's bracket closes on `low`.
+        let duty = pinch::duty_for_difference(
+            arrangement,
+            "multistream exchanger duty for a minimum approach",
+            dt,
+            start,
+            (low, bound),
+            context.loose,
+            near,
+        )?;
+        return Ok(if duty - low <= 1e-9 * bound { low } else { duty });
+    }
     // On a coarse profile when clearly above the target (it decides only whether
     // some duty meets it, and the first guess).
     let coarse = arrangement.pinch_on(low, (segments / 5).max(8))?.difference;
@@ -863,12 +885,6 @@ fn searched_duty(
     } else {
         arrangement.pinch_on(low, segments)?.difference
     };
-    // Where the pinch lay inside on the pass before, a settled pass's search draws
-    // its full profiles around there only (the solver's detailed pass draws them
-    // whole). Loose passes draw their coarse profiles whole: they are cheap, and
-    // a coarse stretch that missed a narrow inside pinch one pass and caught it the
-    // next would make the passes disagree and the recycle take longer.
-    let near = context.pinch_position.filter(|_| !context.loose);
     if at_low <= dt {
         return Ok(low);
     }

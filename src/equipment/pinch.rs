@@ -246,6 +246,11 @@ const DUTY_STEPS: usize = 60;
 /// A Newton step on the duty below this fraction of the duty is the last one.
 const ACCEPTED_STEP: f64 = 1e-8;
 
+/// The same on a loose pass, whose answer is the coarse stage's: the tear streams
+/// still move by more than 1e-4 of themselves a pass, so the duty need not be
+/// closer than this.
+const LOOSE_ACCEPTED_STEP: f64 = 1e-6;
+
 /// The duty search's first stage uses this fraction of the segments…
 const COARSE_FRACTION: usize = 5;
 
@@ -276,11 +281,21 @@ pub fn duty_for_difference<S: PinchSearch>(
 ) -> Result<f64> {
     let segments = search.segments();
     let coarse = segments / COARSE_FRACTION;
-    let stage = |start: f64, segments: usize| {
-        duty_search(search, solver, target, start, (low, upper), segments, near)
+    let stage = |start: f64, segments: usize, accepted: f64| {
+        let stage = Stage {
+            segments,
+            near,
+            accepted,
+        };
+        duty_search(search, solver, target, start, (low, upper), stage)
     };
     let start = if coarse >= COARSE_MINIMUM {
-        let rough = stage(start, coarse)?;
+        let accepted = if loose {
+            LOOSE_ACCEPTED_STEP
+        } else {
+            ACCEPTED_STEP
+        };
+        let rough = stage(start, coarse, accepted)?;
         if loose {
             return Ok(rough);
         }
@@ -288,16 +303,27 @@ pub fn duty_for_difference<S: PinchSearch>(
     } else {
         start
     };
-    stage(start, segments)
+    stage(start, segments, ACCEPTED_STEP)
 }
 
-/// One stage of [`duty_for_difference`], on profiles of `segments` segments:
+/// How one stage of the duty search draws its profiles and when it stops.
+struct Stage {
+    /// Segments of each profile.
+    segments: usize,
+    /// Where the pinch lay on the pass before, to draw only the stretch around it
+    /// ([`PinchSearch::pinch_near`]).
+    near: Option<f64>,
+    /// A Newton step below this fraction of the duty is the last.
+    accepted: f64,
+}
+
+/// One stage of [`duty_for_difference`], on profiles of `stage.segments` segments:
 /// Newton steps on the duty with the slope at the pinch, from `start` (the last
 /// pass's duty when there is one), inside a bracket that every step narrows; a step
 /// that would leave the bracket bisects it. A Newton step this small leaves an error
 /// of the order of its square over the duty (the slope changes on the scale of the
 /// duty itself), far below the tolerance, so it is taken without a further profile.
-/// Stops when a step is below [`ACCEPTED_STEP`] of the duty or 1e-12 of `upper`, or
+/// Stops when a step is below `stage.accepted` of the duty or 1e-12 of `upper`, or
 /// the bracket below the latter; not stopping within [`DUTY_STEPS`] steps is an error
 /// naming `solver`.
 fn duty_search<S: PinchSearch>(
@@ -306,9 +332,13 @@ fn duty_search<S: PinchSearch>(
     target: f64,
     start: f64,
     (low, upper): (f64, f64),
-    segments: usize,
-    mut near: Option<f64>,
+    stage: Stage,
 ) -> Result<f64> {
+    let Stage {
+        segments,
+        mut near,
+        accepted,
+    } = stage;
     let tolerance = 1e-12 * upper;
     let (mut low, mut high) = (low, upper);
     let mut q = if start > low && start < upper {
@@ -338,7 +368,7 @@ fn duty_search<S: PinchSearch>(
         if !(slope < 0.0 && next > low && next < high) {
             next = 0.5 * (low + high);
         }
-        if (next - q).abs() <= tolerance.max(ACCEPTED_STEP * q) || high - low <= tolerance {
+        if (next - q).abs() <= tolerance.max(accepted * q) || high - low <= tolerance {
             return Ok(next);
         }
         q = next;
