@@ -373,9 +373,13 @@ impl Curve<'_, '_> {
         })
     }
 
-    /// The heat exchanged from the inlet to `temperature`, W, with the pressure
-    /// taken where `exchanged` W have been exchanged (one flash; repeated, it is
-    /// the substitution of [`Curve::exchanged_at`]).
+    /// The heat exchanged from the inlet to `temperature`, W, from one flash at the
+    /// pressure where `exchanged` W have been exchanged, corrected to first order for
+    /// the pressure where the answer lies: the pressure falls by Δp/q per watt
+    /// exchanged, and the enthalpy moves with it at (∂h/∂p)_T = −c_p·μ_JT, so one
+    /// Newton step on e = g(e) is taken from `exchanged` (its error is of second
+    /// order in how far `exchanged` was off). Repeated, it is the substitution of
+    /// [`Curve::exchanged_at`], which then settles in a step or two.
     fn exchanged_with_pressure_from(&self, temperature: f64, exchanged: f64) -> Result<f64> {
         let m = self.member.inlet.flow;
         let q = self.duty;
@@ -386,7 +390,22 @@ impl Curve<'_, '_> {
         };
         let p = self.member.pressure_after(exchanged, q);
         let state = self.member.path.state_at(temperature, p)?;
-        Ok(((state.enthalpy - self.member.inlet.state.enthalpy) / per_exchanged).abs())
+        let change = state.enthalpy - self.member.inlet.state.enthalpy;
+        let plain = (change / per_exchanged).abs();
+        let drop = self.member.spec.pressure_drop;
+        let (Some(cp), Some(joule_thomson)) = (state.cp(), state.joule_thomson()) else {
+            return Ok(plain);
+        };
+        if drop == 0.0 || q <= 0.0 {
+            return Ok(plain);
+        }
+        // dg/de: the change's sign, (∂h/∂p)_T and dp/de = −Δp/q.
+        let slope = change.signum() * (-cp * joule_thomson) * (-drop / q) / per_exchanged;
+        if slope.is_finite() && slope.abs() < 0.5 {
+            Ok((plain - slope * exchanged) / (1.0 - slope))
+        } else {
+            Ok(plain)
+        }
     }
 
     /// The heat exchanged from the inlet to `temperature`, W, with the pressure
