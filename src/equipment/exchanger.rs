@@ -470,7 +470,7 @@ impl Sides<'_> {
             start,
             (0.0, upper),
             false,
-            None,
+            (None, false),
         )
     }
 
@@ -718,7 +718,7 @@ fn minimum_approach_duty(
         start,
         (0.0, bound),
         context.loose,
-        None,
+        (None, false),
     )?;
     Ok((duty, false))
 }

@@ -892,7 +892,7 @@ fn searched_duty(
             start,
             (low, bound),
             context.loose,
-            near,
+            (near, true),
         )?;
         return Ok(if duty - low <= 1e-9 * bound { low } else { duty });
     }
@@ -921,7 +921,7 @@ fn searched_duty(
         start,
         (low, bound),
         context.loose,
-        near,
+        (near, false),
     )
 }
 

@@ -265,9 +265,10 @@ const COARSE_MINIMUM: usize = 8;
 /// ends after one profile. Only the second stage's answer counts.
 ///
 /// With `loose` (the tear streams still far from converged), the coarse stage's
-/// answer is returned as it is. With `near` (where the pinch lay inside on the
-/// pass before), each profile is drawn only around the pinch
-/// ([`PinchSearch::pinch_near`]), following it from step to step.
+/// answer is returned as it is. With `follow` (the pinch lay inside on the pass
+/// before), each profile after the first is drawn only around the last step's
+/// pinch ([`PinchSearch::pinch_near`]), and the first too where `near` gives where
+/// it lay.
 ///
 /// Callers try [`end_pinch`] first, which needs no search.
 pub fn duty_for_difference<S: PinchSearch>(
@@ -277,7 +278,7 @@ pub fn duty_for_difference<S: PinchSearch>(
     start: f64,
     (low, upper): (f64, f64),
     loose: bool,
-    near: Option<f64>,
+    (near, follow): (Option<f64>, bool),
 ) -> Result<f64> {
     let segments = search.segments();
     let coarse = segments / COARSE_FRACTION;
@@ -285,6 +286,7 @@ pub fn duty_for_difference<S: PinchSearch>(
         let stage = Stage {
             segments,
             near,
+            follow,
             accepted,
         };
         duty_search(search, solver, target, start, (low, upper), stage)
@@ -313,6 +315,9 @@ struct Stage {
     /// Where the pinch lay on the pass before, to draw only the stretch around it
     /// ([`PinchSearch::pinch_near`]).
     near: Option<f64>,
+    /// Each step draws the stretch around the pinch of the step before (the first
+    /// step the whole profile, without `near`).
+    follow: bool,
     /// A Newton step below this fraction of the duty is the last.
     accepted: f64,
 }
@@ -337,6 +342,7 @@ fn duty_search<S: PinchSearch>(
     let Stage {
         segments,
         mut near,
+        follow,
         accepted,
     } = stage;
     let tolerance = 1e-12 * upper;
@@ -349,7 +355,9 @@ fn duty_search<S: PinchSearch>(
     let mut last = f64::NAN;
     for _ in 0..DUTY_STEPS {
         let pinch = search.pinch_near(q, segments, near)?;
-        near = near.map(|_| pinch.position);
+        if follow {
+            near = Some(pinch.position);
+        }
         let residual = pinch.difference - target;
         last = residual;
         if !residual.is_finite() {
@@ -470,7 +478,8 @@ mod tests {
         assert_eq!(run(PinchHint::End, false), (Break(8.0), 0));
         assert_eq!(run(PinchHint::End, true), (Continue(8.0), 1));
         // The search itself finds the inside pinch: 9 − 0.9 q = 2 at q = 70/9.
-        let duty = duty_for_difference(&lines, "test", 2.0, 5.0, (0.0, 8.0), false, None).unwrap();
+        let duty = duty_for_difference(&lines, "test", 2.0, 5.0, (0.0, 8.0), false, (None, false))
+            .unwrap();
         assert!((duty - 70.0 / 9.0).abs() < 1e-9, "{duty}");
     }
 }

@@ -281,14 +281,14 @@ impl Blend {
         liquid: bool,
         near: Option<(f64, f64)>,
     ) -> Result<(Properties, Properties)> {
+        // Each species' properties straight after its density: the density solve's
+        // last evaluation, kept per thread, then serves them.
         let para_density =
             Self::species_density(self.para, temperature, pressure, liquid, near.map(|n| n.0))?;
+        let para = self.para.properties(temperature, para_density);
         let ortho_density =
             Self::species_density(self.ortho, temperature, pressure, liquid, near.map(|n| n.1))?;
-        Ok((
-            self.para.properties(temperature, para_density),
-            self.ortho.properties(temperature, ortho_density),
-        ))
+        Ok((para, self.ortho.properties(temperature, ortho_density)))
     }
 
     /// The solution's properties from its species' properties at one (T, p).
