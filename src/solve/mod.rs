@@ -91,9 +91,6 @@ struct PinchPlace {
     at_end: bool,
     /// Passes since the exchanger last looked everywhere.
     passes: usize,
-    /// Found on a full profile (a settled pass), not on a loose pass's coarse one:
-    /// only such an end is taken from its end flash alone.
-    confirmed: bool,
     /// Where an inside pinch lay, where the exchanger reports it.
     position: Option<f64>,
 }
@@ -102,11 +99,7 @@ impl PinchPlace {
     /// The hint for the next pass.
     fn hint(self) -> PinchHint {
         match self {
-            PinchPlace {
-                at_end: true,
-                confirmed: true,
-                ..
-            } => PinchHint::End,
+            PinchPlace { at_end: true, .. } => PinchHint::End,
             PinchPlace {
                 at_end: false,
                 passes,
@@ -237,7 +230,6 @@ impl Problem<'_> {
                 (Some(at_end), PinchHint::Check) => Some(PinchPlace {
                     at_end,
                     passes: 0,
-                    confirmed: !context.loose,
                     position: performance.pinch_position,
                 }),
                 (Some(at_end), _) => places[u].map(|place| PinchPlace {
@@ -600,23 +592,21 @@ fn converge_from(
 mod tests {
     use super::*;
 
-    /// An end found on a loose pass's coarse profile is looked at again (it may
-    /// hide an inside pinch the coarse profile stepped over); one found on the full
-    /// profile is trusted; an inside pinch is searched for near where it lay for
-    /// a few passes, then looked for everywhere again.
+    /// An end pinch is taken from its end flash on the passes after (the detailed
+    /// pass checks it); an inside pinch is searched for near where it lay for a few
+    /// passes, then looked for everywhere again.
     #[test]
-    fn only_an_end_found_on_the_full_profile_is_trusted() {
-        let place = |at_end, passes, confirmed| PinchPlace {
+    fn pinch_places_give_their_hints() {
+        let place = |at_end, passes| PinchPlace {
             at_end,
             passes,
-            confirmed,
             position: Some(0.4),
         };
-        assert_eq!(place(true, 0, false).hint(), PinchHint::Check);
-        assert_eq!(place(true, 0, true).hint(), PinchHint::End);
-        assert_eq!(place(true, 9, true).hint(), PinchHint::End);
-        assert_eq!(place(false, 0, false).hint(), PinchHint::Inside);
-        assert_eq!(place(false, HINTED_PASSES, true).hint(), PinchHint::Check);
+        assert_eq!(place(true, 0).hint(), PinchHint::End);
+        assert_eq!(place(true, 9).hint(), PinchHint::End);
+        assert_eq!(place(false, 0).hint(), PinchHint::Inside);
+        assert_eq!(place(false, HINTED_PASSES - 1).hint(), PinchHint::Inside);
+        assert_eq!(place(false, HINTED_PASSES).hint(), PinchHint::Check);
     }
 
     /// Hints that every pinch lies at an end, given to settled passes of the
@@ -638,7 +628,6 @@ mod tests {
                 Some(PinchPlace {
                     at_end: true,
                     passes: 0,
-                    confirmed: true,
                     position: None,
                 });
                 plant.units.len()
