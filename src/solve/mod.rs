@@ -236,7 +236,6 @@ impl Problem<'_> {
                     at_end,
                     passes: place.passes + 1,
                     position: performance.pinch_position,
-                    ..place
                 }),
             };
             drop(places);
