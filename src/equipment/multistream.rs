@@ -817,12 +817,15 @@ impl PinchSearch for Arrangement<'_> {
             self.pinch_on(total, segments)
         }
     }
-    /// By central differences at the pinch's position.
+
+    /// By a forward difference at the pinch's position: the difference at the
+    /// pinch's own duty is known, so one more point is drawn. The slope only steers
+    /// the Newton steps (its error of about 1e-6 of itself leaves the answer's error
+    /// near 1e-6 of the last step, far below the tolerance).
     fn pinch_slope(&self, pinch: &Pinch<Curves>) -> Result<f64> {
         let step = (1e-6 * pinch.duty).max(1e-9);
         let above = self.difference_at(pinch.duty + step, pinch.position)?;
-        let below = self.difference_at(pinch.duty - step, pinch.position)?;
-        Ok((above - below) / (2.0 * step))
+        Ok((above - pinch.difference) / step)
     }
 
     /// Warm end: the free cold stream leaving at the warmest hot inlet's temperature

@@ -247,9 +247,10 @@ const DUTY_STEPS: usize = 60;
 const ACCEPTED_STEP: f64 = 1e-8;
 
 /// The same on a loose pass, whose answer is the coarse stage's: the tear streams
-/// still move by more than 1e-4 of themselves a pass, so the duty need not be
-/// closer than this.
-const LOOSE_ACCEPTED_STEP: f64 = 1e-6;
+/// still move by more than 1e-4 of themselves a pass. The duty returned is the one
+/// after that last step, whose error is about the square of the step over the duty
+/// (1e-8 of it), so the loose passes still agree with one another closely.
+const LOOSE_ACCEPTED_STEP: f64 = 1e-4;
 
 /// The duty search's first stage uses this fraction of the segments…
 const COARSE_FRACTION: usize = 5;
