@@ -179,6 +179,9 @@ pub enum PinchHint {
     End,
     /// Inside, lately: search for it, without trying the ends first.
     Inside,
+    /// Inside for several passes: search for it on whole profiles, without trying
+    /// the ends first (a whole profile shows a pinch that has moved to an end too).
+    Whole,
 }
 
 impl Context {

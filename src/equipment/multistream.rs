@@ -16,7 +16,7 @@
 
 use super::exchanger::{ExchangerReport, ExchangerSpec, ProfilePoint, APPROACH_TOLERANCE};
 use super::kind::{intern, Coupling, EquipmentKind, Ports, Reader};
-use super::pinch::{self, Pinch, PinchSearch};
+use super::pinch::{self, Moving, Pinch, PinchSearch};
 use super::{Context, Details, Equipment, Flow, Performance, PinchHint};
 use std::ops::ControlFlow;
 use crate::error::{Error, FlowsheetError, Result};
@@ -425,6 +425,10 @@ impl Curve<'_, '_> {
     }
 }
 
+/// Local minima of a profile tried, smallest first, for one that falls with the
+/// duty where the pinch sits on a plateau.
+const MOVING_CANDIDATES: usize = 3;
+
 /// Nodes either side of the last pass's pinch that a hinted search draws.
 const NEAR_NODES: usize = 2;
 
@@ -828,6 +832,51 @@ impl PinchSearch for Arrangement<'_> {
         Ok((above - pinch.difference) / step)
     }
 
+    /// From the nodes of the whole profile: its local minima other than the node
+    /// nearest the pinch, smallest first, each with its slope by a forward
+    /// difference at its position, until one falls with the duty.
+    fn moving_minimum(&self, pinch: &Pinch<Curves>, segments: usize) -> Result<Option<Moving>> {
+        let whole;
+        let curves = match (pinch.profile.positions.first(), pinch.profile.positions.last()) {
+            (Some(&first), Some(&last)) if first == 0.0 && last == 1.0 => &pinch.profile,
+            _ => {
+                whole = self.curves(pinch.duty, segments, None)?.0;
+                &whole
+            }
+        };
+        let differences: Vec<f64> = curves.hot.iter().zip(&curves.cold).map(|(h, c)| h - c).collect();
+        let n = differences.len();
+        let own = (0..n)
+            .min_by(|&a, &b| {
+                (curves.positions[a] - pinch.position)
+                    .abs()
+                    .total_cmp(&(curves.positions[b] - pinch.position).abs())
+            })
+            .unwrap_or(0);
+        let mut minima: Vec<usize> = (0..n)
+            .filter(|&k| k != own)
+            .filter(|&k| {
+                (k == 0 || differences[k] <= differences[k - 1])
+                    && (k + 1 == n || differences[k] <= differences[k + 1])
+            })
+            .collect();
+        minima.sort_by(|&a, &b| differences[a].total_cmp(&differences[b]));
+        let step = (1e-6 * pinch.duty).max(1e-9);
+        for k in minima.into_iter().take(MOVING_CANDIDATES) {
+            let position = curves.positions[k];
+            let above = self.difference_at(pinch.duty + step, position)?;
+            let slope = (above - differences[k]) / step;
+            if slope < 0.0 {
+                return Ok(Some(Moving {
+                    difference: differences[k],
+                    slope,
+                    position,
+                }));
+            }
+        }
+        Ok(None)
+    }
+
     /// Warm end: the free cold stream leaving at the warmest hot inlet's temperature
     /// less `target`; cold end: the free hot stream leaving at the coldest cold
     /// inlet's temperature plus `target` (the free stream need not be the one that
@@ -883,7 +932,7 @@ fn searched_duty(
     // a coarse stretch that missed a narrow inside pinch one pass and caught it the
     // next would make the passes disagree and the recycle take longer.
     let near = context.pinch_position.filter(|_| !context.loose);
-    let hinted = context.pinch_hint == PinchHint::Inside;
+    let hinted = matches!(context.pinch_hint, PinchHint::Inside | PinchHint::Whole);
     if let (true, Some(start)) = (hinted, context.duty_hint) {
         // The pass before found a duty with the pinch inside: the search starts
         // there without first looking at the lowest duty. Where the difference is

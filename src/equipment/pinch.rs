@@ -116,6 +116,18 @@ pub struct Pinch<P> {
     pub profile: P,
 }
 
+/// A local minimum of a profile's temperature difference other than its pinch
+/// ([`PinchSearch::moving_minimum`]).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Moving {
+    /// Its temperature difference, K.
+    pub difference: f64,
+    /// How the difference there changes with the duty, K/W (negative).
+    pub slope: f64,
+    /// Where it lies, as the fraction of the duty from the warm end.
+    pub position: f64,
+}
+
 /// An exchanger whose smallest temperature difference can be found at a duty.
 pub trait PinchSearch {
     /// The exchanger's profile.
@@ -149,6 +161,22 @@ pub trait PinchSearch {
     /// inside, the difference is smallest there, so the pinch moving with the duty
     /// changes it only to second order.
     fn pinch_slope(&self, pinch: &Pinch<Self::Profile>) -> Result<f64>;
+
+    /// Where the pinch's difference does not fall with the duty (a stream whose
+    /// outlet temperature is set holds that end's difference fixed, a plateau a
+    /// Newton step cannot leave), the smallest other local minimum of the
+    /// `segments`-segment profile at the pinch's duty whose difference does fall:
+    /// its difference, its slope with the duty (K/W) and its position, for a Newton
+    /// step on it. The whole profile is drawn where `pinch` holds only a stretch.
+    /// None where there is none; by default always None (the search then bisects).
+    fn moving_minimum(
+        &self,
+        pinch: &Pinch<Self::Profile>,
+        segments: usize,
+    ) -> Result<Option<Moving>> {
+        let _ = (pinch, segments);
+        Ok(None)
+    }
 
     /// The duties at which the difference at the warm end and at the cold end
     /// would equal `target`, each from one flash of the outlet that sets it (None
@@ -229,7 +257,7 @@ pub fn hinted_end_pinch<S: PinchSearch>(
     context: &Context,
 ) -> Result<std::ops::ControlFlow<f64, f64>> {
     match context.pinch_hint {
-        PinchHint::Inside => Ok(std::ops::ControlFlow::Continue(upper)),
+        PinchHint::Inside | PinchHint::Whole => Ok(std::ops::ControlFlow::Continue(upper)),
         hint => end_pinch(
             search,
             target,
@@ -269,7 +297,7 @@ const COARSE_MINIMUM: usize = 8;
 /// answer is returned as it is. With `follow` (the pinch lay inside on the pass
 /// before), each profile after the first is drawn only around the last step's
 /// pinch ([`PinchSearch::pinch_near`]), and the first too where `near` gives where
-/// it lay.
+/// it lay; the second stage's first around the first stage's last pinch.
 ///
 /// Callers try [`end_pinch`] first, which needs no search.
 pub fn duty_for_difference<S: PinchSearch>(
@@ -283,7 +311,7 @@ pub fn duty_for_difference<S: PinchSearch>(
 ) -> Result<f64> {
     let segments = search.segments();
     let coarse = segments / COARSE_FRACTION;
-    let stage = |start: f64, segments: usize, accepted: f64| {
+    let stage = |start: f64, segments: usize, accepted: f64, near: Option<f64>| {
         let stage = Stage {
             segments,
             near,
@@ -292,22 +320,27 @@ pub fn duty_for_difference<S: PinchSearch>(
         };
         duty_search(search, solver, target, start, (low, upper), stage)
     };
-    let start = if coarse >= COARSE_MINIMUM {
+    let (start, near) = if coarse >= COARSE_MINIMUM {
         let accepted = if loose {
             LOOSE_ACCEPTED_STEP
         } else {
             ACCEPTED_STEP
         };
-        let rough = stage(start, coarse, accepted)?;
+        let (rough, position) = stage(start, coarse, accepted, near)?;
         if loose {
             return Ok(rough);
         }
-        rough
+        // Following, the second stage starts around the first's last pinch.
+        (rough, if follow { position.or(near) } else { near })
     } else {
-        start
+        (start, near)
     };
-    stage(start, segments, ACCEPTED_STEP)
+    Ok(stage(start, segments, ACCEPTED_STEP, near)?.0)
 }
+
+/// Where the start lies beyond the bracket, the first duty tried lies this
+/// fraction of the bracket inside the nearer end.
+const BEYOND_BRACKET: f64 = 0.01;
 
 /// How one stage of the duty search draws its profiles and when it stops.
 struct Stage {
@@ -325,8 +358,11 @@ struct Stage {
 
 /// One stage of [`duty_for_difference`], on profiles of `stage.segments` segments:
 /// Newton steps on the duty with the slope at the pinch, from `start` (the last
-/// pass's duty when there is one), inside a bracket that every step narrows; a step
-/// that would leave the bracket bisects it. A Newton step this small leaves an error
+/// pass's duty when there is one, or near the bracket's end it has passed), inside
+/// a bracket that every step narrows; a step that would leave the bracket bisects
+/// it, unless the pinch sits on a plateau above the target and another local
+/// minimum falls with the duty ([`PinchSearch::moving_minimum`]): the step is then
+/// Newton's on that one. A Newton step this small leaves an error
 /// of the order of its square over the duty (the slope changes on the scale of the
 /// duty itself), far below the tolerance, so it is taken without a further profile.
 /// Stops when a step is below `stage.accepted` of the duty or 1e-12 of `upper`, or
@@ -339,7 +375,7 @@ fn duty_search<S: PinchSearch>(
     start: f64,
     (low, upper): (f64, f64),
     stage: Stage,
-) -> Result<f64> {
+) -> Result<(f64, Option<f64>)> {
     let Stage {
         segments,
         mut near,
@@ -348,8 +384,14 @@ fn duty_search<S: PinchSearch>(
     } = stage;
     let tolerance = 1e-12 * upper;
     let (mut low, mut high) = (low, upper);
+    // A start beyond the bracket (the last pass's duty, where the bracket has
+    // since moved past it) says the answer lies near that end.
     let mut q = if start > low && start < upper {
         start
+    } else if start >= upper {
+        upper - BEYOND_BRACKET * (upper - low)
+    } else if start <= low {
+        low + BEYOND_BRACKET * (upper - low)
     } else {
         0.5 * (low + upper)
     };
@@ -365,7 +407,7 @@ fn duty_search<S: PinchSearch>(
             break;
         }
         if residual == 0.0 {
-            return Ok(q);
+            return Ok((q, Some(pinch.position)));
         }
         if residual > 0.0 {
             low = q;
@@ -376,9 +418,23 @@ fn duty_search<S: PinchSearch>(
         let mut next = q - residual / slope;
         if !(slope < 0.0 && next > low && next < high) {
             next = 0.5 * (low + high);
+            // Above the target with a pinch that does not fall far enough within
+            // the bracket (a plateau): the step aims at the other minimum that
+            // falls with the duty, where the pinch will move.
+            if residual > 0.0 {
+                if let Some(other) = search.moving_minimum(&pinch, segments)? {
+                    let aimed = q - (other.difference - target) / other.slope;
+                    if aimed > low && aimed < high {
+                        next = aimed;
+                        if follow {
+                            near = Some(other.position);
+                        }
+                    }
+                }
+            }
         }
         if (next - q).abs() <= tolerance.max(accepted * q) || high - low <= tolerance {
-            return Ok(next);
+            return Ok((next, Some(pinch.position)));
         }
         q = next;
     }
@@ -476,11 +532,83 @@ mod tests {
         };
         assert_eq!(run(PinchHint::Check, false), (Continue(8.0), 1));
         assert_eq!(run(PinchHint::Inside, false), (Continue(20.0), 0));
+        assert_eq!(run(PinchHint::Whole, false), (Continue(20.0), 0));
         assert_eq!(run(PinchHint::End, false), (Break(8.0), 0));
         assert_eq!(run(PinchHint::End, true), (Continue(8.0), 1));
         // The search itself finds the inside pinch: 9 − 0.9 q = 2 at q = 70/9.
         let duty = duty_for_difference(&lines, "test", 2.0, 5.0, (0.0, 8.0), false, (None, false))
             .unwrap();
         assert!((duty - 70.0 / 9.0).abs() < 1e-9, "{duty}");
+    }
+
+    /// A warm end held at 5 K by a stream with a set outlet (it does not move with
+    /// the duty) and a cold end at 12 − q/2 that does: for a 3 K target the answer
+    /// is q = 18, where the cold end takes over as the pinch.
+    struct Plateau {
+        profiles: Cell<usize>,
+        moving: bool,
+    }
+
+    impl PinchSearch for Plateau {
+        type Profile = ();
+        fn segments(&self) -> usize {
+            5
+        }
+        fn pinch_on(&self, duty: f64, _segments: usize) -> Result<Pinch<()>> {
+            self.profiles.set(self.profiles.get() + 1);
+            let cold = 12.0 - 0.5 * duty;
+            let (difference, position) = if cold < 5.0 { (cold, 1.0) } else { (5.0, 0.0) };
+            Ok(Pinch {
+                duty,
+                difference,
+                position,
+                profile: (),
+            })
+        }
+        fn pinch_slope(&self, pinch: &Pinch<()>) -> Result<f64> {
+            Ok(if pinch.position == 1.0 { -0.5 } else { 0.0 })
+        }
+        fn moving_minimum(&self, pinch: &Pinch<()>, _segments: usize) -> Result<Option<Moving>> {
+            Ok((self.moving && pinch.position == 0.0).then(|| Moving {
+                difference: 12.0 - 0.5 * pinch.duty,
+                slope: -0.5,
+                position: 1.0,
+            }))
+        }
+        fn end_duties(&self, _target: f64) -> [Option<f64>; 2] {
+            [None, None]
+        }
+    }
+
+    /// On the plateau the search steps by Newton on the minimum that moves and
+    /// lands in two profiles; bisecting instead takes several times as many. A
+    /// start beyond the bracket starts near the end it passed.
+    #[test]
+    fn a_plateau_is_left_by_the_minimum_that_moves() {
+        let run = |moving: bool, start: f64| {
+            let plateau = Plateau {
+                profiles: Cell::new(0),
+                moving,
+            };
+            let duty = duty_for_difference(
+                &plateau,
+                "test",
+                3.0,
+                start,
+                (0.0, 24.0),
+                false,
+                (None, false),
+            )
+            .unwrap();
+            assert!((duty - 18.0).abs() < 1e-9, "{duty}");
+            plateau.profiles.get()
+        };
+        let aimed = run(true, 4.0);
+        let bisected = run(false, 4.0);
+        assert!(aimed <= 3, "{aimed} profiles");
+        assert!(bisected >= 2 * aimed, "{bisected} against {aimed}");
+        // From beyond the bracket: the first duty is 1 % inside its upper end, on
+        // the falling side, and Newton lands at once.
+        assert!(run(false, 40.0) <= 3);
     }
 }

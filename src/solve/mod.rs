@@ -105,6 +105,13 @@ impl PinchPlace {
                 passes,
                 ..
             } if passes < HINTED_PASSES => PinchHint::Inside,
+            // Lately inside, away from both ends: a search on whole profiles looks
+            // everywhere (it finds an end pinch too) without the end's profile.
+            PinchPlace {
+                at_end: false,
+                position: Some(position),
+                ..
+            } if position > 0.0 && position < 1.0 => PinchHint::Whole,
             _ => PinchHint::Check,
         }
     }
@@ -227,7 +234,7 @@ impl Problem<'_> {
             let mut places = self.pinch_places.borrow_mut();
             places[u] = match (performance.pinch_at_end, context.pinch_hint) {
                 (None, _) => None,
-                (Some(at_end), PinchHint::Check) => Some(PinchPlace {
+                (Some(at_end), PinchHint::Check | PinchHint::Whole) => Some(PinchPlace {
                     at_end,
                     passes: 0,
                     position: performance.pinch_position,
@@ -593,7 +600,8 @@ mod tests {
 
     /// An end pinch is taken from its end flash on the passes after (the detailed
     /// pass checks it); an inside pinch is searched for near where it lay for a few
-    /// passes, then looked for everywhere again.
+    /// passes, then looked for everywhere again: on whole profiles where it lay
+    /// inside, by trying the ends first where it lay at one.
     #[test]
     fn pinch_places_give_their_hints() {
         let place = |at_end, passes| PinchPlace {
@@ -605,7 +613,16 @@ mod tests {
         assert_eq!(place(true, 9).hint(), PinchHint::End);
         assert_eq!(place(false, 0).hint(), PinchHint::Inside);
         assert_eq!(place(false, HINTED_PASSES - 1).hint(), PinchHint::Inside);
-        assert_eq!(place(false, HINTED_PASSES).hint(), PinchHint::Check);
+        assert_eq!(place(false, HINTED_PASSES).hint(), PinchHint::Whole);
+        // Lately at an end of the profile by the search, or without a position
+        // (a two-stream exchanger): the ends are tried again.
+        for position in [Some(0.0), Some(1.0), None] {
+            let place = PinchPlace {
+                position,
+                ..place(false, HINTED_PASSES)
+            };
+            assert_eq!(place.hint(), PinchHint::Check);
+        }
     }
 
     /// Hints that every pinch lies at an end, given to settled passes of the
