@@ -601,10 +601,14 @@ struct Arrangement<'a> {
     position_seeds: std::cell::RefCell<[Vec<Option<State>>; 2]>,
     /// Where the last refined pinch lay (fraction of the duty from the warm end).
     last_position: std::cell::Cell<Option<f64>>,
+    /// The last whole profile drawn and its segments: the report at the duty the
+    /// search or the end check settled on takes it instead of drawing it again.
+    last_whole: std::cell::RefCell<Option<(usize, Pinch<Curves>)>>,
 }
 
 /// Composite curves drawn on a duty grid: node positions (fraction of the duty
 /// from the warm end), duties and both composites' temperatures.
+#[derive(Debug, Clone)]
 struct Curves {
     positions: Vec<f64>,
     duties: Vec<f64>,
@@ -776,12 +780,26 @@ impl<'a> Arrangement<'a> {
                     - cold.temperature_at(f * total, &mut cold_seeds)?)
             })?;
         self.last_position.set(Some(position));
-        Ok(Pinch {
+        let pinch = Pinch {
             duty: total,
             difference,
             position,
             profile: curves,
-        })
+        };
+        if window.is_none() {
+            *self.last_whole.borrow_mut() = Some((segments, pinch.clone()));
+        }
+        Ok(pinch)
+    }
+
+    /// The whole profile at `total` W on `segments` segments: the last one drawn
+    /// where it is for that very duty, else drawn afresh.
+    fn whole_pinch(&self, total: f64, segments: usize) -> Result<Pinch<Curves>> {
+        let last = self.last_whole.borrow_mut().take();
+        match last {
+            Some((drawn, pinch)) if drawn == segments && pinch.duty == total => Ok(pinch),
+            _ => self.pinch_on(total, segments),
+        }
     }
 }
 
@@ -1031,6 +1049,7 @@ pub fn exchange(
         outlet_seeds: std::cell::RefCell::new(vec![None; count]),
         position_seeds: std::cell::RefCell::new([vec![None; count], vec![None; count]]),
         last_position: std::cell::Cell::new(None),
+        last_whole: std::cell::RefCell::new(None),
     };
     let (known_hot, known_cold) = (arrangement.known(Side::Hot), arrangement.known(Side::Cold));
     let free_of = |side: Side| arrangement.free(side).map(|i| &arrangement.members[i]);
@@ -1121,7 +1140,7 @@ pub fn exchange(
         ..Performance::default()
     };
     if context.detailed && total > 0.0 {
-        let pinch = arrangement.pinch_on(total, design.segments)?;
+        let pinch = arrangement.whole_pinch(total, design.segments)?;
         let curves = &pinch.profile;
         let profile: Vec<ProfilePoint> = (0..curves.duties.len())
             .map(|k| ProfilePoint {

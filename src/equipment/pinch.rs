@@ -105,6 +105,7 @@ fn parabola_vertex(p0: (f64, f64), p1: (f64, f64), p2: (f64, f64)) -> Option<f64
 }
 
 /// A profile at one duty and its smallest temperature difference.
+#[derive(Debug, Clone)]
 pub struct Pinch<P> {
     /// The duty the profile is drawn for, W.
     pub duty: f64,
@@ -433,7 +434,12 @@ fn duty_search<S: PinchSearch>(
                 }
             }
         }
-        if (next - q).abs() <= tolerance.max(accepted * q) || high - low <= tolerance {
+        // A step within the tolerance leaves the duty whose profile was drawn
+        // (the caller may report that profile as it is).
+        if (next - q).abs() <= tolerance {
+            return Ok((q, Some(pinch.position)));
+        }
+        if (next - q).abs() <= accepted * q || high - low <= tolerance {
             return Ok((next, Some(pinch.position)));
         }
         q = next;
