@@ -9,6 +9,13 @@ use nalgebra::{DMatrix, DVector};
 pub trait FixedPoint {
     /// Computes G(x) (in the same scaled variables).
     fn pass(&mut self, x: &[f64]) -> Result<Vec<f64>>;
+
+    /// Which map the last pass computed: a problem may pass coarsely while far
+    /// from its fixed point and finely after, and a residual of one map is not
+    /// comparable with the other's. By default always the same map.
+    fn map(&self) -> usize {
+        0
+    }
 }
 
 /// The outcome of a convergence run.
@@ -255,6 +262,7 @@ pub fn broyden(
         _ => -DMatrix::<f64>::identity(n, n),
     };
     let mut log = vec![f.amax()];
+    let mut map = problem.map();
     for iteration in 1..=cap {
         let r = f.amax();
         if r <= tolerance {
@@ -275,8 +283,15 @@ pub fn broyden(
             if let Ok(g) = guarded_pass(problem, &mut trial, &safe) {
                 let t = DVector::from_vec(trial);
                 let ft = DVector::from_vec(g) - &t;
+                // The first pass on a new map is taken as it is: its residual is
+                // not comparable with the last, nor the pair a secant of one map.
+                if problem.map() != map {
+                    map = problem.map();
+                    accepted = Some((t, ft, false));
+                    break;
+                }
                 if ft.amax() < r * (1.0 - 1e-4 * lambda) || lambda < 0.02 {
-                    accepted = Some((t, ft));
+                    accepted = Some((t, ft, true));
                     break;
                 }
                 broyden_update(&mut inverse, &(&t - &x), &(&ft - &f));
@@ -288,7 +303,7 @@ pub fn broyden(
             }
             lambda *= 0.5;
         }
-        let Some((xn, fn_)) = accepted else {
+        let Some((xn, fn_, secant)) = accepted else {
             let worst = f.iamax();
             return Err(Error::NoConvergence {
                 solver: "recycle convergence (Broyden)",
@@ -300,7 +315,9 @@ pub fn broyden(
                 ),
             });
         };
-        broyden_update(&mut inverse, &(&xn - &x), &(&fn_ - &f));
+        if secant {
+            broyden_update(&mut inverse, &(&xn - &x), &(&fn_ - &f));
+        }
         x = xn;
         f = fn_;
         log.push(f.amax());

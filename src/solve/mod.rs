@@ -82,6 +82,11 @@ struct Problem<'a> {
     trusting: std::cell::Cell<bool>,
     /// [`LOOSE_ABOVE`], or infinite where the passes are never loose.
     loose_above: f64,
+    /// Whether a pass has run loose, and whether one has run settled since: once
+    /// the passes settle they stay settled (a pass going loose again would change
+    /// the map under the accelerator's feet).
+    ran_loose: std::cell::Cell<bool>,
+    ran_settled: std::cell::Cell<bool>,
 }
 
 /// Where an exchanger sized by its pinch found it lately, as the next pass's hint.
@@ -142,6 +147,16 @@ fn largest_change(a: &[f64], b: &[f64]) -> f64 {
 impl Problem<'_> {
     fn run_pass(&self, x: &[f64]) -> Result<PassOutput> {
         let plant = self.plant;
+        let loose = !self.context.detailed
+            && !self.ran_settled.get()
+            && self.last_change.get() > self.loose_above;
+        if !self.context.detailed {
+            if loose {
+                self.ran_loose.set(true);
+            } else {
+                self.ran_settled.set(true);
+            }
+        }
         let mut flows: Vec<Option<Flow>> = vec![None; plant.streams.len()];
         let value = |i: usize| x[i] * self.scales[i];
         // Tear streams and make-up flows from the iterate.
@@ -211,7 +226,7 @@ impl Problem<'_> {
                     _ => 0.0,
                 },
                 duty_hint: self.duty_hints.borrow()[u],
-                loose: !self.context.detailed && self.last_change.get() > self.loose_above,
+                loose,
                 pinch_hint: match self.pinch_places.borrow()[u] {
                     _ if self.context.detailed || !self.trusting.get() => PinchHint::Check,
                     Some(place) => place.hint(),
@@ -320,6 +335,12 @@ impl FixedPoint for Problem<'_> {
         self.last = Some((flows, performances));
         Ok(g)
     }
+
+    /// 0 while the passes run loose (coarse exchanger profiles), 1 once they have
+    /// settled.
+    fn map(&self) -> usize {
+        usize::from(self.ran_loose.get() && self.ran_settled.get())
+    }
 }
 
 /// Solves the plant.
@@ -426,6 +447,8 @@ fn solve_from(plant: &Plant, options: &Options, first: FirstPass) -> Result<Solu
         } else {
             LOOSE_ABOVE
         },
+        ran_loose: std::cell::Cell::new(false),
+        ran_settled: std::cell::Cell::new(false),
     };
     let describe = |k: usize| -> String {
         let name = |s: usize| plant.streams[s].name.clone();
