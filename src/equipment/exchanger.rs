@@ -228,6 +228,11 @@ const ZERO_DUTY_MARGIN: f64 = 0.05;
 /// conductance as unbounded.
 pub const ZERO_PINCH: f64 = 1e-6;
 
+/// A smallest difference at the end-limited duty within this of zero, K, is zero
+/// there (the end's two temperatures come from different flashes, which agree to
+/// about 1e-12 K): that duty is the largest.
+const ZERO_AT_LIMIT: f64 = 1e-9;
+
 impl ExchangerSpec {
     /// The specification in words, with its value.
     pub fn describe(&self) -> String {
@@ -445,15 +450,19 @@ impl Sides<'_> {
         Ok(hot_limit.min(cold_limit).max(0.0))
     }
 
-    /// The largest duty: where the smallest temperature difference reaches zero,
+    /// The largest duty: where the smallest temperature difference reaches zero
+    /// (at `upper`, the end-limited duty, where the difference there is zero to
+    /// [`ZERO_AT_LIMIT`]),
     /// searched from `start` (a duty already known to leave a positive difference),
     /// or from the straight line between zero duty and `upper` without one.
     fn max_duty(&self, upper: f64, start: Option<f64>) -> Result<f64> {
         if upper <= 0.0 {
             return Ok(0.0);
         }
+        // At `upper` an outlet reaches the other inlet's temperature: the
+        // difference there is zero but for the flashes' rounding, or positive.
         let at_upper = self.pinch(upper)?.difference;
-        if at_upper >= 0.0 {
+        if at_upper >= -ZERO_AT_LIMIT {
             return Ok(upper);
         }
         let start = match start {

@@ -66,6 +66,13 @@ pub struct Blend {
     common_entropy: f64,
 }
 
+thread_local! {
+    /// The last pressure (its bits) whose species' boiling temperatures were
+    /// found, with them ([`Blend::boiling_temperatures`]); there is one blend.
+    static LAST_BOILING: std::cell::Cell<Option<(u64, (f64, f64))>> =
+        const { std::cell::Cell::new(None) };
+}
+
 /// The ideal-gas enthalpy and entropy of one species at (T, p), per mole.
 fn ideal_gas_molar(fluid: &Fluid, temperature: f64, pressure: f64) -> (f64, f64) {
     let (enthalpy, entropy) = fluid.ideal_gas_enthalpy_entropy(temperature, pressure);
@@ -329,12 +336,35 @@ impl Blend {
         }
     }
 
+    /// The boiling temperatures of pure para- and orthohydrogen at `pressure`, K.
+    /// The last pressure's pair is kept per thread: a flash or a saturation
+    /// temperature asks for the same pressure's several times, and each is a
+    /// saturation solve of each species.
+    fn boiling_temperatures(&self, pressure: f64) -> Result<(f64, f64)> {
+        let key = pressure.to_bits();
+        if let Some((at, pair)) = LAST_BOILING.with(|last| last.get()) {
+            if at == key {
+                return Ok(pair);
+            }
+        }
+        let pair = (
+            self.para
+                .saturation_at_pressure(pressure)?
+                .liquid
+                .temperature,
+            self.ortho
+                .saturation_at_pressure(pressure)?
+                .liquid
+                .temperature,
+        );
+        LAST_BOILING.with(|last| last.set(Some((key, pair))));
+        Ok(pair)
+    }
+
     /// The blend's saturation temperature at p for para fraction x (K), where the
     /// mole-weighted Gibbs energies of the liquid and vapour solutions are equal.
     pub fn saturation_temperature(&self, pressure: f64, para_fraction: f64) -> Result<f64> {
-        let para_pair = self.para.saturated_pair_at_pressure(pressure)?;
-        let ortho_pair = self.ortho.saturated_pair_at_pressure(pressure)?;
-        let (tp, to) = (para_pair.liquid.temperature, ortho_pair.liquid.temperature);
+        let (tp, to) = self.boiling_temperatures(pressure)?;
         if para_fraction >= 1.0 {
             return Ok(tp);
         }
@@ -343,12 +373,16 @@ impl Blend {
         }
         // g_liquid − g_vapour of the solution per mole, rising with T at the slope
         // s_vapour − s_liquid: Newton steps from the mole-weighted boiling point.
+        // Each step's species densities seed the next step's.
+        let last: std::cell::Cell<Option<[(f64, f64); 2]>> = std::cell::Cell::new(None);
         let gap = |t: f64| -> (f64, f64) {
+            let seeds = last.get();
             match (
-                self.species(t, pressure, true),
-                self.species(t, pressure, false),
+                self.species_near(t, pressure, true, seeds.map(|s| s[0])),
+                self.species_near(t, pressure, false, seeds.map(|s| s[1])),
             ) {
                 (Ok((pl, ol)), Ok((pv, ov))) => {
+                    last.set(Some([(pl.density, ol.density), (pv.density, ov.density)]));
                     let (wp, wo) = (
                         para_fraction * self.para.molar_mass,
                         (1.0 - para_fraction) * self.ortho.molar_mass,
@@ -445,8 +479,7 @@ impl Blend {
         if !self.has_saturation(t, p) {
             return Ok(p > self.normal.critical.pressure && t < self.normal.critical.temperature);
         }
-        let para_sat = self.para.saturation_at_pressure(p)?.liquid.temperature;
-        let ortho_sat = self.ortho.saturation_at_pressure(p)?.liquid.temperature;
+        let (para_sat, ortho_sat) = self.boiling_temperatures(p)?;
         if t < para_sat.min(ortho_sat) {
             return Ok(true);
         }
@@ -565,16 +598,7 @@ impl Blend {
         let mut anchor: Option<(f64, (f64, f64))> = None;
         if pressure <= BLEND_SATURATION_PRESSURE_MAX {
             self.check_saturation_pressure(pressure)?;
-            let para_boiling = self
-                .para
-                .saturation_at_pressure(pressure)?
-                .liquid
-                .temperature;
-            let ortho_boiling = self
-                .ortho
-                .saturation_at_pressure(pressure)?
-                .liquid
-                .temperature;
+            let (para_boiling, ortho_boiling) = self.boiling_temperatures(pressure)?;
             let (first, last) = (
                 para_boiling.min(ortho_boiling),
                 para_boiling.max(ortho_boiling),
