@@ -157,7 +157,8 @@ pub struct Context {
     /// final passes or the detailed one.
     pub loose: bool,
     /// Where an exchanger sized by its pinch found it on the previous passes.
-    /// Always [`PinchHint::Check`] on the detailed pass; the solver checks the
+    /// On the detailed pass [`PinchHint::Check`], or [`PinchHint::Whole`] where the
+    /// pinch lay strictly inside (whole profiles throughout): the solver checks the
     /// converged point with every pinch found afresh.
     pub pinch_hint: PinchHint,
     /// Where the pinch lay on the pass before (fraction of the duty from the warm

@@ -945,8 +945,8 @@ fn searched_duty(
 ) -> Result<f64> {
     let segments = arrangement.segments;
     // Where the pinch lay inside on the pass before, a settled pass's search draws
-    // its full profiles around there only (the solver's detailed pass draws them
-    // whole). Loose passes draw their coarse profiles whole: they are cheap, and
+    // its full profiles around there only (the solver's detailed pass draws every
+    // profile whole, and follows no pinch). Loose passes draw their coarse profiles whole: they are cheap, and
     // a coarse stretch that missed a narrow inside pinch one pass and caught it the
     // next would make the passes disagree and the recycle take longer.
     let near = context.pinch_position.filter(|_| !context.loose);
@@ -962,7 +962,7 @@ fn searched_duty(
             start,
             (low, bound),
             context.loose,
-            (near, true),
+            (near, !context.detailed),
         )?;
         return Ok(if duty - low <= 1e-9 * bound { low } else { duty });
     }

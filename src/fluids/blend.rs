@@ -67,11 +67,15 @@ pub struct Blend {
 }
 
 thread_local! {
-    /// The last pressure (its bits) whose species' boiling temperatures were
-    /// found, with them ([`Blend::boiling_temperatures`]); there is one blend.
-    static LAST_BOILING: std::cell::Cell<Option<(u64, (f64, f64))>> =
-        const { std::cell::Cell::new(None) };
+    /// The last few pressures (their bits) whose species' boiling temperatures
+    /// were found, with them ([`Blend::boiling_temperatures`]); there is one blend.
+    static LAST_BOILING: std::cell::RefCell<std::collections::VecDeque<(u64, (f64, f64))>> =
+        const { std::cell::RefCell::new(std::collections::VecDeque::new()) };
 }
+
+/// How many pressures' boiling temperatures are kept: a flowsheet's two-phase
+/// hydrogen sits at a few pressures (valve outlets, separators, feeds).
+const KEPT_PRESSURES: usize = 8;
 
 /// The ideal-gas enthalpy and entropy of one species at (T, p), per mole.
 fn ideal_gas_molar(fluid: &Fluid, temperature: f64, pressure: f64) -> (f64, f64) {
@@ -337,15 +341,19 @@ impl Blend {
     }
 
     /// The boiling temperatures of pure para- and orthohydrogen at `pressure`, K.
-    /// The last pressure's pair is kept per thread: a flash or a saturation
-    /// temperature asks for the same pressure's several times, and each is a
+    /// The last few pressures' pairs are kept per thread: flashes and saturation
+    /// temperatures ask for the same pressures' again and again, and each is a
     /// saturation solve of each species.
     fn boiling_temperatures(&self, pressure: f64) -> Result<(f64, f64)> {
         let key = pressure.to_bits();
-        if let Some((at, pair)) = LAST_BOILING.with(|last| last.get()) {
-            if at == key {
-                return Ok(pair);
-            }
+        let kept = LAST_BOILING.with(|last| {
+            last.borrow()
+                .iter()
+                .find(|(at, _)| *at == key)
+                .map(|(_, pair)| *pair)
+        });
+        if let Some(pair) = kept {
+            return Ok(pair);
         }
         let pair = (
             self.para
@@ -357,7 +365,13 @@ impl Blend {
                 .liquid
                 .temperature,
         );
-        LAST_BOILING.with(|last| last.set(Some((key, pair))));
+        LAST_BOILING.with(|last| {
+            let mut last = last.borrow_mut();
+            if last.len() == KEPT_PRESSURES {
+                last.pop_front();
+            }
+            last.push_back((key, pair));
+        });
         Ok(pair)
     }
 

@@ -100,6 +100,20 @@ struct PinchPlace {
     position: Option<f64>,
 }
 
+/// The hint a pass gives an exchanger from where it found its pinch lately: none
+/// while hints are not trusted; on the detailed pass, which looks everywhere,
+/// [`PinchHint::Whole`] where the pinch lay strictly inside (whole profiles show an
+/// end pinch too) and [`PinchHint::Check`] otherwise (the ends are tried first).
+fn pass_hint(place: Option<PinchPlace>, detailed: bool, trusting: bool) -> PinchHint {
+    match place {
+        _ if !trusting => PinchHint::Check,
+        Some(place) if detailed && place.strictly_inside() => PinchHint::Whole,
+        _ if detailed => PinchHint::Check,
+        Some(place) => place.hint(),
+        None => PinchHint::Check,
+    }
+}
+
 impl PinchPlace {
     /// The hint for the next pass.
     fn hint(self) -> PinchHint {
@@ -112,13 +126,15 @@ impl PinchPlace {
             } if passes < HINTED_PASSES => PinchHint::Inside,
             // Lately inside, away from both ends: a search on whole profiles looks
             // everywhere (it finds an end pinch too) without the end's profile.
-            PinchPlace {
-                at_end: false,
-                position: Some(position),
-                ..
-            } if position > 0.0 && position < 1.0 => PinchHint::Whole,
+            place if place.strictly_inside() => PinchHint::Whole,
             _ => PinchHint::Check,
         }
+    }
+
+    /// Inside, away from both ends of the profile, where the exchanger reports
+    /// where.
+    fn strictly_inside(self) -> bool {
+        !self.at_end && self.position.is_some_and(|p| p > 0.0 && p < 1.0)
     }
 }
 
@@ -227,11 +243,11 @@ impl Problem<'_> {
                 },
                 duty_hint: self.duty_hints.borrow()[u],
                 loose,
-                pinch_hint: match self.pinch_places.borrow()[u] {
-                    _ if self.context.detailed || !self.trusting.get() => PinchHint::Check,
-                    Some(place) => place.hint(),
-                    None => PinchHint::Check,
-                },
+                pinch_hint: pass_hint(
+                    self.pinch_places.borrow()[u],
+                    self.context.detailed,
+                    self.trusting.get(),
+                ),
                 ..self.context
             };
             let context = Context {
@@ -646,6 +662,25 @@ mod tests {
             };
             assert_eq!(place.hint(), PinchHint::Check);
         }
+        // The detailed pass: whole profiles for a pinch strictly inside, else the
+        // ends first; untrusted hints give none.
+        assert_eq!(
+            pass_hint(Some(place(false, 0)), true, true),
+            PinchHint::Whole
+        );
+        assert_eq!(
+            pass_hint(Some(place(true, 0)), true, true),
+            PinchHint::Check
+        );
+        assert_eq!(pass_hint(None, true, true), PinchHint::Check);
+        assert_eq!(
+            pass_hint(Some(place(false, 0)), false, false),
+            PinchHint::Check
+        );
+        assert_eq!(
+            pass_hint(Some(place(false, 0)), false, true),
+            PinchHint::Inside
+        );
     }
 
     /// Hints that every pinch lies at an end, given to settled passes of the
