@@ -946,9 +946,10 @@ fn searched_duty(
     let segments = arrangement.segments;
     // Where the pinch lay inside on the pass before, a settled pass's search draws
     // its full profiles around there only (the solver's detailed pass draws every
-    // profile whole, and follows no pinch). Loose passes draw their coarse profiles whole: they are cheap, and
-    // a coarse stretch that missed a narrow inside pinch one pass and caught it the
-    // next would make the passes disagree and the recycle take longer.
+    // profile whole, and follows no pinch). Loose passes draw their coarse
+    // profiles whole: they are cheap, and a coarse stretch that missed a narrow
+    // inside pinch one pass and caught it the next would make the passes disagree
+    // and the recycle take longer.
     let near = context.pinch_position.filter(|_| !context.loose);
     let hinted = matches!(context.pinch_hint, PinchHint::Inside | PinchHint::Whole);
     if let (true, Some(start)) = (hinted, context.duty_hint) {
