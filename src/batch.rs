@@ -171,10 +171,13 @@ pub fn run(input: &str, source: &str, default_fluid: Option<&str>) -> Result<Bat
     let width = headers.len();
     let text_lines: Vec<&str> = input.lines().collect();
     // Read every row first (with its line in the file, comment lines counted: the
-    // reader's position can stand on comment lines just before the record).
-    let mut records: Vec<(csv::ByteRecord, usize)> = Vec::new();
+    // reader's position can stand on comment lines just before the record), every
+    // field into one shared buffer (a record of its own a row cost an allocation
+    // and a free a row).
+    let mut fields = Fields::default();
+    let mut records: Vec<Row> = Vec::new();
+    let mut record = csv::ByteRecord::new();
     loop {
-        let mut record = csv::ByteRecord::new();
         match reader.read_byte_record(&mut record) {
             Ok(true) => {}
             Ok(false) => break,
@@ -194,7 +197,16 @@ pub fn run(input: &str, source: &str, default_fluid: Option<&str>) -> Result<Bat
         {
             line += 1;
         }
-        records.push((record, line));
+        let first = fields.ends.len();
+        for field in record.iter() {
+            fields.bytes.extend_from_slice(field);
+            fields.ends.push(fields.bytes.len());
+        }
+        records.push(Row {
+            first,
+            count: record.len(),
+            line,
+        });
     }
     // Then compute and write them in blocks on every core, each block into its own
     // text, joined in order: the output does not depend on the number of threads.
@@ -203,6 +215,7 @@ pub fn run(input: &str, source: &str, default_fluid: Option<&str>) -> Result<Bat
         fluid_column,
         default_fluid,
         width,
+        fields: &fields,
     };
     let blocks: Vec<(String, Vec<(usize, String)>)> = records
         .par_chunks(ROWS_PER_BLOCK)
@@ -224,37 +237,55 @@ pub fn run(input: &str, source: &str, default_fluid: Option<&str>) -> Result<Bat
 /// Rows computed and written together by one thread.
 const ROWS_PER_BLOCK: usize = 512;
 
+/// Every row's fields, end to end: the bytes and where each field ends.
+#[derive(Default)]
+struct Fields {
+    bytes: Vec<u8>,
+    ends: Vec<usize>,
+}
+
+/// One row: its first field's number in [`Fields`], how many it has, and its line
+/// in the file.
+struct Row {
+    first: usize,
+    count: usize,
+    line: usize,
+}
+
 /// What every row needs to know about the table.
 struct Table<'a> {
     inputs: &'a [InputColumn],
     fluid_column: Option<usize>,
     default_fluid: Option<&'a str>,
     width: usize,
+    fields: &'a Fields,
 }
 
 impl Table<'_> {
     /// The output lines of `rows` (each with its line in the file), and the rows
     /// that failed with their line and reason.
-    fn block(&self, rows: &[(csv::ByteRecord, usize)]) -> (String, Vec<(usize, String)>) {
+    fn block(&self, rows: &[Row]) -> (String, Vec<(usize, String)>) {
         let mut out = String::with_capacity(rows.len() * 256);
         let mut failures = Vec::new();
         // Each fluid named in the block, looked up once.
         let mut known: Vec<(&str, &'static fluids::Fluid)> = Vec::new();
         let mut buffer = ryu::Buffer::new();
-        for (record, line) in rows {
+        for row in rows {
+            let line = &row.line;
             // The input is text, so every field is too.
             let field = |i: usize| -> &str {
-                record
-                    .get(i)
-                    .and_then(|f| std::str::from_utf8(f).ok())
-                    .unwrap_or("")
+                if i >= row.count {
+                    return "";
+                }
+                let k = row.first + i;
+                let start = if k == 0 { 0 } else { self.fields.ends[k - 1] };
+                std::str::from_utf8(&self.fields.bytes[start..self.fields.ends[k]]).unwrap_or("")
             };
             let computed = (|| -> Result<fluids::State> {
-                if record.len() != self.width {
+                if row.count != self.width {
                     return Err(Error::Input(format!(
                         "this row has {} cells where the header has {}",
-                        record.len(),
-                        self.width
+                        row.count, self.width
                     )));
                 }
                 let name = match self.fluid_column {
