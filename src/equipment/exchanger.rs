@@ -481,6 +481,7 @@ impl Sides<'_> {
             false,
             (None, false),
         )
+        .map(|(duty, _)| duty)
     }
 
     fn ua(&self, q: f64) -> Result<f64> {
@@ -720,7 +721,7 @@ fn minimum_approach_duty(
     // Without the last pass's duty, start where the difference would reach the
     // target if it fell linearly to zero at `upper`.
     let start = duty_hint.unwrap_or(upper * (at_zero - dt) / at_zero);
-    let duty = pinch::duty_for_difference(
+    let (duty, _) = pinch::duty_for_difference(
         sides,
         "exchanger duty for a minimum approach",
         dt,

@@ -599,8 +599,6 @@ struct Arrangement<'a> {
     /// Each composite's streams' last states at a single position (the slope's
     /// two evaluations are at the same position), hot then cold.
     position_seeds: std::cell::RefCell<[Vec<Option<State>>; 2]>,
-    /// Where the last refined pinch lay (fraction of the duty from the warm end).
-    last_position: std::cell::Cell<Option<f64>>,
     /// The last whole profile drawn and its segments: the report at the duty the
     /// search or the end check settled on takes it instead of drawing it again.
     last_whole: std::cell::RefCell<Option<(usize, Pinch<Curves>)>>,
@@ -614,6 +612,13 @@ struct Curves {
     duties: Vec<f64>,
     hot: Vec<f64>,
     cold: Vec<f64>,
+}
+
+impl Curves {
+    /// The hot-minus-cold difference at every node, K.
+    fn differences(&self) -> Vec<f64> {
+        self.hot.iter().zip(&self.cold).map(|(h, c)| h - c).collect()
+    }
 }
 
 impl<'a> Arrangement<'a> {
@@ -766,12 +771,7 @@ impl<'a> Arrangement<'a> {
         window: Option<(usize, usize)>,
     ) -> Result<Pinch<Curves>> {
         let (curves, [hot, cold]) = self.curves(total, segments, window)?;
-        let differences: Vec<f64> = curves
-            .hot
-            .iter()
-            .zip(&curves.cold)
-            .map(|(h, c)| h - c)
-            .collect();
+        let differences = curves.differences();
         let mut hot_seeds: Vec<Option<State>> = vec![None; self.members.len()];
         let mut cold_seeds: Vec<Option<State>> = vec![None; self.members.len()];
         let (difference, position) =
@@ -779,7 +779,6 @@ impl<'a> Arrangement<'a> {
                 Ok(hot.temperature_at(f * total, &mut hot_seeds)?
                     - cold.temperature_at(f * total, &mut cold_seeds)?)
             })?;
-        self.last_position.set(Some(position));
         let pinch = Pinch {
             duty: total,
             difference,
@@ -826,8 +825,10 @@ impl PinchSearch for Arrangement<'_> {
         let centre = (position.clamp(0.0, 1.0) * n as f64).round() as usize;
         let window = (centre.saturating_sub(NEAR_NODES), (centre + NEAR_NODES).min(n));
         let pinch = self.pinch_in(total, segments, Some(window))?;
-        let differences = pinch.profile.hot.iter().zip(&pinch.profile.cold).map(|(h, c)| h - c);
-        let smallest = differences
+        let smallest = pinch
+            .profile
+            .differences()
+            .into_iter()
             .enumerate()
             .fold((0, f64::INFINITY), |a, (k, d)| if d < a.1 { (k, d) } else { a })
             .0;
@@ -862,7 +863,7 @@ impl PinchSearch for Arrangement<'_> {
                 &whole
             }
         };
-        let differences: Vec<f64> = curves.hot.iter().zip(&curves.cold).map(|(h, c)| h - c).collect();
+        let differences = curves.differences();
         let n = differences.len();
         let own = (0..n)
             .min_by(|&a, &b| {
@@ -935,14 +936,15 @@ pub struct StreamRecord {
 
 /// The total duty that leaves a smallest difference of `dt` where the pinch lies
 /// inside: none above `low` if the difference is already below `dt` there, else
-/// the Newton search on the duty below `bound` (the smaller end duty, or `upper`).
+/// the Newton search on the duty below `bound` (the smaller end duty, or `upper`);
+/// with where the last profile drawn had its pinch.
 fn searched_duty(
     arrangement: &Arrangement<'_>,
     dt: f64,
     (low, upper): (f64, f64),
     bound: f64,
     context: &Context,
-) -> Result<f64> {
+) -> Result<(f64, Option<f64>)> {
     let segments = arrangement.segments;
     // Where the pinch lay inside on the pass before, a settled pass's search draws
     // its full profiles around there only (the solver's detailed pass draws every
@@ -951,49 +953,45 @@ fn searched_duty(
     // inside pinch one pass and caught it the next would make the passes disagree
     // and the recycle take longer.
     let near = context.pinch_position.filter(|_| !context.loose);
-    let hinted = matches!(context.pinch_hint, PinchHint::Inside | PinchHint::Whole);
-    if let (true, Some(start)) = (hinted, context.duty_hint) {
-        // The pass before found a duty with the pinch inside: the search starts
-        // there without first looking at the lowest duty. Where the difference is
-        // below the target even there, the search's bracket closes on `low`.
-        let duty = pinch::duty_for_difference(
+    let search = |start: f64, follow: bool| {
+        pinch::duty_for_difference(
             arrangement,
             "multistream exchanger duty for a minimum approach",
             dt,
             start,
             (low, bound),
             context.loose,
-            (near, !context.detailed),
-        )?;
-        return Ok(if duty - low <= 1e-9 * bound { low } else { duty });
+            (near, follow),
+        )
+    };
+    let hinted = matches!(context.pinch_hint, PinchHint::Inside | PinchHint::Whole);
+    if let (true, Some(start)) = (hinted, context.duty_hint) {
+        // The pass before found a duty with the pinch inside: the search starts
+        // there without first looking at the lowest duty. Where the difference is
+        // below the target even there, the search's bracket closes on `low`.
+        let (duty, position) = search(start, !context.detailed)?;
+        return Ok((if duty - low <= 1e-9 * bound { low } else { duty }, position));
     }
     // On a coarse profile when clearly above the target (it decides only whether
     // some duty meets it, and the first guess).
-    let coarse = arrangement.pinch_on(low, (segments / 5).max(8))?.difference;
-    let at_low = if coarse > dt + 0.05 {
+    let coarse = arrangement.pinch_on(low, (segments / 5).max(8))?;
+    let at_low = if coarse.difference > dt + 0.05 {
         coarse
     } else {
-        arrangement.pinch_on(low, segments)?.difference
+        arrangement.pinch_on(low, segments)?
     };
-    if at_low <= dt {
-        return Ok(low);
+    if at_low.difference <= dt {
+        return Ok((low, Some(at_low.position)));
     }
     let start = context.duty_hint.unwrap_or_else(|| {
         let at_upper = arrangement
             .pinch_on(upper, segments / 5)
             .map(|p| p.difference)
             .unwrap_or(0.0);
-        low + (upper - low) * (at_low - dt) / (at_low - at_upper).max(1e-300)
+        low + (upper - low) * (at_low.difference - dt)
+            / (at_low.difference - at_upper).max(1e-300)
     });
-    pinch::duty_for_difference(
-        arrangement,
-        "multistream exchanger duty for a minimum approach",
-        dt,
-        start,
-        (low, bound),
-        context.loose,
-        (near, false),
-    )
+    search(start, false)
 }
 
 /// Solves the multistream exchanger for its inlets (in stream order).
@@ -1049,7 +1047,6 @@ pub fn exchange(
         segments: design.segments,
         outlet_seeds: std::cell::RefCell::new(vec![None; count]),
         position_seeds: std::cell::RefCell::new([vec![None; count], vec![None; count]]),
-        last_position: std::cell::Cell::new(None),
         last_whole: std::cell::RefCell::new(None),
     };
     let (known_hot, known_cold) = (arrangement.known(Side::Hot), arrangement.known(Side::Cold));
@@ -1109,8 +1106,9 @@ pub fn exchange(
                     }
                     ControlFlow::Continue(bound) => {
                         pinch_at_end = Some(false);
-                        let duty = searched_duty(&arrangement, dt, (low, upper), bound, context)?;
-                        pinch_position = arrangement.last_position.get();
+                        let duty;
+                        (duty, pinch_position) =
+                            searched_duty(&arrangement, dt, (low, upper), bound, context)?;
                         duty
                     }
                 }

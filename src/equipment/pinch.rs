@@ -300,6 +300,9 @@ const COARSE_MINIMUM: usize = 8;
 /// pinch ([`PinchSearch::pinch_near`]), and the first too where `near` gives where
 /// it lay; the second stage's first around the first stage's last pinch.
 ///
+/// Returns the duty and where the last profile drawn had its pinch (fraction of
+/// the duty from the warm end), for the next pass's hint.
+///
 /// Callers try [`end_pinch`] first, which needs no search.
 pub fn duty_for_difference<S: PinchSearch>(
     search: &S,
@@ -309,7 +312,7 @@ pub fn duty_for_difference<S: PinchSearch>(
     (low, upper): (f64, f64),
     loose: bool,
     (near, follow): (Option<f64>, bool),
-) -> Result<f64> {
+) -> Result<(f64, Option<f64>)> {
     let segments = search.segments();
     let coarse = segments / COARSE_FRACTION;
     let stage = |start: f64, segments: usize, accepted: f64, near: Option<f64>| {
@@ -329,14 +332,14 @@ pub fn duty_for_difference<S: PinchSearch>(
         };
         let (rough, position) = stage(start, coarse, accepted, near)?;
         if loose {
-            return Ok(rough);
+            return Ok((rough, position));
         }
         // Following, the second stage starts around the first's last pinch.
         (rough, if follow { position.or(near) } else { near })
     } else {
         (start, near)
     };
-    Ok(stage(start, segments, ACCEPTED_STEP, near)?.0)
+    stage(start, segments, ACCEPTED_STEP, near)
 }
 
 /// Where the start lies beyond the bracket, the first duty tried lies this
@@ -542,8 +545,9 @@ mod tests {
         assert_eq!(run(PinchHint::End, false), (Break(8.0), 0));
         assert_eq!(run(PinchHint::End, true), (Continue(8.0), 1));
         // The search itself finds the inside pinch: 9 − 0.9 q = 2 at q = 70/9.
-        let duty = duty_for_difference(&lines, "test", 2.0, 5.0, (0.0, 8.0), false, (None, false))
-            .unwrap();
+        let (duty, _) =
+            duty_for_difference(&lines, "test", 2.0, 5.0, (0.0, 8.0), false, (None, false))
+                .unwrap();
         assert!((duty - 70.0 / 9.0).abs() < 1e-9, "{duty}");
     }
 
@@ -596,7 +600,7 @@ mod tests {
                 profiles: Cell::new(0),
                 moving,
             };
-            let duty = duty_for_difference(
+            let (duty, _) = duty_for_difference(
                 &plateau,
                 "test",
                 3.0,
