@@ -88,16 +88,25 @@ fn plain_factor(property: Property, unit: &Option<String>) -> Option<f64> {
     }
 }
 
-/// Writes `value` in the shortest form that reads back to the same number.
-fn number(buffer: &mut ryu::Buffer, value: f64) -> &str {
+/// Appends `value` in the shortest form that reads back to the same number, with a
+/// positive exponent written without its sign (`1e16`, `2.5e-7`).
+fn push_number(out: &mut String, buffer: &mut zmij::Buffer, value: f64) {
     if value.is_finite() {
-        buffer.format_finite(value)
+        let text = buffer.format_finite(value);
+        // Only numbers from 1e16 up are written with a positive exponent.
+        match (value.abs() >= 1e16).then(|| text.rfind('+')).flatten() {
+            Some(plus) => {
+                out.push_str(&text[..plus]);
+                out.push_str(&text[plus + 1..]);
+            }
+            None => out.push_str(text),
+        }
     } else if value.is_nan() {
-        "NaN"
+        out.push_str("NaN");
     } else if value > 0.0 {
-        "inf"
+        out.push_str("inf");
     } else {
-        "-inf"
+        out.push_str("-inf");
     }
 }
 
@@ -174,7 +183,8 @@ pub fn run(input: &str, source: &str, default_fluid: Option<&str>) -> Result<Bat
     // reader's position can stand on comment lines just before the record), every
     // field into one shared buffer (a record of its own a row cost an allocation
     // and a free a row).
-    let mut fields = Fields::default();
+    let mut bytes: Vec<u8> = Vec::new();
+    let mut ends: Vec<usize> = Vec::new();
     let mut records: Vec<Row> = Vec::new();
     let mut record = csv::ByteRecord::new();
     loop {
@@ -197,10 +207,10 @@ pub fn run(input: &str, source: &str, default_fluid: Option<&str>) -> Result<Bat
         {
             line += 1;
         }
-        let first = fields.ends.len();
+        let first = ends.len();
         for field in record.iter() {
-            fields.bytes.extend_from_slice(field);
-            fields.ends.push(fields.bytes.len());
+            bytes.extend_from_slice(field);
+            ends.push(bytes.len());
         }
         records.push(Row {
             first,
@@ -208,6 +218,13 @@ pub fn run(input: &str, source: &str, default_fluid: Option<&str>) -> Result<Bat
             line,
         });
     }
+    // The input is text and fields are cut at ASCII separators, so the fields are
+    // text too; checked once here rather than field by field.
+    let fields = Fields {
+        text: String::from_utf8(bytes)
+            .map_err(|e| Error::Input(format!("{source}: the table is not UTF-8 text: {e}")))?,
+        ends,
+    };
     // Then compute and write them in blocks on every core, each block into its own
     // text, joined in order: the output does not depend on the number of threads.
     let table = Table {
@@ -237,10 +254,10 @@ pub fn run(input: &str, source: &str, default_fluid: Option<&str>) -> Result<Bat
 /// Rows computed and written together by one thread.
 const ROWS_PER_BLOCK: usize = 512;
 
-/// Every row's fields, end to end: the bytes and where each field ends.
+/// Every row's fields, end to end: the text and where each field ends.
 #[derive(Default)]
 struct Fields {
-    bytes: Vec<u8>,
+    text: String,
     ends: Vec<usize>,
 }
 
@@ -262,102 +279,116 @@ struct Table<'a> {
 }
 
 impl Table<'_> {
+    /// Field `i` of `row` ("" past its end).
+    fn field<'b>(&'b self, row: &Row, i: usize) -> &'b str {
+        if i >= row.count {
+            return "";
+        }
+        let k = row.first + i;
+        let start = if k == 0 { 0 } else { self.fields.ends[k - 1] };
+        self.fields.text.get(start..self.fields.ends[k]).unwrap_or("")
+    }
+
+    /// The fluid and the two input specifications of `row`; fluids named in the
+    /// block are looked up once and kept in `known`.
+    fn inputs_of<'b>(
+        &'b self,
+        row: &Row,
+        known: &mut Vec<(&'b str, &'static fluids::Fluid)>,
+    ) -> Result<(&'static fluids::Fluid, Spec, Spec)> {
+        if row.count != self.width {
+            return Err(Error::Input(format!(
+                "this row has {} cells where the header has {}",
+                row.count, self.width
+            )));
+        }
+        let name = match self.fluid_column {
+            Some(i) => self.field(row, i),
+            None => self.default_fluid.unwrap_or(""),
+        };
+        let fluid = match known.iter().find(|(n, _)| *n == name) {
+            Some((_, fluid)) => *fluid,
+            None => {
+                let fluid = fluids::fluid(name)?;
+                known.push((name, fluid));
+                fluid
+            }
+        };
+        let first = self.inputs[0].spec(self.field(row, self.inputs[0].index))?;
+        let second = self.inputs[1].spec(self.field(row, self.inputs[1].index))?;
+        Ok((fluid, first, second))
+    }
+
     /// The output lines of `rows` (each with its line in the file), and the rows
     /// that failed with their line and reason.
     fn block(&self, rows: &[Row]) -> (String, Vec<(usize, String)>) {
         let mut out = String::with_capacity(rows.len() * 256);
         let mut failures = Vec::new();
-        // Each fluid named in the block, looked up once.
         let mut known: Vec<(&str, &'static fluids::Fluid)> = Vec::new();
-        let mut buffer = ryu::Buffer::new();
+        let mut buffer = zmij::Buffer::new();
         for row in rows {
-            let line = &row.line;
-            // The input is text, so every field is too.
-            let field = |i: usize| -> &str {
-                if i >= row.count {
-                    return "";
-                }
-                let k = row.first + i;
-                let start = if k == 0 { 0 } else { self.fields.ends[k - 1] };
-                std::str::from_utf8(&self.fields.bytes[start..self.fields.ends[k]]).unwrap_or("")
-            };
-            let computed = (|| -> Result<fluids::State> {
-                if row.count != self.width {
-                    return Err(Error::Input(format!(
-                        "this row has {} cells where the header has {}",
-                        row.count, self.width
-                    )));
-                }
-                let name = match self.fluid_column {
-                    Some(i) => field(i),
-                    None => self.default_fluid.unwrap_or(""),
-                };
-                let fluid = match known.iter().find(|(n, _)| *n == name) {
-                    Some((_, fluid)) => *fluid,
-                    None => {
-                        let fluid = fluids::fluid(name)?;
-                        known.push((name, fluid));
-                        fluid
-                    }
-                };
-                let first = self.inputs[0].spec(field(self.inputs[0].index))?;
-                let second = self.inputs[1].spec(field(self.inputs[1].index))?;
-                fluid.state_from(first, second)
-            })();
             // The copied input cells, as many as the header names (a ragged row's
             // padded or cut, its error saying so).
             for i in 0..self.width {
                 if i > 0 {
                     out.push(',');
                 }
-                push_cell(&mut out, field(i));
+                push_cell(&mut out, self.field(row, i));
             }
-            match computed {
-                Ok(state) => {
-                    for value in [
-                        state.temperature,
-                        state.pressure,
-                        state.density,
-                        state.enthalpy,
-                        state.entropy,
-                    ] {
-                        out.push(',');
-                        out.push_str(number(&mut buffer, value));
-                    }
-                    for value in [
-                        state.cp(),
-                        state.cv(),
-                        state.speed_of_sound(),
-                        state.joule_thomson(),
-                    ] {
-                        out.push(',');
-                        if let Some(v) = value {
-                            out.push_str(number(&mut buffer, v));
-                        }
-                    }
-                    out.push(',');
-                    out.push_str(number(&mut buffer, state.compressibility()));
-                    out.push(',');
-                    out.push_str(state.phase.name());
-                    out.push(',');
-                    if let Some(x) = state.quality {
-                        out.push_str(number(&mut buffer, x));
-                    }
-                    out.push(',');
-                }
+            let computed = self
+                .inputs_of(row, &mut known)
+                .and_then(|(fluid, first, second)| fluid.state_from(first, second));
+            match &computed {
+                Ok(state) => write_state(&mut out, &mut buffer, state),
                 Err(e) => {
                     for _ in 0..OUTPUT_COLUMNS.len() {
                         out.push(',');
                     }
                     let reason = e.to_string();
                     push_cell(&mut out, &reason);
-                    failures.push((*line, format!("line {line}: {reason}")));
+                    let line = row.line;
+                    failures.push((line, format!("line {line}: {reason}")));
                 }
             }
             out.push('\n');
         }
         (out, failures)
     }
+}
+
+/// Appends the output columns of `state` (each after a comma; the error column
+/// empty).
+fn write_state(out: &mut String, buffer: &mut zmij::Buffer, state: &fluids::State) {
+    for value in [
+        state.temperature,
+        state.pressure,
+        state.density,
+        state.enthalpy,
+        state.entropy,
+    ] {
+        out.push(',');
+        push_number(out, buffer, value);
+    }
+    for value in [
+        state.cp(),
+        state.cv(),
+        state.speed_of_sound(),
+        state.joule_thomson(),
+    ] {
+        out.push(',');
+        if let Some(v) = value {
+            push_number(out, buffer, v);
+        }
+    }
+    out.push(',');
+    push_number(out, buffer, state.compressibility());
+    out.push(',');
+    out.push_str(state.phase.name());
+    out.push(',');
+    if let Some(x) = state.quality {
+        push_number(out, buffer, x);
+    }
+    out.push(',');
 }
 
 /// Appends `cell` as a CSV field: as it is, or quoted (inner quotes doubled) where
@@ -378,6 +409,38 @@ fn push_cell(out: &mut String, cell: &str) {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// Numbers are written in the shortest form that reads back to the same bits,
+    /// in the form tables have always had (`1e16`, no `+` in the exponent; `300.0`);
+    /// checked against the `ryu` crate's formatting of the same numbers.
+    #[test]
+    fn numbers_read_back_exactly_in_the_table_form() {
+        let mut buffer = zmij::Buffer::new();
+        let mut reference = ryu::Buffer::new();
+        let mut bits: u64 = 0x9e37_79b9_7f4a_7c15;
+        let mut values = vec![0.0, -0.0, 300.0, 1e16, -2.5e-7, 1.7976931348623157e308, 5e-324];
+        for _ in 0..200_000 {
+            bits ^= bits << 13;
+            bits ^= bits >> 7;
+            bits ^= bits << 17;
+            let value = f64::from_bits(bits);
+            if value.is_finite() {
+                values.push(value);
+            }
+        }
+        for value in values {
+            let mut out = String::new();
+            push_number(&mut out, &mut buffer, value);
+            assert_eq!(out, reference.format_finite(value), "{value:e}");
+            assert_eq!(out.parse::<f64>().unwrap().to_bits(), value.to_bits());
+        }
+        let mut out = String::new();
+        for value in [f64::NAN, f64::INFINITY, f64::NEG_INFINITY] {
+            push_number(&mut out, &mut buffer, value);
+            out.push(' ');
+        }
+        assert_eq!(out, "NaN inf -inf ");
+    }
 
     #[test]
     fn units_in_header_or_cells() {
