@@ -286,7 +286,10 @@ impl Table<'_> {
         }
         let k = row.first + i;
         let start = if k == 0 { 0 } else { self.fields.ends[k - 1] };
-        self.fields.text.get(start..self.fields.ends[k]).unwrap_or("")
+        self.fields
+            .text
+            .get(start..self.fields.ends[k])
+            .unwrap_or("")
     }
 
     /// The fluid and the two input specifications of `row`; fluids named in the
@@ -418,7 +421,15 @@ mod tests {
         let mut buffer = zmij::Buffer::new();
         let mut reference = ryu::Buffer::new();
         let mut bits: u64 = 0x9e37_79b9_7f4a_7c15;
-        let mut values = vec![0.0, -0.0, 300.0, 1e16, -2.5e-7, 1.7976931348623157e308, 5e-324];
+        let mut values = vec![
+            0.0,
+            -0.0,
+            300.0,
+            1e16,
+            -2.5e-7,
+            1.7976931348623157e308,
+            5e-324,
+        ];
         for _ in 0..200_000 {
             bits ^= bits << 13;
             bits ^= bits >> 7;

@@ -49,6 +49,38 @@ fn compare(old: &Value, new: &Value, path: &str, differences: &mut Vec<String>) 
     }
 }
 
+/// Finding values that were read off the traced inversion curve by linear
+/// interpolation when the references were written and are now solved at the point
+/// itself (`Fluid::inversion_pressure_at_temperature`), and the yield re-solved at
+/// the pressure so advised: the interpolation was off by up to 2.2e-4 (measured
+/// over every fluid's curve; 6.3e-5 for hydrogen), so they are held to 3e-4 here;
+/// tests/pressure_advice.rs holds the inversion pressures to 1e-8 of CoolProp's
+/// inversion points.
+const FROM_INVERSION_POINT: &[&str] = &[
+    "inversion_pressure_Pa",
+    "best_high_pressure_Pa",
+    "yield_at_best_pressure",
+];
+
+/// Compares the [`FROM_INVERSION_POINT`] values of a finding at 3e-4 and takes them
+/// out of both, so that the rest is compared as every other figure.
+fn compare_inversion_points(
+    old: &mut Value,
+    new: &mut Value,
+    path: &str,
+    differences: &mut Vec<String>,
+) {
+    for key in FROM_INVERSION_POINT {
+        let a = old["values"].as_object_mut().and_then(|v| v.remove(*key));
+        let b = new["values"].as_object_mut().and_then(|v| v.remove(*key));
+        match (a.and_then(|a| a.as_f64()), b.and_then(|b| b.as_f64())) {
+            (Some(a), Some(b)) if (a - b).abs() <= 3e-4 * a.abs() => {}
+            (None, None) => {}
+            (a, b) => differences.push(format!("{path}/values/{key}: {a:?} now {b:?}")),
+        }
+    }
+}
+
 /// Each old finding is still reported, with the same values.
 fn findings_kept(old: &Value, new: &Value, differences: &mut Vec<String>) {
     let empty = Vec::new();
@@ -58,12 +90,12 @@ fn findings_kept(old: &Value, new: &Value, differences: &mut Vec<String>) {
             .iter()
             .find(|f| f["id"] == finding["id"] && f["equipment"] == finding["equipment"])
         {
-            Some(kept) => compare(
-                finding,
-                kept,
-                &format!("finding {}", finding["id"]),
-                differences,
-            ),
+            Some(kept) => {
+                let path = format!("finding {}", finding["id"]);
+                let (mut finding, mut kept) = (finding.clone(), kept.clone());
+                compare_inversion_points(&mut finding, &mut kept, &path, differences);
+                compare(&finding, &kept, &path, differences)
+            }
             None => differences.push(format!("finding {} is gone", finding["id"])),
         }
     }

@@ -86,6 +86,8 @@ pub struct Fluid {
     pub(crate) residual: ResidualPart,
     /// The inversion curve, traced on first use.
     pub(crate) inversion_cache: std::sync::OnceLock<Result<super::inversion::InversionCurve>>,
+    /// The maximum inversion temperature, found on first use.
+    pub(crate) max_inversion_cache: std::sync::OnceLock<Result<f64>>,
     /// A number of its own among the fluids built in this process, naming its
     /// residual part in the evaluation kept by `Fluid::residual_at_delta`.
     pub(crate) identity: u64,
@@ -218,6 +220,7 @@ impl Fluid {
             ideal,
             residual,
             inversion_cache: std::sync::OnceLock::new(),
+            max_inversion_cache: std::sync::OnceLock::new(),
             identity: NEXT_IDENTITY.fetch_add(1, std::sync::atomic::Ordering::Relaxed),
         };
         let mut fluid = fluid;
@@ -442,6 +445,12 @@ impl Fluid {
                 format!("p = {:.6} MPa", pressure / 1e6),
                 format!("valid above 0 and up to {} MPa", self.pressure_max / 1e6),
             ));
+        }
+        if self.ancillaries.melting.surely_below(
+            temperature.max(self.ancillaries.melting.temperature_min()),
+            pressure,
+        ) {
+            return Ok(());
         }
         if let Some(melting) = self.melting_pressure(temperature) {
             if pressure > melting * (1.0 + 1e-6) {

@@ -241,9 +241,110 @@ impl Fluid {
         }
     }
 
+    /// The maximum inversion temperature, found once per fluid and kept (see
+    /// [`Fluid::max_inversion_temperature`]).
+    pub fn max_inversion_temperature_kept(&self) -> Result<f64> {
+        self.max_inversion_cache
+            .get_or_init(|| self.max_inversion_temperature())
+            .clone()
+    }
+
+    /// The inversion pressure at temperature `t` (Pa): the point of the inversion
+    /// curve at that temperature on its gas side, which is where a walk along the
+    /// curve from its zero-pressure end first reaches `t`. Solved at `t` alone,
+    /// without tracing the curve: at fixed T, F(τ, δ) keeps the sign it has in the
+    /// dilute gas up to the curve's density (stepping over the two-phase dome), so
+    /// the density is bracketed by steps of 2 % of the critical density from a
+    /// millionth of it and refined (to 1e-13 of the critical
+    /// density). `None` where the curve does not reach `t`: at or above the maximum
+    /// inversion temperature, or where its point at `t` would lie beyond the traced
+    /// curve's stops (the saturated liquid, the melting line, the lowest
+    /// temperature or the highest pressure of the equation).
+    pub fn inversion_pressure_at_temperature(&self, temperature: f64) -> Result<Option<f64>> {
+        if !(temperature > 0.0 && temperature < self.max_inversion_temperature_kept()?) {
+            return Ok(None);
+        }
+        let factors = self.tau_factors(temperature);
+        let tau = factors.tau();
+        let function = |density: f64| {
+            let delta = self.delta(density);
+            let r = self.residual_at(&factors, density);
+            delta * r.alpha_delta
+                + delta * delta * r.alpha_delta_delta
+                + delta * tau * r.alpha_delta_tau
+        };
+        let rho_c = self.critical.density;
+        let step = 0.02 * rho_c;
+        let limit = 6.0 * rho_c;
+        // The sign in the dilute gas, where F ≈ δ(b + τ b_τ) (F itself vanishes
+        // with δ); next to the maximum inversion temperature the curve's density
+        // is below the first step.
+        let mut low = 1e-6 * rho_c;
+        let dilute = function(low).signum();
+        // The dilute gas lies inside the curve at every temperature the curve
+        // reaches from its zero-pressure end; near some triple points the equations'
+        // virial terms turn the other way, which makes a separate locus of F = 0 in
+        // the dilute vapour, off the curve.
+        let just_below_top = 0.999 * self.max_inversion_temperature_kept()?;
+        let inside = inversion_function(self, just_below_top, low).signum();
+        if dilute != inside {
+            return Ok(None);
+        }
+        // Below the critical temperature the search steps over the two-phase dome,
+        // where the equation's F can change sign without meaning (the traced curve
+        // stops where it would enter the dome): where the curve reaches the
+        // temperature on the liquid side, the saturated liquid lies on the dilute
+        // gas's side of it.
+        let dome = if temperature < self.saturation_temperature_max()
+            && temperature >= self.triple_temperature
+        {
+            self.saturation_at_temperature(temperature)
+                .ok()
+                .map(|s| (s.vapour.density, s.liquid.density))
+        } else {
+            None
+        };
+        let mut bracket = None;
+        while low < limit {
+            let mut high = if low < step { step } else { low + step };
+            if let Some((vapour, liquid)) = dome {
+                if high > vapour && low < liquid {
+                    if low < vapour && function(vapour).signum() != dilute {
+                        bracket = Some((low, vapour));
+                        break;
+                    }
+                    // A saturated liquid already across the curve: the curve meets
+                    // this temperature inside the dome, where the trace has ended.
+                    if function(liquid).signum() != dilute {
+                        return Ok(None);
+                    }
+                    low = liquid;
+                    high = liquid + step;
+                }
+            }
+            if function(high).signum() != dilute {
+                bracket = Some((low, high));
+                break;
+            }
+            low = high;
+        }
+        let Some((low, high)) = bracket else {
+            return Ok(None);
+        };
+        let density = bracketed_root(
+            "inversion density at a temperature",
+            function,
+            low,
+            high,
+            1e-13 * rho_c,
+        )?;
+        let point = self.inversion_point(temperature, density);
+        Ok(self.curve_stop(&point).is_none().then_some(point.pressure))
+    }
+
     /// Traces the whole inversion curve and its characteristic figures.
     pub fn inversion_curve(&self) -> Result<InversionCurve> {
-        let t0 = self.max_inversion_temperature()?;
+        let t0 = self.max_inversion_temperature_kept()?;
         let boyle = self.boyle_temperature()?;
         let rho_c = self.critical.density;
         let mut curve = vec![InversionPoint {

@@ -79,12 +79,12 @@ fn valves(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
         let inlet = &solution.streams[unit.inlets[0]];
         let outlet = &solution.streams[unit.outlets[0]];
         let fluid = inlet.state.fluid();
-        let Ok(curve) = fluid.inversion() else {
+        let Ok(max_inversion_temperature) = fluid.max_inversion_temperature_kept() else {
             continue;
         };
         let t_in = inlet.state.temperature;
         let id = unit.id.as_str();
-        if t_in > curve.max_inversion_temperature && inlet.state.phase != Phase::TwoPhase {
+        if t_in > max_inversion_temperature && inlet.state.phase != Phase::TwoPhase {
             out.push(
                 Finding::new(
                     "valve-above-inversion-temperature",
@@ -92,12 +92,12 @@ fn valves(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
                     Some(id),
                     format!(
                         "the valve inlet is at {t_in:.2} K, above {}'s maximum inversion temperature {:.1} K: throttling can only warm it",
-                        fluid.name, curve.max_inversion_temperature
+                        fluid.name, max_inversion_temperature
                     ),
-                    format!("bring the inlet below {:.0} K — {}", curve.max_inversion_temperature, precooling_advice(fluid)),
+                    format!("bring the inlet below {max_inversion_temperature:.0} K — {}", precooling_advice(fluid)),
                 )
                 .value("inlet_temperature_K", t_in)
-                .value("max_inversion_temperature_K", curve.max_inversion_temperature),
+                .value("max_inversion_temperature_K", max_inversion_temperature),
             );
             continue;
         }
@@ -119,7 +119,7 @@ fn valves(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
                 .value("inlet_temperature_K", t_in)
                 .value("inlet_pressure_Pa", inlet.state.pressure)
                 .value("temperature_change_K", outlet.state.temperature - t_in);
-            if let Some(p) = super::pressure::inversion_pressure_at(curve, t_in) {
+            if let Ok(Some(p)) = fluid.inversion_pressure_at_temperature(t_in) {
                 finding = finding.value("inversion_pressure_Pa", p);
             }
             out.push(finding);
@@ -205,8 +205,8 @@ fn no_liquid(plant: &Plant, solution: &Solution, out: &mut Vec<Finding>) {
             let s = &solution.streams[u.inlets[0]];
             s.state
                 .fluid()
-                .inversion()
-                .is_ok_and(|c| s.state.temperature > c.max_inversion_temperature)
+                .max_inversion_temperature_kept()
+                .is_ok_and(|t| s.state.temperature > t)
         })
         .map(|u| u.id.as_str())
         .collect();

@@ -13,7 +13,6 @@
 use super::{Finding, Severity};
 use crate::equipment::UnitSpec;
 use crate::flowsheet::Plant;
-use crate::fluids::inversion::InversionCurve;
 use crate::fluids::Phase;
 use crate::solve::{solve, Options, Solution};
 
@@ -55,20 +54,6 @@ impl PressureAdvice {
     pub fn confirmed(&self) -> bool {
         matches!(self.yield_at_best, Ok(y) if y > self.current_yield * (1.0 + 1e-9) && y > 0.0)
     }
-}
-
-/// The inversion pressure at `t`: where the traced curve passes through that
-/// temperature (walking from its zero-pressure end, the upper branch first).
-pub fn inversion_pressure_at(curve: &InversionCurve, t: f64) -> Option<f64> {
-    curve.curve.windows(2).find_map(|w| {
-        let (a, b) = (w[0], w[1]);
-        if (a.temperature >= t && b.temperature <= t) && a.temperature != b.temperature {
-            let f = (a.temperature - t) / (a.temperature - b.temperature);
-            Some(a.pressure + f * (b.pressure - a.pressure))
-        } else {
-            None
-        }
-    })
 }
 
 /// The exchanger whose hot outlet reaches the valve (through transfer lines and
@@ -161,10 +146,10 @@ pub fn advice(plant: &Plant, solution: &Solution) -> Vec<PressureAdvice> {
             continue;
         }
         let warm = &solution.streams[hot_in].state;
-        let Ok(curve) = warm.fluid().inversion() else {
-            continue;
-        };
-        let Some(p_inv) = inversion_pressure_at(curve, warm.temperature) else {
+        let Ok(Some(p_inv)) = warm
+            .fluid()
+            .inversion_pressure_at_temperature(warm.temperature)
+        else {
             continue;
         };
         if ((warm.pressure - p_inv) / p_inv).abs() <= PRESSURE_TOLERANCE {
