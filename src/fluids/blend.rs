@@ -23,6 +23,8 @@ use super::spec::{Property, Spec};
 use super::spin;
 use super::state::{SaturatedPair, State};
 use crate::error::{Error, Result};
+use super::recent::{remembered, Recent};
+use std::cell::RefCell;
 use std::sync::OnceLock;
 
 /// The highest pressure at which the blend is given two phases, Pa: below the
@@ -69,13 +71,25 @@ pub struct Blend {
 thread_local! {
     /// The last few pressures (their bits) whose species' boiling temperatures
     /// were found, with them ([`Blend::boiling_temperatures`]); there is one blend.
-    static LAST_BOILING: std::cell::RefCell<std::collections::VecDeque<(u64, (f64, f64))>> =
-        const { std::cell::RefCell::new(std::collections::VecDeque::new()) };
+    static LAST_BOILING: RefCell<Recent<u64, (f64, f64)>> =
+        const { RefCell::new(Recent::new(KEPT_PRESSURES)) };
+    /// The last few (pressure, para fraction) pairs' saturation temperatures
+    /// ([`Blend::saturation_temperature`]).
+    static LAST_SATURATION_TEMPERATURE: RefCell<Recent<(u64, u64), f64>> =
+        const { RefCell::new(Recent::new(KEPT_COMPOSITIONS)) };
+    /// The last few (pressure, para fraction) pairs' saturated liquid and vapour
+    /// ([`Blend::saturated_pair`]).
+    static LAST_SATURATED_PAIR: RefCell<Recent<(u64, u64), SaturatedPair>> =
+        const { RefCell::new(Recent::new(KEPT_COMPOSITIONS)) };
 }
 
 /// How many pressures' boiling temperatures are kept: a flowsheet's two-phase
 /// hydrogen sits at a few pressures (valve outlets, separators, feeds).
 const KEPT_PRESSURES: usize = 8;
+
+/// How many (pressure, para fraction) pairs' saturation answers are kept: each
+/// two-phase stream of a pass asks its own, and settled passes ask them again.
+const KEPT_COMPOSITIONS: usize = 16;
 
 /// The ideal-gas enthalpy and entropy of one species at (T, p), per mole.
 fn ideal_gas_molar(fluid: &Fluid, temperature: f64, pressure: f64) -> (f64, f64) {
@@ -228,21 +242,36 @@ impl Blend {
         Ok(())
     }
 
-    /// One species' density at (T, p) on the liquid or vapour side (metastable where
-    /// the other species' saturation has been crossed), or its unique root above its
-    /// critical temperature.
-    fn species_density(
+    /// One species' properties at (T, p) on the liquid or vapour side (metastable
+    /// where the other species' saturation has been crossed), or at its unique root
+    /// above its critical temperature; the τ factors are computed once for the
+    /// density search and the properties.
+    fn species_properties(
         fluid: &Fluid,
         temperature: f64,
         pressure: f64,
         liquid: bool,
         near: Option<f64>,
-    ) -> Result<f64> {
+    ) -> Result<Properties> {
         let factors = fluid.tau_factors(temperature);
+        let density = Self::species_density(fluid, &factors, temperature, pressure, liquid, near)?;
+        // The density search's last evaluation, kept per thread, serves these.
+        Ok(fluid.properties_with(&factors, temperature, density))
+    }
+
+    /// One species' density at (T, p); see [`Blend::species_properties`].
+    fn species_density(
+        fluid: &Fluid,
+        factors: &super::helmholtz::TauFactors,
+        temperature: f64,
+        pressure: f64,
+        liquid: bool,
+        near: Option<f64>,
+    ) -> Result<f64> {
         // Above the critical temperature the isotherm has one root.
         if temperature >= fluid.saturation_temperature_max() {
             return fluid.density_on_branch(
-                &factors,
+                factors,
                 temperature,
                 pressure,
                 Branch::Supercritical,
@@ -258,7 +287,7 @@ impl Blend {
             let critical = fluid.critical.density;
             let low = (0.8 * liquid_density).max(critical);
             let seed = near.filter(|rho| *rho > low).unwrap_or(liquid_density);
-            fluid.solve_density(&factors, temperature, pressure, seed, low, f64::INFINITY)
+            fluid.solve_density(factors, temperature, pressure, seed, low, f64::INFINITY)
         } else {
             let high = (1.6 * vapour_density).min(fluid.critical.density);
             let seed = near
@@ -268,8 +297,32 @@ impl Blend {
                         .ideal_gas_density(temperature, pressure)
                         .min(vapour_density)
                 });
-            fluid.solve_density(&factors, temperature, pressure, seed, 0.0, high)
+            fluid.solve_density(factors, temperature, pressure, seed, 0.0, high)
         }
+    }
+
+    /// Both species' properties at (T, p) on both sides, [liquid, vapour], each
+    /// species' τ factors computed once; `near` seeds each side's density searches
+    /// as in [`Blend::species_near`].
+    fn species_both_sides(
+        &self,
+        temperature: f64,
+        pressure: f64,
+        near: Option<[(f64, f64); 2]>,
+    ) -> Result<[(Properties, Properties); 2]> {
+        let one = |fluid: &Fluid, pick: fn(&(f64, f64)) -> f64| -> Result<[Properties; 2]> {
+            let factors = fluid.tau_factors(temperature);
+            let side = |index: usize, liquid: bool| -> Result<Properties> {
+                let seed = near.map(|n| pick(&n[index]));
+                let density =
+                    Self::species_density(fluid, &factors, temperature, pressure, liquid, seed)?;
+                Ok(fluid.properties_with(&factors, temperature, density))
+            };
+            Ok([side(0, true)?, side(1, false)?])
+        };
+        let [para_liquid, para_vapour] = one(self.para, |n| n.0)?;
+        let [ortho_liquid, ortho_vapour] = one(self.ortho, |n| n.1)?;
+        Ok([(para_liquid, ortho_liquid), (para_vapour, ortho_vapour)])
     }
 
     /// Both species' properties at (T, p) on one side.
@@ -292,14 +345,11 @@ impl Blend {
         liquid: bool,
         near: Option<(f64, f64)>,
     ) -> Result<(Properties, Properties)> {
-        // Each species' properties straight after its density: the density solve's
-        // last evaluation, kept per thread, then serves them.
-        let para_density =
-            Self::species_density(self.para, temperature, pressure, liquid, near.map(|n| n.0))?;
-        let para = self.para.properties(temperature, para_density);
-        let ortho_density =
-            Self::species_density(self.ortho, temperature, pressure, liquid, near.map(|n| n.1))?;
-        Ok((para, self.ortho.properties(temperature, ortho_density)))
+        let para =
+            Self::species_properties(self.para, temperature, pressure, liquid, near.map(|n| n.0))?;
+        let ortho =
+            Self::species_properties(self.ortho, temperature, pressure, liquid, near.map(|n| n.1))?;
+        Ok((para, ortho))
     }
 
     /// The solution's properties from its species' properties at one (T, p).
@@ -345,39 +395,34 @@ impl Blend {
     /// temperatures ask for the same pressures' again and again, and each is a
     /// saturation solve of each species.
     fn boiling_temperatures(&self, pressure: f64) -> Result<(f64, f64)> {
-        let key = pressure.to_bits();
-        let kept = LAST_BOILING.with(|last| {
-            last.borrow()
-                .iter()
-                .find(|(at, _)| *at == key)
-                .map(|(_, pair)| *pair)
-        });
-        if let Some(pair) = kept {
-            return Ok(pair);
-        }
-        let pair = (
-            self.para
-                .saturation_at_pressure(pressure)?
-                .liquid
-                .temperature,
-            self.ortho
-                .saturation_at_pressure(pressure)?
-                .liquid
-                .temperature,
-        );
-        LAST_BOILING.with(|last| {
-            let mut last = last.borrow_mut();
-            if last.len() == KEPT_PRESSURES {
-                last.pop_front();
-            }
-            last.push_back((key, pair));
-        });
-        Ok(pair)
+        remembered(&LAST_BOILING, pressure.to_bits(), || {
+            Ok((
+                self.para
+                    .saturation_at_pressure(pressure)?
+                    .liquid
+                    .temperature,
+                self.ortho
+                    .saturation_at_pressure(pressure)?
+                    .liquid
+                    .temperature,
+            ))
+        })
     }
 
     /// The blend's saturation temperature at p for para fraction x (K), where the
     /// mole-weighted Gibbs energies of the liquid and vapour solutions are equal.
+    /// The last few pairs' answers are kept per thread (the same bits in give the
+    /// same bits out).
     pub fn saturation_temperature(&self, pressure: f64, para_fraction: f64) -> Result<f64> {
+        remembered(
+            &LAST_SATURATION_TEMPERATURE,
+            (pressure.to_bits(), para_fraction.to_bits()),
+            || self.solve_saturation_temperature(pressure, para_fraction),
+        )
+    }
+
+    /// [`Blend::saturation_temperature`], solved.
+    fn solve_saturation_temperature(&self, pressure: f64, para_fraction: f64) -> Result<f64> {
         let (tp, to) = self.boiling_temperatures(pressure)?;
         if para_fraction >= 1.0 {
             return Ok(tp);
@@ -390,12 +435,8 @@ impl Blend {
         // Each step's species densities seed the next step's.
         let last: std::cell::Cell<Option<[(f64, f64); 2]>> = std::cell::Cell::new(None);
         let gap = |t: f64| -> (f64, f64) {
-            let seeds = last.get();
-            match (
-                self.species_near(t, pressure, true, seeds.map(|s| s[0])),
-                self.species_near(t, pressure, false, seeds.map(|s| s[1])),
-            ) {
-                (Ok((pl, ol)), Ok((pv, ov))) => {
+            match self.species_both_sides(t, pressure, last.get()) {
+                Ok([(pl, ol), (pv, ov)]) => {
                     last.set(Some([(pl.density, ol.density), (pv.density, ov.density)]));
                     let (wp, wo) = (
                         para_fraction * self.para.molar_mass,
@@ -422,15 +463,21 @@ impl Blend {
     }
 
     /// The saturated liquid and vapour solutions at p for para fraction x.
+    /// The last few pairs' answers are kept per thread.
     pub fn saturated_pair(&self, pressure: f64, para_fraction: f64) -> Result<SaturatedPair> {
         self.check_saturation_pressure(pressure)?;
-        let t = self.saturation_temperature(pressure, para_fraction)?;
-        let (pl, ol) = self.species(t, pressure, true)?;
-        let (pv, ov) = self.species(t, pressure, false)?;
-        Ok(SaturatedPair {
-            liquid: self.mix(para_fraction, &pl, &ol),
-            vapour: self.mix(para_fraction, &pv, &ov),
-        })
+        remembered(
+            &LAST_SATURATED_PAIR,
+            (pressure.to_bits(), para_fraction.to_bits()),
+            || {
+                let t = self.saturation_temperature(pressure, para_fraction)?;
+                let [(pl, ol), (pv, ov)] = self.species_both_sides(t, pressure, None)?;
+                Ok(SaturatedPair {
+                    liquid: self.mix(para_fraction, &pl, &ol),
+                    vapour: self.mix(para_fraction, &pv, &ov),
+                })
+            },
+        )
     }
 
     fn check_saturation_pressure(&self, pressure: f64) -> Result<()> {

@@ -17,6 +17,7 @@ mod fluid;
 pub mod helmholtz;
 pub mod inversion;
 pub mod material;
+mod recent;
 pub mod saturation;
 pub mod saturation_table;
 pub mod spec;
