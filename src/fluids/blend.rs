@@ -19,11 +19,11 @@
 
 use super::density::Branch;
 use super::fluid::{Fluid, Properties};
+use super::recent::{remembered, Recent};
 use super::spec::{Property, Spec};
 use super::spin;
 use super::state::{SaturatedPair, State};
 use crate::error::{Error, Result};
-use super::recent::{remembered, Recent};
 use std::cell::RefCell;
 use std::sync::OnceLock;
 

@@ -3,7 +3,9 @@
 
 use super::ancillary::MeltingLine;
 use super::file::{AncillaryEquation, FluidFile, ReferenceStateName};
-use super::helmholtz::{IdealPart, ResidualDerivatives, ResidualPart, TauFactors};
+use super::helmholtz::{
+    IdealDerivatives, IdealPart, ResidualDerivatives, ResidualPart, TauFactors,
+};
 use super::saturation_table::SaturationTable;
 use crate::error::{Error, Result};
 
@@ -89,7 +91,9 @@ pub struct Fluid {
     /// The maximum inversion temperature, found on first use.
     pub(crate) max_inversion_cache: std::sync::OnceLock<Result<f64>>,
     /// A number of its own among the fluids built in this process, naming its
-    /// residual part in the evaluation kept by `Fluid::residual_at_delta`.
+    /// equation as it stands in the evaluations kept by `Fluid::residual_at_delta`
+    /// and `Fluid::ideal_at` (a new number whenever the equation is changed, as
+    /// when its reference state is set).
     pub(crate) identity: u64,
 }
 
@@ -136,6 +140,10 @@ type ResidualKey = (u64, u64, u64);
 thread_local! {
     /// The last residual evaluation on this thread (see `Fluid::residual_at_delta`).
     static LAST_RESIDUAL: std::cell::Cell<Option<(ResidualKey, ResidualDerivatives)>> =
+        const { std::cell::Cell::new(None) };
+    /// The last ideal-part evaluation on this thread (see `Fluid::ideal_at`): which
+    /// fluid's and τ (its bits).
+    static LAST_IDEAL: std::cell::Cell<Option<((u64, u64), IdealDerivatives)>> =
         const { std::cell::Cell::new(None) };
 }
 
@@ -249,6 +257,9 @@ impl Fluid {
         let liquid = self.properties(saturation.liquid.temperature, saturation.liquid.density);
         self.ideal.lead_tau -= liquid.enthalpy / (self.gas_constant * self.reducing_temperature);
         self.ideal.lead_constant += liquid.entropy / self.gas_constant;
+        // The equation has changed: evaluations kept under the old number are not
+        // its own any more.
+        self.identity = NEXT_IDENTITY.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
         Ok(())
     }
 
@@ -290,6 +301,24 @@ impl Fluid {
         })
     }
 
+    /// The ideal part at τ. The last evaluation of each thread is kept: the liquid
+    /// and vapour of a saturation, or a species on both sides of the ortho–para
+    /// solution's boiling, are evaluated at one τ one after the other (the same bits
+    /// in, the same bits out).
+    fn ideal_at(&self, tau: f64) -> IdealDerivatives {
+        let key = (self.identity, tau.to_bits());
+        LAST_IDEAL.with(|last| {
+            if let Some((k, i)) = last.get() {
+                if k == key {
+                    return i;
+                }
+            }
+            let i = self.ideal.evaluate(tau);
+            last.set(Some((key, i)));
+            i
+        })
+    }
+
     /// Pressure and (∂p/∂ρ)_T at (T, ρ), from precomputed τ factors.
     pub fn pressure_and_slope(
         &self,
@@ -321,7 +350,7 @@ impl Fluid {
         let tau = factors.tau();
         let delta = self.delta(density);
         let r = self.residual_at_delta(factors, delta);
-        let i = self.ideal.evaluate(tau);
+        let i = self.ideal_at(tau);
         let rt = self.gas_constant * temperature;
         let big_r = self.gas_constant;
         let d_ar = delta * r.alpha_delta;
