@@ -1,9 +1,13 @@
 //! The saturation line tabulated from the fluid's own equation of state, for quick
 //! phase decisions and close seeds.
 //!
-//! When a fluid is loaded, the exact saturated states are solved at
-//! [`SATURATION_TABLE_NODES`] temperatures evenly spaced from the triple point to the
-//! top of the saturation range. Each node keeps ln p, ρ′, ln ρ″, h′, h″, s′ and s″ and
+//! The table has [`SATURATION_TABLE_NODES`] nodes, exact saturated states at
+//! temperatures evenly spaced from the triple point to the top of the saturation
+//! range. Each node, and each cell's error, is solved the first time a lookup needs
+//! it and kept (a run asks for a few cells of a few fluids; solving the whole table
+//! when a fluid was loaded took 257 exact saturations a fluid). Every node is solved
+//! by the fluid as it was before it had a table, seeded by its ancillary equations,
+//! so each is the same whenever it is solved. Each node keeps ln p, ρ′, ln ρ″, h′, h″, s′ and s″ and
 //! their exact slopes along the saturation line (Clausius–Clapeyron for ln p, the chain
 //! rule through (∂/∂T)_ρ and (∂/∂ρ)_T for the rest), and cubic Hermite interpolation
 //! joins the nodes. A lookup costs a few dozen multiplications and no transcendental
@@ -16,6 +20,7 @@
 
 use super::fluid::{Fluid, Properties};
 use crate::error::Result;
+use std::sync::OnceLock;
 
 /// Number of nodes of the table.
 pub const SATURATION_TABLE_NODES: usize = 129;
@@ -99,9 +104,16 @@ pub struct ApproximateSaturation {
 /// while the fluid is being built).
 #[derive(Debug, Clone, Default)]
 pub struct SaturationTable {
-    nodes: Vec<Node>,
-    /// Per cell (between node i and i + 1), its measured error.
-    errors: Vec<TableError>,
+    /// The fluid whose saturation the nodes are, as it was before it had a table.
+    source: Option<Box<Fluid>>,
+    /// The first node's temperature and the top of the range, K.
+    low: f64,
+    high: f64,
+    /// The nodes, each solved when first needed (`None` where its solve failed).
+    nodes: Vec<OnceLock<Option<Node>>>,
+    /// Per cell (between node i and i + 1), its measured error, found when first
+    /// needed.
+    errors: Vec<OnceLock<Option<TableError>>>,
     /// Temperature step between nodes, K.
     step: f64,
 }
@@ -132,35 +144,75 @@ impl SaturationTable {
         self.nodes.len() < 2
     }
 
+    /// The temperature of node `i` (a half-integer `i` is the middle of a cell), K.
+    fn temperature_at(&self, i: f64) -> f64 {
+        (self.low + self.step * i).min(self.high)
+    }
+
+    /// Node `i`, solved and kept the first time it is asked for.
+    fn node(&self, i: usize) -> Option<&Node> {
+        self.nodes[i]
+            .get_or_init(|| {
+                let source = self.source.as_ref()?;
+                source.saturation_node(self.temperature_at(i as f64)).ok()
+            })
+            .as_ref()
+    }
+
+    /// The measured error of cell `cell`, found and kept the first time it is asked
+    /// for.
+    fn error(&self, cell: usize) -> Option<TableError> {
+        *self.errors[cell].get_or_init(|| self.measure_error(cell))
+    }
+
     /// The temperature range the table covers, K.
     pub fn temperature_range(&self) -> Option<(f64, f64)> {
-        (!self.is_empty()).then(|| (self.nodes[0].temperature, self.last().temperature))
+        (!self.is_empty()).then(|| {
+            (
+                self.temperature_at(0.0),
+                self.temperature_at(self.last_index() as f64),
+            )
+        })
+    }
+
+    /// Whether every node and every cell's error can be solved (each is solved on
+    /// the way, and kept).
+    pub fn solves_whole(&self) -> bool {
+        (0..self.nodes.len()).all(|i| self.node(i).is_some())
+            && (0..self.errors.len()).all(|cell| self.error(cell).is_some())
     }
 
     /// The largest measured error over the cells whose saturation pressure lies below
     /// `pressure`.
     pub fn largest_error_below(&self, pressure: f64) -> TableError {
         let limit = pressure.ln();
-        self.errors
-            .iter()
-            .zip(&self.nodes)
-            .filter(|(_, node)| node.values[LN_PRESSURE] < limit)
-            .fold(TableError::default(), |worst, (error, _)| worst.max(*error))
+        (0..self.errors.len())
+            .filter(|&cell| {
+                self.node(cell)
+                    .is_some_and(|node| node.values[LN_PRESSURE] < limit)
+            })
+            .filter_map(|cell| self.error(cell))
+            .fold(TableError::default(), |worst, error| worst.max(error))
     }
 
-    fn last(&self) -> &Node {
-        &self.nodes[self.nodes.len() - 1]
+    fn last_index(&self) -> usize {
+        self.nodes.len() - 1
     }
 
-    /// Interpolates every column in cell `cell` at temperature T.
-    fn interpolate(&self, cell: usize, temperature: f64) -> ApproximateSaturation {
-        let (a, b) = (&self.nodes[cell], &self.nodes[cell + 1]);
+    /// Interpolates every column in cell `cell` at temperature T, reporting `error`.
+    fn interpolate(
+        &self,
+        cell: usize,
+        temperature: f64,
+        error: TableError,
+    ) -> Option<ApproximateSaturation> {
+        let (a, b) = (self.node(cell)?, self.node(cell + 1)?);
         let t = (temperature - a.temperature) / self.step;
         let (weights, slope_weights) = hermite_basis(t, self.step);
         let column = |c: usize, w: &[f64; 4]| {
             w[0] * a.values[c] + w[1] * a.slopes[c] + w[2] * b.values[c] + w[3] * b.slopes[c]
         };
-        ApproximateSaturation {
+        Some(ApproximateSaturation {
             temperature,
             pressure: column(LN_PRESSURE, &weights).exp(),
             ln_pressure_slope: column(LN_PRESSURE, &slope_weights),
@@ -170,44 +222,61 @@ impl SaturationTable {
             vapour_enthalpy: column(VAPOUR_ENTHALPY, &weights),
             liquid_entropy: column(LIQUID_ENTROPY, &weights),
             vapour_entropy: column(VAPOUR_ENTROPY, &weights),
-            error: self.errors.get(cell).copied().unwrap_or_default(),
+            error,
+        })
+    }
+
+    /// The cell holding temperature T, or `None` outside the table.
+    fn cell_at_temperature(&self, temperature: f64) -> Option<usize> {
+        let first = self.temperature_at(0.0);
+        let last = self.temperature_at(self.last_index() as f64);
+        if self.is_empty() || !(temperature >= first && temperature <= last) {
+            return None;
         }
+        Some((((temperature - first) / self.step) as usize).min(self.nodes.len() - 2))
     }
 
     /// The approximate saturated states at temperature T (K); `None` outside the
     /// table.
     pub fn at_temperature(&self, temperature: f64) -> Option<ApproximateSaturation> {
-        if self.is_empty()
-            || !(temperature >= self.nodes[0].temperature && temperature <= self.last().temperature)
-        {
-            return None;
-        }
-        let cell = (((temperature - self.nodes[0].temperature) / self.step) as usize)
-            .min(self.nodes.len() - 2);
-        Some(self.interpolate(cell, temperature))
+        let cell = self.cell_at_temperature(temperature)?;
+        self.interpolate(cell, temperature, self.error(cell)?)
     }
 
     /// The approximate saturated states at pressure p (Pa); `None` outside the table.
     /// The temperature solves the cell's cubic for ln p by Newton's method kept inside
     /// the cell (bisection when a step leaves it).
     pub fn at_pressure(&self, pressure: f64) -> Option<ApproximateSaturation> {
+        let (cell, temperature) = self.cell_at_pressure(pressure)?;
+        self.interpolate(cell, temperature, self.error(cell)?)
+    }
+
+    /// The cell and temperature of [`SaturationTable::at_pressure`].
+    fn cell_at_pressure(&self, pressure: f64) -> Option<(usize, f64)> {
         if self.is_empty() || !(pressure > 0.0) {
             return None;
         }
-        let first = self.nodes[0].values[LN_PRESSURE];
-        let last = self.last().values[LN_PRESSURE];
+        let first = self.node(0)?.values[LN_PRESSURE];
+        let last = self.node(self.last_index())?.values[LN_PRESSURE];
         // Within rounding (1e-9 in ln p) of an end is that end.
         let target = pressure.ln();
         if !(target >= first - 1e-9 && target <= last + 1e-9) {
             return None;
         }
         let target = target.clamp(first, last);
-        let cell = self
-            .nodes
-            .partition_point(|node| node.values[LN_PRESSURE] <= target)
-            .clamp(1, self.nodes.len() - 1)
-            - 1;
-        let (a, b) = (&self.nodes[cell], &self.nodes[cell + 1]);
+        // How many nodes lie at or below the target (ln p rises with T): a binary
+        // search, which solves only the nodes it looks at.
+        let (mut below, mut above) = (0, self.nodes.len());
+        while below < above {
+            let middle = below + (above - below) / 2;
+            if self.node(middle)?.values[LN_PRESSURE] <= target {
+                below = middle + 1;
+            } else {
+                above = middle;
+            }
+        }
+        let cell = below.clamp(1, self.nodes.len() - 1) - 1;
+        let (a, b) = (self.node(cell)?, self.node(cell + 1)?);
         let (y0, y1) = (a.values[LN_PRESSURE], b.values[LN_PRESSURE]);
         let (m0, m1) = (a.slopes[LN_PRESSURE], b.slopes[LN_PRESSURE]);
         let (mut low, mut high) = (0.0f64, 1.0f64);
@@ -238,8 +307,49 @@ impl SaturationTable {
         }
         // The loop ends within rounding of the cubic's root or on the cap with the
         // root bracketed in [low, high]; the measured cell error covers either.
-        let temperature = a.temperature + t * self.step;
-        Some(self.interpolate(cell, temperature))
+        Some((cell, a.temperature + t * self.step))
+    }
+
+    /// Measures cell `cell`'s error halfway between its nodes against the exact
+    /// saturation there.
+    fn measure_error(&self, cell: usize) -> Option<TableError> {
+        let middle = self.temperature_at(cell as f64 + 0.5);
+        let exact = self.source.as_ref()?.saturation_node(middle).ok()?;
+        let value = |c: usize| exact.values[c];
+        let mut error = TableError::default();
+        let by_temperature = self
+            .cell_at_temperature(middle)
+            .and_then(|c| self.interpolate(c, middle, TableError::default()));
+        if let Some(by_temperature) = by_temperature {
+            error.ln_pressure = (by_temperature.pressure.ln() - value(LN_PRESSURE)).abs();
+            error.density = ((by_temperature.liquid_density / value(LIQUID_DENSITY) - 1.0).abs())
+                .max((by_temperature.vapour_density.ln() - value(LN_VAPOUR_DENSITY)).abs());
+        }
+        let by_pressure = self
+            .cell_at_pressure(value(LN_PRESSURE).exp())
+            .and_then(|(c, t)| self.interpolate(c, t, TableError::default()));
+        if let Some(by_pressure) = by_pressure {
+            error.temperature = (by_pressure.temperature - middle).abs();
+            error.enthalpy = (by_pressure.liquid_enthalpy - value(LIQUID_ENTHALPY))
+                .abs()
+                .max((by_pressure.vapour_enthalpy - value(VAPOUR_ENTHALPY)).abs());
+            error.entropy = (by_pressure.liquid_entropy - value(LIQUID_ENTROPY))
+                .abs()
+                .max((by_pressure.vapour_entropy - value(VAPOUR_ENTROPY)).abs());
+        }
+        // No cell is sharper than the exact saturation it is compared with (solved
+        // to about 1e-12): the errors are floored at 1e-10 of each quantity.
+        let floor = 1e-10;
+        error.ln_pressure = error.ln_pressure.max(floor);
+        error.temperature = error.temperature.max(floor * middle);
+        error.density = error.density.max(floor);
+        error.enthalpy = error
+            .enthalpy
+            .max(floor * (value(VAPOUR_ENTHALPY) - value(LIQUID_ENTHALPY)).abs());
+        error.entropy = error
+            .entropy
+            .max(floor * (value(VAPOUR_ENTROPY) - value(LIQUID_ENTROPY)).abs());
+        Some(error)
     }
 }
 
@@ -290,9 +400,10 @@ impl Fluid {
         })
     }
 
-    /// Builds the saturation table from the triple point to the top of the saturation
-    /// range, then measures each cell's error halfway between its nodes against the
-    /// exact saturation there. Empty for a pseudo-pure fluid.
+    /// The saturation table, its nodes and cell errors to be solved when first
+    /// needed, from the triple point to the top of the saturation range. Empty for
+    /// a pseudo-pure fluid. Called last when the fluid is built: the nodes are solved
+    /// by the fluid as it is then (its final reference state, no table yet).
     pub(crate) fn build_saturation_table(&self) -> Result<SaturationTable> {
         if self.pseudo_pure {
             return Ok(SaturationTable::default());
@@ -300,53 +411,69 @@ impl Fluid {
         let low = self.triple_temperature;
         let high = self.saturation_temperature_max();
         let intervals = (SATURATION_TABLE_NODES - 1) as f64;
-        let step = (high - low) / intervals;
-        let at = |i: f64| (low + step * i).min(high);
-        let mut nodes = Vec::with_capacity(SATURATION_TABLE_NODES);
-        for i in 0..SATURATION_TABLE_NODES {
-            nodes.push(self.saturation_node(at(i as f64))?);
-        }
-        let mut table = SaturationTable {
-            nodes,
-            errors: Vec::new(),
-            step,
-        };
-        let mut errors = Vec::with_capacity(SATURATION_TABLE_NODES - 1);
-        for i in 0..SATURATION_TABLE_NODES - 1 {
-            let middle = at(i as f64 + 0.5);
-            let exact = self.saturation_node(middle)?;
-            let value = |c: usize| exact.values[c];
-            let mut error = TableError::default();
-            if let Some(by_temperature) = table.at_temperature(middle) {
-                error.ln_pressure = (by_temperature.pressure.ln() - value(LN_PRESSURE)).abs();
-                error.density = ((by_temperature.liquid_density / value(LIQUID_DENSITY) - 1.0)
-                    .abs())
-                .max((by_temperature.vapour_density.ln() - value(LN_VAPOUR_DENSITY)).abs());
+        Ok(SaturationTable {
+            source: Some(Box::new(self.clone())),
+            low,
+            high,
+            nodes: (0..SATURATION_TABLE_NODES)
+                .map(|_| OnceLock::new())
+                .collect(),
+            errors: (0..SATURATION_TABLE_NODES - 1)
+                .map(|_| OnceLock::new())
+                .collect(),
+            step: (high - low) / intervals,
+        })
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::super::{file::FluidFile, Fluid, FLUID_FILES};
+
+    /// A fresh instance of the built-in fluid file `index`, with a table of its own
+    /// that nothing has asked yet.
+    fn fresh(index: usize) -> Fluid {
+        let data: FluidFile = serde_yaml::from_str(FLUID_FILES[index]).unwrap();
+        Fluid::from_file(data, "test").unwrap()
+    }
+
+    /// The table answers the same, bit for bit, whatever order its nodes and cells
+    /// were solved in: one instance solved whole first (as the table was built when
+    /// a fluid was loaded), another asked lazily in a scattered order, for every
+    /// fluid with a saturation line; and every node and cell can be solved.
+    #[test]
+    fn lookups_do_not_depend_on_the_order_nodes_are_solved_in() {
+        for index in 0..FLUID_FILES.len() {
+            let (whole, lazy) = (fresh(index), fresh(index));
+            if whole.pseudo_pure {
+                assert!(whole.saturation_table.is_empty());
+                continue;
             }
-            if let Some(by_pressure) = table.at_pressure(value(LN_PRESSURE).exp()) {
-                error.temperature = (by_pressure.temperature - middle).abs();
-                error.enthalpy = (by_pressure.liquid_enthalpy - value(LIQUID_ENTHALPY))
-                    .abs()
-                    .max((by_pressure.vapour_enthalpy - value(VAPOUR_ENTHALPY)).abs());
-                error.entropy = (by_pressure.liquid_entropy - value(LIQUID_ENTROPY))
-                    .abs()
-                    .max((by_pressure.vapour_entropy - value(VAPOUR_ENTROPY)).abs());
+            assert!(whole.saturation_table.solves_whole(), "{}", whole.name);
+            let (low, high) = whole.saturation_table.temperature_range().unwrap();
+            // A scattered order: a stride coprime to the count.
+            let count = 997;
+            for k in 0..count {
+                let j = (k * 389) % count;
+                let t = low + (high - low) * (j as f64 + 0.37) / count as f64;
+                let a = whole.saturation_table.at_temperature(t).unwrap();
+                let b = lazy.saturation_table.at_temperature(t).unwrap();
+                assert_eq!(
+                    format!("{a:?}"),
+                    format!("{b:?}"),
+                    "{} at {t} K",
+                    whole.name
+                );
+                let p = a.pressure;
+                let a = whole.saturation_table.at_pressure(p).unwrap();
+                let b = lazy.saturation_table.at_pressure(p).unwrap();
+                assert_eq!(
+                    format!("{a:?}"),
+                    format!("{b:?}"),
+                    "{} at {p} Pa",
+                    whole.name
+                );
             }
-            // No cell is sharper than the exact saturation it is compared with (solved
-            // to about 1e-12): the errors are floored at 1e-10 of each quantity.
-            let floor = 1e-10;
-            error.ln_pressure = error.ln_pressure.max(floor);
-            error.temperature = error.temperature.max(floor * middle);
-            error.density = error.density.max(floor);
-            error.enthalpy = error
-                .enthalpy
-                .max(floor * (value(VAPOUR_ENTHALPY) - value(LIQUID_ENTHALPY)).abs());
-            error.entropy = error
-                .entropy
-                .max(floor * (value(VAPOUR_ENTROPY) - value(LIQUID_ENTROPY)).abs());
-            errors.push(error);
         }
-        table.errors = errors;
-        Ok(table)
     }
 }
