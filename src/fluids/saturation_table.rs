@@ -228,9 +228,12 @@ impl SaturationTable {
 
     /// The cell holding temperature T, or `None` outside the table.
     fn cell_at_temperature(&self, temperature: f64) -> Option<usize> {
+        if self.is_empty() {
+            return None;
+        }
         let first = self.temperature_at(0.0);
         let last = self.temperature_at(self.last_index() as f64);
-        if self.is_empty() || !(temperature >= first && temperature <= last) {
+        if !(temperature >= first && temperature <= last) {
             return None;
         }
         Some((((temperature - first) / self.step) as usize).min(self.nodes.len() - 2))
