@@ -11,6 +11,7 @@
 //! pressure of the equation.
 
 use super::fluid::Fluid;
+use super::helmholtz::TauFactors;
 use crate::error::{Error, Result};
 use crate::numeric::{bracketed_root, golden_maximum};
 use serde::Serialize;
@@ -87,10 +88,15 @@ pub struct InversionTemperatures {
 /// The dimensionless inversion function F(τ, δ) = δαʳ_δ + δ²αʳ_δδ + δτ αʳ_δτ; μJT
 /// is zero where F is, and has the sign of −F... times a positive factor.
 pub fn inversion_function(fluid: &Fluid, temperature: f64, density: f64) -> f64 {
-    let factors = fluid.tau_factors(temperature);
+    inversion_function_with(fluid, &fluid.tau_factors(temperature), density)
+}
+
+/// [`inversion_function`] from τ factors already computed (for many densities at
+/// one temperature).
+fn inversion_function_with(fluid: &Fluid, factors: &TauFactors, density: f64) -> f64 {
     let tau = factors.tau();
     let delta = fluid.delta(density);
-    let r = fluid.residual_at(&factors, density);
+    let r = fluid.residual_at(factors, density);
     delta * r.alpha_delta + delta * delta * r.alpha_delta_delta + delta * tau * r.alpha_delta_tau
 }
 
@@ -265,14 +271,7 @@ impl Fluid {
             return Ok(None);
         }
         let factors = self.tau_factors(temperature);
-        let tau = factors.tau();
-        let function = |density: f64| {
-            let delta = self.delta(density);
-            let r = self.residual_at(&factors, density);
-            delta * r.alpha_delta
-                + delta * delta * r.alpha_delta_delta
-                + delta * tau * r.alpha_delta_tau
-        };
+        let function = |density: f64| inversion_function_with(self, &factors, density);
         let rho_c = self.critical.density;
         let step = 0.02 * rho_c;
         let limit = 6.0 * rho_c;

@@ -52,7 +52,7 @@ const FLUID_FILES: &[&str] = &[
     include_str!("data/air.yaml"),
 ];
 
-/// The same files in JSON, written by build.rs (read several times faster than the
+/// The same files in JSON, written by src/fluids/data/build.rs (read several times faster than the
 /// YAML; the same numbers: a unit test below compares the two readings of every
 /// file), in the order of [`FLUID_FILES`].
 const FLUID_DATA: &[&str] = &[

@@ -1,6 +1,6 @@
-//! Converts the built-in fluid files (src/fluids/data/*.yaml, the files people read
-//! and cite) into JSON in the build's output folder, where the program reads them:
-//! the same numbers (every float written in its shortest round-trip form), parsed
+//! The package's build script (`build` in Cargo.toml). Converts the built-in fluid
+//! files (src/fluids/data/*.yaml, the files people read and cite) into JSON in the
+//! build's output folder, where the program reads them: the same numbers (every float written in its shortest round-trip form), parsed
 //! several times faster when a fluid is first used. A unit test in
 //! src/fluids/mod.rs checks that every file reads the same either way.
 
