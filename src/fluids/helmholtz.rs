@@ -78,7 +78,7 @@ impl Exponent {
         if t.fract() == 0.0 && t.abs() <= 32.0 {
             tau.powi(t as i32)
         } else {
-            (t * ln_tau).exp()
+            super::fast_exp::exp(t * ln_tau)
         }
     }
 }
@@ -125,7 +125,7 @@ impl TauPowers {
     fn power(&self, exponent: Exponent) -> f64 {
         match exponent {
             Exponent::Eighths(k) => self.whole[k / 8] * self.eighths[k % 8],
-            Exponent::Real(t) => (t * self.ln_tau).exp(),
+            Exponent::Real(t) => super::fast_exp::exp(t * self.ln_tau),
         }
     }
 }
@@ -186,7 +186,7 @@ impl IdealPart {
         }
         for &(n, theta) in &self.planck {
             let x = theta * tau;
-            let e = (-x).exp();
+            let e = super::fast_exp::exp(-x);
             // 1 − e^(−x), computed without cancellation.
             let one_minus = -(-x).exp_m1();
             out.alpha += n * one_minus.ln();
@@ -194,7 +194,7 @@ impl IdealPart {
             out.alpha_tau_tau -= n * theta * theta * e / (one_minus * one_minus);
         }
         for &(n, c, d, theta) in &self.general {
-            let e = (theta * tau).exp();
+            let e = super::fast_exp::exp(theta * tau);
             let denominator = c + d * e;
             out.alpha += n * denominator.ln();
             out.alpha_tau += n * theta * d * e / denominator;
@@ -445,7 +445,8 @@ impl ResidualPart {
             .enumerate()
         {
             let offset = tau - term.gamma;
-            out.gaussian[i] = term.n * table.power(*e) * (-term.beta * offset * offset).exp();
+            out.gaussian[i] =
+                term.n * table.power(*e) * super::fast_exp::exp(-term.beta * offset * offset);
             out.gaussian_b[i] = term.t * out.inv_tau - 2.0 * term.beta * offset;
         }
         out
@@ -460,7 +461,7 @@ impl ResidualPart {
         for l in 1..=self.largest_l.min(L_TABLE - 1) {
             value *= delta;
             delta_l[l] = value;
-            exp_l[l] = (-value).exp();
+            exp_l[l] = super::fast_exp::exp(-value);
         }
         // δ^d for every d that occurs.
         let mut delta_d = [1.0f64; D_TABLE];
@@ -516,7 +517,7 @@ impl ResidualPart {
             ];
             let offset = delta - term.epsilon;
             let d = term.d as f64;
-            let base = f[0] * power_of(term.d) * (-term.eta * offset * offset).exp();
+            let base = f[0] * power_of(term.d) * super::fast_exp::exp(-term.eta * offset * offset);
             let a = d * inv_delta - 2.0 * term.eta * offset;
             out.alpha += base;
             out.alpha_delta += base * a;

@@ -11,6 +11,7 @@ pub mod conversion;
 pub mod density;
 pub mod diagram;
 pub mod exergy;
+mod fast_exp;
 pub mod file;
 pub mod flash;
 mod fluid;
