@@ -82,6 +82,10 @@ pub struct MeltingLine {
     /// Pressures surely below the line, one per cell of [`FLOOR_CELLS`] equal cells
     /// over the line's temperatures (see [`MeltingLine::surely_below`]).
     floors: Vec<f64>,
+    /// The melting pressure at each cell's ends ([`FLOOR_CELLS`] + 1 of them; NaN
+    /// outside the line or between its parts), to bracket the melting temperature of
+    /// a pressure within one cell (see [`MeltingLine::cell_bracket`]).
+    nodes: Vec<f64>,
 }
 
 /// Cells of the melting line's table of floors.
@@ -102,8 +106,17 @@ impl MeltingLine {
             form: file.form,
             parts: file.parts.clone(),
             floors: Vec::new(),
+            nodes: Vec::new(),
         };
         let (low, width) = line.cells();
+        line.nodes = (0..=FLOOR_CELLS)
+            .map(|k| {
+                let t = (low + k as f64 / FLOOR_CELLS as f64 * width).min(line.temperature_max());
+                line.pressure(t)
+                    .filter(|p| p.is_finite())
+                    .unwrap_or(f64::NAN)
+            })
+            .collect();
         line.floors = (0..FLOOR_CELLS)
             .map(|cell| {
                 (0..FLOOR_SAMPLES)
@@ -141,36 +154,107 @@ impl MeltingLine {
         p < self.floors[position as usize]
     }
 
+    /// The ends (K) of the cell whose melting pressures at its ends enclose
+    /// `p`, where the line rises through that cell's ends: a bracket of the melting
+    /// temperature one cell wide. `None` where no cell's ends enclose `p`.
+    pub fn cell_bracket(&self, p: f64) -> Option<(f64, f64)> {
+        // The nodes rise along a rising line; NaN (outside the line) compares false.
+        let k = self.nodes.partition_point(|node| *node < p);
+        if k == 0 || k >= self.nodes.len() {
+            return None;
+        }
+        let (below, above) = (self.nodes[k - 1], self.nodes[k]);
+        if !(below <= p && p <= above) {
+            return None;
+        }
+        let (low, width) = self.cells();
+        let at =
+            |i: usize| (low + i as f64 / FLOOR_CELLS as f64 * width).min(self.temperature_max());
+        Some((at(k - 1), at(k)))
+    }
+
     /// The melting pressure at `t` (K), or `None` outside the line's range.
     pub fn pressure(&self, t: f64) -> Option<f64> {
+        self.pressure_and_slope(t).map(|(p, _)| p)
+    }
+
+    /// The melting pressure at `t` (K) and its slope dp/dT (Pa/K), or `None`
+    /// outside the line's range. The slope is not finite at a polynomial-in-θ
+    /// part's reference temperature.
+    pub fn pressure_and_slope(&self, t: f64) -> Option<(f64, f64)> {
         let part = self
             .parts
             .iter()
             .find(|p| t >= p.temperature_min_k && t <= p.temperature_max_k)?;
         let t0 = part.reference_temperature_k;
         let p0 = part.reference_pressure_pa;
-        let p = match self.form {
-            MeltingForm::Simon => p0 + part.a[0] * ((t / t0).powf(part.t[0]) - 1.0),
+        let pair = match self.form {
+            MeltingForm::Simon => {
+                let power = (t / t0).powf(part.t[0]);
+                (
+                    p0 + part.a[0] * (power - 1.0),
+                    part.a[0] * part.t[0] * power / t,
+                )
+            }
             MeltingForm::PolynomialInTr => {
-                let sum: f64 = part
-                    .a
-                    .iter()
-                    .zip(&part.t)
-                    .map(|(a, e)| a * ((t / t0).powf(*e) - 1.0))
-                    .sum();
-                p0 * (1.0 + sum)
+                let (mut sum, mut slope) = (0.0, 0.0);
+                for (a, e) in part.a.iter().zip(&part.t) {
+                    let power = (t / t0).powf(*e);
+                    sum += a * (power - 1.0);
+                    slope += a * e * power;
+                }
+                (p0 * (1.0 + sum), p0 * slope / t)
             }
             MeltingForm::PolynomialInTheta => {
-                let sum: f64 = part
-                    .a
-                    .iter()
-                    .zip(&part.t)
-                    .map(|(a, e)| a * (t / t0 - 1.0).powf(*e))
-                    .sum();
-                p0 * (1.0 + sum)
+                let theta = t / t0 - 1.0;
+                let (mut sum, mut slope) = (0.0, 0.0);
+                for (a, e) in part.a.iter().zip(&part.t) {
+                    let power = theta.powf(*e);
+                    sum += a * power;
+                    slope += a * e * power;
+                }
+                (p0 * (1.0 + sum), p0 * slope / (theta * t0))
             }
         };
-        Some(p)
+        Some(pair)
+    }
+
+    /// The melting pressures at the line's lowest and highest temperatures (NaN where
+    /// the line gives none there).
+    pub fn end_pressures(&self) -> (f64, f64) {
+        (
+            self.nodes.first().copied().unwrap_or(f64::NAN),
+            self.nodes.last().copied().unwrap_or(f64::NAN),
+        )
+    }
+
+    /// The melting temperature of `p` inside the cell `(a, b)` of
+    /// [`MeltingLine::cell_bracket`]: Newton steps on the line from the linear
+    /// interpolation between the cell's ends, each held inside the cell, until a
+    /// step is below `tolerance` (K). `None` where a step meets a slope that is not
+    /// positive, or after 30 steps (the caller then searches by bracketing).
+    pub fn temperature_in_cell(&self, p: f64, (a, b): (f64, f64), tolerance: f64) -> Option<f64> {
+        let (pa, pb) = (self.pressure(a)?, self.pressure(b)?);
+        if !(pb > pa) {
+            return None;
+        }
+        let mut t = (a + (p - pa) / (pb - pa) * (b - a)).clamp(a, b);
+        for _ in 0..30 {
+            let (pressure, slope) = self.pressure_and_slope(t)?;
+            let f = pressure - p;
+            if f == 0.0 {
+                return Some(t);
+            }
+            if !(slope > 0.0 && slope.is_finite()) {
+                return None;
+            }
+            let next = (t - f / slope).clamp(a, b);
+            if (next - t).abs() <= tolerance {
+                return Some(next);
+            }
+            t = next;
+        }
+        None
     }
 
     /// The lowest temperature the line covers.
@@ -225,6 +309,65 @@ mod tests {
                 }
             }
             assert!(cleared > 20_000, "{}: {cleared} cleared", fluid.name);
+        }
+    }
+
+    /// The melting temperature found by Newton steps inside one cell of the table is
+    /// the one a bracketed search over the whole line finds, for every fluid at 2 000
+    /// pressures along its line, within the search's tolerance; the line's pressure
+    /// there is the pressure asked; and the slope used is the line's (against a
+    /// central difference).
+    #[test]
+    fn melting_temperatures_from_one_cell_match_the_whole_line_search() {
+        for fluid in crate::fluids::all().unwrap() {
+            let line = &fluid.ancillaries.melting;
+            let low = fluid.triple_temperature.max(line.temperature_min());
+            let high = line.temperature_max();
+            let tolerance = 1e-12 * high;
+            let mut by_cell = 0;
+            for k in 1..2_000 {
+                let t = low + (high - low) * k as f64 / 2_000.0;
+                let Some((p, slope)) = line.pressure_and_slope(t) else {
+                    continue;
+                };
+                if !p.is_finite() {
+                    continue;
+                }
+                let h = 1e-6 * t;
+                if let (Some(up), Some(down)) = (line.pressure(t + h), line.pressure(t - h)) {
+                    let difference = (up - down) / (2.0 * h);
+                    assert!(
+                        (slope / difference - 1.0).abs() < 1e-6,
+                        "{}: slope {slope} against {difference} at {t} K",
+                        fluid.name
+                    );
+                }
+                let Some(found) = fluid.melting_temperature(p) else {
+                    panic!("{}: no melting temperature at {p} Pa", fluid.name)
+                };
+                let whole = crate::numeric::bracketed_root(
+                    "test",
+                    |t| line.pressure(t).map_or(f64::NAN, |m| m - p),
+                    low,
+                    high,
+                    tolerance,
+                )
+                .unwrap();
+                let there = line.pressure(found).unwrap();
+                assert!(
+                    (found - whole).abs() <= 2.0 * tolerance
+                        && (there - p).abs() <= 1e-9 * p.abs() + 1e-6,
+                    "{}: {found} K by the cell, {whole} K by the whole line ({t} K asked), \
+                     line pressure {there} against {p} Pa",
+                    fluid.name
+                );
+                by_cell += usize::from(line.cell_bracket(p).is_some());
+            }
+            assert!(
+                by_cell > 1_500,
+                "{}: only {by_cell} found by a cell",
+                fluid.name
+            );
         }
     }
 }

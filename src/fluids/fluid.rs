@@ -511,21 +511,44 @@ impl Fluid {
         let low = self.triple_temperature.max(line.temperature_min());
         let high = line.temperature_max();
         let f = |t: f64| line.pressure(t).map(|pm| pm - pressure);
-        let (fl, fh) = (f(low)?, f(high)?);
+        // The line's end pressures are kept; evaluated only where the triple point
+        // lies above the line's lowest temperature.
+        let (at_low, at_high) = line.end_pressures();
+        let fl = if low == line.temperature_min() && at_low.is_finite() {
+            at_low - pressure
+        } else {
+            f(low)?
+        };
+        let fh = if at_high.is_finite() {
+            at_high - pressure
+        } else {
+            f(high)?
+        };
         if fl > 0.0 {
             return None;
         }
         if fh < 0.0 {
             return Some(high);
         }
+        // Within one cell of the line's table where its ends enclose p, by Newton
+        // steps on the line (three or four evaluations where the whole line's
+        // bracket took ten or more); else by bracketing.
+        let tolerance = 1e-12 * high;
+        let cell = line
+            .cell_bracket(pressure)
+            .filter(|(a, b)| *a >= low && *b <= high);
+        if let Some(t) = cell.and_then(|cell| line.temperature_in_cell(pressure, cell, tolerance)) {
+            return Some(t);
+        }
+        let (a, b) = cell.unwrap_or((low, high));
         // A gap between the line's parts gives a non-finite value, which ends the
         // search without a result.
         crate::numeric::bracketed_root(
             "melting temperature from pressure",
             |t| f(t).unwrap_or(f64::NAN),
-            low,
-            high,
-            1e-12 * high,
+            a,
+            b,
+            tolerance,
         )
         .ok()
     }
