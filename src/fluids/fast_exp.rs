@@ -15,6 +15,9 @@ const INV_LN2_N: f64 = 184.6649652337873;
 /// k·LN2_HI_N is exact for |k| < 2^20.
 const LN2_HI_N: f64 = 0.0054152123475432745;
 const LN2_LO_N: f64 = 5.812982117197185e-13;
+/// Arguments below this give zero: e^x is under half the smallest subnormal
+/// (2^−1075, whose logarithm is −745.13…).
+const UNDERFLOW: f64 = -745.2;
 /// 1.5·2^52: adding it rounds to a whole number, kept in the low bits.
 const SHIFT: f64 = 6755399441055744.0;
 
@@ -156,6 +159,11 @@ static TABLE: [(f64, f64); 128] = [
 #[inline(always)]
 pub fn exp(x: f64) -> f64 {
     if !(x.abs() < 700.0) {
+        // Below ln of half the smallest subnormal every exp rounds to zero; the
+        // Gaussian terms far from their centre land there often.
+        if x < UNDERFLOW {
+            return 0.0;
+        }
         return x.exp();
     }
     // k = round(x·128/ln 2) sits in the low bits of kd's pattern, offset by 2^51.
@@ -226,6 +234,9 @@ mod tests {
         assert_eq!(exp(f64::NEG_INFINITY), 0.0);
         assert_eq!(exp(710.0), f64::INFINITY);
         assert_eq!(exp(-746.0), 0.0);
+        assert_eq!(exp(-745.2), (-745.2f64).exp());
+        assert_eq!(exp(-745.1), (-745.1f64).exp());
+        assert_eq!(exp(-1e5), 0.0);
         assert_eq!(exp(-720.0), (-720.0f64).exp());
     }
 }

@@ -172,12 +172,12 @@ impl IdealPart {
 
     /// α⁰ (less ln δ) and its τ derivatives at τ.
     pub fn evaluate(&self, tau: f64) -> IdealDerivatives {
+        let ln_tau = tau.ln();
         let mut out = IdealDerivatives {
-            alpha: self.lead_constant + self.lead_tau * tau + self.log_tau * tau.ln(),
+            alpha: self.lead_constant + self.lead_tau * tau + self.log_tau * ln_tau,
             alpha_tau: self.lead_tau + self.log_tau / tau,
             alpha_tau_tau: -self.log_tau / (tau * tau),
         };
-        let ln_tau = tau.ln();
         for &(n, t) in &self.power {
             let value = n * Exponent::value(t, tau, ln_tau);
             out.alpha += value;
@@ -187,8 +187,13 @@ impl IdealPart {
         for &(n, theta) in &self.planck {
             let x = theta * tau;
             let e = super::fast_exp::exp(-x);
-            // 1 − e^(−x), computed without cancellation.
-            let one_minus = -(-x).exp_m1();
+            // 1 − e^(−x) without cancellation: directly where e^(−x) ≤ 1/2 (the
+            // subtraction then loses nothing), else from expm1.
+            let one_minus = if x >= std::f64::consts::LN_2 {
+                1.0 - e
+            } else {
+                -(-x).exp_m1()
+            };
             out.alpha += n * one_minus.ln();
             out.alpha_tau += n * theta * e / one_minus;
             out.alpha_tau_tau -= n * theta * theta * e / (one_minus * one_minus);
@@ -445,8 +450,15 @@ impl ResidualPart {
             .enumerate()
         {
             let offset = tau - term.gamma;
-            out.gaussian[i] =
-                term.n * table.power(*e) * super::fast_exp::exp(-term.beta * offset * offset);
+            // τ^t exp(−β(τ−γ)²) as one exponential where τ^t would be one itself.
+            out.gaussian[i] = match *e {
+                Exponent::Real(t) => {
+                    term.n * super::fast_exp::exp(t * table.ln_tau - term.beta * offset * offset)
+                }
+                Exponent::Eighths(_) => {
+                    term.n * table.power(*e) * super::fast_exp::exp(-term.beta * offset * offset)
+                }
+            };
             out.gaussian_b[i] = term.t * out.inv_tau - 2.0 * term.beta * offset;
         }
         out
