@@ -764,7 +764,9 @@ impl Fluid {
                 }
             };
             let next = (t - (value - target) / slope).clamp(low, high);
-            if (next - t).abs() < 1e-9 * t {
+            // A start for the real-gas search, whose own first step corrects by
+            // far more than this.
+            if (next - t).abs() < 1e-6 * t {
                 return next;
             }
             t = next;

@@ -203,8 +203,10 @@ impl IdealPart {
                 one_minus.ln()
             };
             out.alpha += n * log_one_minus;
-            out.alpha_tau += n * theta * e / one_minus;
-            out.alpha_tau_tau -= n * theta * theta * e / (one_minus * one_minus);
+            // e/(1 − e), one division for both derivatives.
+            let ratio = e / one_minus;
+            out.alpha_tau += n * theta * ratio;
+            out.alpha_tau_tau -= n * theta * theta * ratio / one_minus;
         }
         for &(n, c, d, theta) in &self.general {
             let e = super::fast_exp::exp(theta * tau);
