@@ -756,14 +756,21 @@ impl Fluid {
             let i = self.ideal.evaluate(tau);
             let r = self.gas_constant;
             let cp = r * (1.0 - tau * tau * i.alpha_tau_tau);
-            let (value, slope) = match held {
-                Held::Enthalpy => (r * t * (1.0 + tau * i.alpha_tau), cp),
+            // Newton in T for an enthalpy (nearly linear in T), in ln T for an
+            // entropy (nearly linear in ln T: ds/d(ln T) = cp), each a step or two
+            // from a start far off where the other would creep.
+            let next = match held {
+                Held::Enthalpy => {
+                    let value = r * t * (1.0 + tau * i.alpha_tau);
+                    t - (value - target) / cp
+                }
                 Held::Entropy => {
                     let delta = self.delta(self.ideal_gas_density(t, pressure));
-                    (r * (tau * i.alpha_tau - i.alpha - delta.ln()), cp / t)
+                    let value = r * (tau * i.alpha_tau - i.alpha - delta.ln());
+                    t * super::fast_exp::exp((-(value - target) / cp).clamp(-2.0, 2.0))
                 }
-            };
-            let next = (t - (value - target) / slope).clamp(low, high);
+            }
+            .clamp(low, high);
             // A start for the real-gas search, whose own first step corrects by
             // far more than this.
             if (next - t).abs() < 1e-6 * t {
