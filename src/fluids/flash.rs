@@ -753,7 +753,11 @@ impl Fluid {
         let mut t = start.clamp(low, high);
         for _ in 0..IDEAL_GAS_ESTIMATE_STEPS {
             let tau = self.tau(t);
-            let i = self.ideal.evaluate(tau);
+            // An enthalpy needs no α⁰ itself (nor its logarithms).
+            let i = match held {
+                Held::Enthalpy => self.ideal.evaluate_tau_derivatives(tau),
+                Held::Entropy => self.ideal.evaluate(tau),
+            };
             let r = self.gas_constant;
             let cp = r * (1.0 - tau * tau * i.alpha_tau_tau);
             // Newton in T for an enthalpy (nearly linear in T), in ln T for an

@@ -172,7 +172,23 @@ impl IdealPart {
 
     /// α⁰ (less ln δ) and its τ derivatives at τ.
     pub fn evaluate(&self, tau: f64) -> IdealDerivatives {
-        let ln_tau = tau.ln();
+        self.evaluate_parts(tau, true)
+    }
+
+    /// α⁰_τ and α⁰_ττ at τ, without α⁰ itself (NaN) and so without its logarithms:
+    /// what an enthalpy or a heat capacity of the ideal gas needs.
+    pub fn evaluate_tau_derivatives(&self, tau: f64) -> IdealDerivatives {
+        self.evaluate_parts(tau, false)
+    }
+
+    /// [`IdealPart::evaluate`], α⁰ itself only `with_alpha` (else NaN); the
+    /// derivatives are the same bits either way.
+    fn evaluate_parts(&self, tau: f64, with_alpha: bool) -> IdealDerivatives {
+        let ln_tau = if with_alpha || !self.power.is_empty() {
+            tau.ln()
+        } else {
+            f64::NAN
+        };
         let mut out = IdealDerivatives {
             alpha: self.lead_constant + self.lead_tau * tau + self.log_tau * ln_tau,
             alpha_tau: self.lead_tau + self.log_tau / tau,
@@ -194,15 +210,17 @@ impl IdealPart {
             } else {
                 -(-x).exp_m1()
             };
-            // ln(1 − e): below 1e-4 by its series to e⁴ (the rest is under 3e-17 of
-            // it), which spares the logarithm at the low temperatures where every
-            // term lies there.
-            let log_one_minus = if e < 1e-4 {
-                -e * (1.0 + e * (0.5 + e * (1.0 / 3.0 + e * 0.25)))
-            } else {
-                one_minus.ln()
-            };
-            out.alpha += n * log_one_minus;
+            if with_alpha {
+                // ln(1 − e): below 1e-4 by its series to e⁴ (the rest is under 3e-17
+                // of it), which spares the logarithm at the low temperatures where
+                // every term lies there.
+                let log_one_minus = if e < 1e-4 {
+                    -e * (1.0 + e * (0.5 + e * (1.0 / 3.0 + e * 0.25)))
+                } else {
+                    one_minus.ln()
+                };
+                out.alpha += n * log_one_minus;
+            }
             // e/(1 − e), one division for both derivatives.
             let ratio = e / one_minus;
             out.alpha_tau += n * theta * ratio;
@@ -211,9 +229,14 @@ impl IdealPart {
         for &(n, c, d, theta) in &self.general {
             let e = super::fast_exp::exp(theta * tau);
             let denominator = c + d * e;
-            out.alpha += n * denominator.ln();
+            if with_alpha {
+                out.alpha += n * denominator.ln();
+            }
             out.alpha_tau += n * theta * d * e / denominator;
             out.alpha_tau_tau += n * theta * theta * c * d * e / (denominator * denominator);
+        }
+        if !with_alpha {
+            out.alpha = f64::NAN;
         }
         out
     }
@@ -608,6 +631,30 @@ mod tests {
     /// at 2 001 temperatures from its lowest to its highest: within 1e-14 of the
     /// largest term summed (rounding of the two sums; a wrong series coefficient
     /// would be off by about e^(−2x), above 1e-9 where the series starts).
+    /// The derivatives without α⁰ are the same bits as with it, for every fluid
+    /// at 200 temperatures; α⁰ is then NaN.
+    #[test]
+    fn derivatives_without_alpha_are_the_same() {
+        for fluid in crate::fluids::all().unwrap() {
+            let (low, high) = (fluid.temperature_min, fluid.temperature_max);
+            for k in 0..200 {
+                let t = low * (high / low).powf(k as f64 / 199.0);
+                let tau = fluid.reducing_temperature / t;
+                let (full, light) = (
+                    fluid.ideal.evaluate(tau),
+                    fluid.ideal.evaluate_tau_derivatives(tau),
+                );
+                assert_eq!(full.alpha_tau.to_bits(), light.alpha_tau.to_bits());
+                assert_eq!(full.alpha_tau_tau.to_bits(), light.alpha_tau_tau.to_bits());
+                assert!(
+                    full.alpha.is_finite() && light.alpha.is_nan(),
+                    "{}",
+                    fluid.name
+                );
+            }
+        }
+    }
+
     #[test]
     fn planck_einstein_terms_match_the_plain_formula() {
         for fluid in crate::fluids::all().unwrap() {
