@@ -88,6 +88,16 @@ pub struct MeltingLine {
     nodes: Vec<f64>,
 }
 
+/// One cell of the melting line's table: its ends as (temperature K, melting
+/// pressure Pa).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct MeltingCell {
+    /// The colder end.
+    pub low: (f64, f64),
+    /// The warmer end.
+    pub high: (f64, f64),
+}
+
 /// Cells of the melting line's table of floors.
 const FLOOR_CELLS: usize = 128;
 
@@ -111,8 +121,7 @@ impl MeltingLine {
         let (low, width) = line.cells();
         line.nodes = (0..=FLOOR_CELLS)
             .map(|k| {
-                let t = (low + k as f64 / FLOOR_CELLS as f64 * width).min(line.temperature_max());
-                line.pressure(t)
+                line.pressure(line.node_temperature(k))
                     .filter(|p| p.is_finite())
                     .unwrap_or(f64::NAN)
             })
@@ -154,10 +163,17 @@ impl MeltingLine {
         p < self.floors[position as usize]
     }
 
-    /// The ends (K) of the cell whose melting pressures at its ends enclose
-    /// `p`, where the line rises through that cell's ends: a bracket of the melting
-    /// temperature one cell wide. `None` where no cell's ends enclose `p`.
-    pub fn cell_bracket(&self, p: f64) -> Option<(f64, f64)> {
+    /// The temperature of the table's node `k` (the cells' ends), K.
+    fn node_temperature(&self, k: usize) -> f64 {
+        let (low, width) = self.cells();
+        (low + k as f64 / FLOOR_CELLS as f64 * width).min(self.temperature_max())
+    }
+
+    /// The ends of the cell whose melting pressures at its ends enclose `p`, each as
+    /// (temperature K, melting pressure Pa), where the line rises through that cell's
+    /// ends: a bracket of the melting temperature one cell wide. `None` where no
+    /// cell's ends enclose `p`.
+    pub fn cell_bracket(&self, p: f64) -> Option<MeltingCell> {
         // The nodes rise along a rising line; NaN (outside the line) compares false.
         let k = self.nodes.partition_point(|node| *node < p);
         if k == 0 || k >= self.nodes.len() {
@@ -167,10 +183,10 @@ impl MeltingLine {
         if !(below <= p && p <= above) {
             return None;
         }
-        let (low, width) = self.cells();
-        let at =
-            |i: usize| (low + i as f64 / FLOOR_CELLS as f64 * width).min(self.temperature_max());
-        Some((at(k - 1), at(k)))
+        Some(MeltingCell {
+            low: (self.node_temperature(k - 1), below),
+            high: (self.node_temperature(k), above),
+        })
     }
 
     /// The melting pressure at `t` (K), or `None` outside the line's range.
@@ -228,13 +244,13 @@ impl MeltingLine {
         )
     }
 
-    /// The melting temperature of `p` inside the cell `(a, b)` of
-    /// [`MeltingLine::cell_bracket`]: Newton steps on the line from the linear
+    /// The melting temperature of `p` inside `cell` (from
+    /// [`MeltingLine::cell_bracket`]): Newton steps on the line from the linear
     /// interpolation between the cell's ends, each held inside the cell, until a
     /// step is below `tolerance` (K). `None` where a step meets a slope that is not
     /// positive, or after 30 steps (the caller then searches by bracketing).
-    pub fn temperature_in_cell(&self, p: f64, (a, b): (f64, f64), tolerance: f64) -> Option<f64> {
-        let (pa, pb) = (self.pressure(a)?, self.pressure(b)?);
+    pub fn temperature_in_cell(&self, p: f64, cell: &MeltingCell, tolerance: f64) -> Option<f64> {
+        let ((a, pa), (b, pb)) = (cell.low, cell.high);
         if !(pb > pa) {
             return None;
         }

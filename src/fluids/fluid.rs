@@ -536,11 +536,12 @@ impl Fluid {
         let tolerance = 1e-12 * high;
         let cell = line
             .cell_bracket(pressure)
-            .filter(|(a, b)| *a >= low && *b <= high);
-        if let Some(t) = cell.and_then(|cell| line.temperature_in_cell(pressure, cell, tolerance)) {
+            .filter(|cell| cell.low.0 >= low && cell.high.0 <= high);
+        if let Some(t) = cell.and_then(|cell| line.temperature_in_cell(pressure, &cell, tolerance))
+        {
             return Some(t);
         }
-        let (a, b) = cell.unwrap_or((low, high));
+        let (a, b) = cell.map_or((low, high), |cell| (cell.low.0, cell.high.0));
         // A gap between the line's parts gives a non-finite value, which ends the
         // search without a result.
         crate::numeric::bracketed_root(

@@ -625,12 +625,6 @@ impl ResidualPart {
 
 #[cfg(test)]
 mod tests {
-    /// The Planck–Einstein terms' ln(1 − e^(−x)), taken by its series where
-    /// e^(−x) < 1e-4 and from the quantities computed anyway elsewhere, give the
-    /// ideal part that the plain formula n·ln(−expm1(−x)) gives, for every fluid
-    /// at 2 001 temperatures from its lowest to its highest: within 1e-14 of the
-    /// largest term summed (rounding of the two sums; a wrong series coefficient
-    /// would be off by about e^(−2x), above 1e-9 where the series starts).
     /// The derivatives without α⁰ are the same bits as with it, for every fluid
     /// at 200 temperatures; α⁰ is then NaN.
     #[test]
@@ -655,6 +649,12 @@ mod tests {
         }
     }
 
+    /// The Planck–Einstein terms' ln(1 − e^(−x)), taken by its series where
+    /// e^(−x) < 1e-4 and from the quantities computed anyway elsewhere, give the
+    /// ideal part that the plain formula n·ln(−expm1(−x)) gives, for every fluid
+    /// at 2 001 temperatures from its lowest to its highest: within 1e-14 of the
+    /// largest term summed (rounding of the two sums; a wrong series coefficient
+    /// would be off by about e^(−2x), above 1e-9 where the series starts).
     #[test]
     fn planck_einstein_terms_match_the_plain_formula() {
         for fluid in crate::fluids::all().unwrap() {

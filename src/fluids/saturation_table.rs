@@ -459,22 +459,21 @@ mod tests {
             for k in 0..count {
                 let j = (k * 389) % count;
                 let t = low + (high - low) * (j as f64 + 0.37) / count as f64;
-                let a = whole.saturation_table.at_temperature(t).unwrap();
-                let b = lazy.saturation_table.at_temperature(t).unwrap();
-                assert_eq!(
-                    format!("{a:?}"),
-                    format!("{b:?}"),
-                    "{} at {t} K",
-                    whole.name
+                let same = |a: Option<_>, b: Option<_>, at: String| {
+                    assert_eq!(format!("{a:?}"), format!("{b:?}"), "{} at {at}", whole.name);
+                    assert!(a.is_some(), "{} at {at}: no answer", whole.name);
+                    a.unwrap()
+                };
+                let by_temperature: super::ApproximateSaturation = same(
+                    whole.saturation_table.at_temperature(t),
+                    lazy.saturation_table.at_temperature(t),
+                    format!("{t} K"),
                 );
-                let p = a.pressure;
-                let a = whole.saturation_table.at_pressure(p).unwrap();
-                let b = lazy.saturation_table.at_pressure(p).unwrap();
-                assert_eq!(
-                    format!("{a:?}"),
-                    format!("{b:?}"),
-                    "{} at {p} Pa",
-                    whole.name
+                let p = by_temperature.pressure;
+                same(
+                    whole.saturation_table.at_pressure(p),
+                    lazy.saturation_table.at_pressure(p),
+                    format!("{p} Pa"),
                 );
             }
         }

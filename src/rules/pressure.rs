@@ -16,7 +16,7 @@ use super::{Finding, Severity};
 use crate::equipment::UnitSpec;
 use crate::flowsheet::Plant;
 use crate::fluids::Phase;
-use crate::solve::{solve, Options, Solution};
+use crate::solve::{solve, Options, Solution, WarmStart};
 
 /// A high pressure within this fraction of the inversion pressure at the warm end
 /// is at the optimum already (the rule's own precision, common practice).
@@ -105,10 +105,10 @@ fn pressure_setter(plant: &Plant, mut stream: usize) -> Option<usize> {
 }
 
 /// The yield and specific energy of `plant` with `compressor` set to `pressure`,
-/// solved from `solution`'s converged recycle.
+/// solved from the plant's converged recycle `warm`.
 fn resolve_at(
     plant: &Plant,
-    solution: &Solution,
+    warm: &WarmStart,
     compressor: usize,
     pressure: f64,
 ) -> Result<(f64, Option<f64>), String> {
@@ -118,7 +118,7 @@ fn resolve_at(
     };
     c.outlet_pressure = pressure;
     let options = Options {
-        warm_start: Some(solution.warm_start.clone()),
+        warm_start: Some(warm.clone()),
         ..Options::default()
     };
     let solution = solve(&trial, &options).map_err(|e| e.to_string())?;
@@ -165,7 +165,7 @@ pub fn advice(plant: &Plant, solution: &Solution) -> Vec<PressureAdvice> {
         }
         let set_now = solution.streams[compressor.outlets[0]].state.pressure;
         let best = p_inv + (set_now - warm.pressure);
-        let resolved = resolve_at(plant, solution, c, best);
+        let resolved = resolve_at(plant, &solution.warm_start, c, best);
         out.push(PressureAdvice {
             compressor: compressor.id.clone(),
             valve: unit.id.clone(),
