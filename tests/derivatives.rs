@@ -71,6 +71,35 @@ fn residual_derivatives_match_finite_differences() {
     }
 }
 
+/// The pressure's first and second density derivatives at constant temperature,
+/// which the density iteration (Halley's method) steps with, against central finite
+/// differences of the pressure and of its slope.
+#[test]
+fn pressure_slope_and_curvature_match_finite_differences() {
+    for name in fluids::names() {
+        let fluid = fluids::fluid(name).unwrap();
+        for (t, rho) in sample_states(fluid) {
+            let factors = fluid.tau_factors(t);
+            let at = |density: f64| fluid.pressure_slope_curvature(&factors, t, density);
+            let (_, slope, curvature) = at(rho);
+            let h = 1e-5 * rho;
+            let checks = [
+                ("(∂p/∂ρ)_T", slope, central(|r| at(r).0, rho, h)),
+                ("(∂²p/∂ρ²)_T", curvature, central(|r| at(r).1, rho, h)),
+            ];
+            for (what, analytic, numeric) in checks {
+                // Scale: the slope's own size over the density, so that a curvature
+                // near its zero is not held to a relative bound.
+                let scale = analytic.abs().max(1e-3 * slope.abs() / rho);
+                assert!(
+                    (analytic - numeric).abs() <= 1e-6 * scale,
+                    "{name} {what} at T={t} ρ={rho}: analytic {analytic}, finite difference {numeric}"
+                );
+            }
+        }
+    }
+}
+
 fn fluid_residual(
     fluid: &'static Fluid,
 ) -> impl Fn(f64, f64) -> cryochain::fluids::helmholtz::ResidualDerivatives {

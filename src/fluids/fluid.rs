@@ -4,7 +4,7 @@
 use super::ancillary::MeltingLine;
 use super::file::{AncillaryEquation, FluidFile, ReferenceStateName};
 use super::helmholtz::{
-    IdealDerivatives, IdealPart, ResidualDerivatives, ResidualPart, TauFactors,
+    DeltaShapes, IdealDerivatives, IdealPart, ResidualDerivatives, ResidualPart, TauFactors,
 };
 use super::saturation_table::SaturationTable;
 use crate::error::{Error, Result};
@@ -145,6 +145,10 @@ thread_local! {
     /// fluid's and τ (its bits).
     static LAST_IDEAL: std::cell::Cell<Option<((u64, u64), IdealDerivatives)>> =
         const { std::cell::Cell::new(None) };
+    /// The last δ factors of the residual part on this thread (see
+    /// `Fluid::density_derivatives`): which fluid's and δ (its bits).
+    static LAST_SHAPES: std::cell::RefCell<(Option<(u64, u64)>, DeltaShapes)> =
+        const { std::cell::RefCell::new((None, DeltaShapes::EMPTY)) };
 }
 
 impl Fluid {
@@ -295,9 +299,31 @@ impl Fluid {
                     return r;
                 }
             }
-            let r = self.residual.evaluate(factors, delta);
+            // The δ factors of the density iteration that ended here, if it did;
+            // else all in one pass, without storing them.
+            let r = LAST_SHAPES.with(|cell| {
+                let last = cell.borrow();
+                if last.0 == Some((self.identity, delta.to_bits())) {
+                    self.residual.derivatives(factors, &last.1)
+                } else {
+                    self.residual.evaluate(factors, delta)
+                }
+            });
             last.set(Some((key, r)));
             r
+        })
+    }
+
+    /// The density derivatives of αʳ at δ; the δ factors they were summed from are
+    /// kept, the last of each thread: a density iteration ends at its root, where
+    /// the state's properties are then evaluated from them (see
+    /// `Fluid::residual_at_delta`), and they do not depend on τ.
+    fn density_derivatives(&self, factors: &TauFactors, delta: f64) -> [f64; 3] {
+        LAST_SHAPES.with(|cell| {
+            let mut last = cell.borrow_mut();
+            let (ref mut key, ref mut shapes) = *last;
+            *key = Some((self.identity, delta.to_bits()));
+            self.residual.density_derivatives(factors, delta, shapes)
         })
     }
 
@@ -326,12 +352,27 @@ impl Fluid {
         temperature: f64,
         density: f64,
     ) -> (f64, f64) {
-        let delta = self.delta(density);
-        let r = self.residual_at_delta(factors, delta);
-        let rt = self.gas_constant * temperature;
-        let p = density * rt * (1.0 + delta * r.alpha_delta);
-        let slope = rt * (1.0 + 2.0 * delta * r.alpha_delta + delta * delta * r.alpha_delta_delta);
+        let (p, slope, _) = self.pressure_slope_curvature(factors, temperature, density);
         (p, slope)
+    }
+
+    /// Pressure p (Pa), (∂p/∂ρ)_T and (∂²p/∂ρ²)_T at (T, ρ), from precomputed τ
+    /// factors; only the δ derivatives of αʳ are summed.
+    pub fn pressure_slope_curvature(
+        &self,
+        factors: &TauFactors,
+        temperature: f64,
+        density: f64,
+    ) -> (f64, f64, f64) {
+        let delta = self.delta(density);
+        let [first, second, third] = self.density_derivatives(factors, delta);
+        let rt = self.gas_constant * temperature;
+        let p = density * rt * (1.0 + delta * first);
+        let slope = rt * (1.0 + 2.0 * delta * first + delta * delta * second);
+        // d/dρ = (1/ρr) d/dδ of the slope.
+        let curvature = rt / self.reducing_density
+            * (2.0 * first + 4.0 * delta * second + delta * delta * third);
+        (p, slope, curvature)
     }
 
     /// Pressure at (T, ρ).

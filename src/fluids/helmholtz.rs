@@ -184,6 +184,22 @@ impl IdealPart {
     /// [`IdealPart::evaluate`], α⁰ itself only `with_alpha` (else NaN); the
     /// derivatives are the same bits either way.
     fn evaluate_parts(&self, tau: f64, with_alpha: bool) -> IdealDerivatives {
+        #[cfg(target_arch = "x86_64")]
+        if wide_arithmetic() {
+            // SAFETY: the CPU has the features, checked at run time.
+            return unsafe { self.evaluate_parts_wide(tau, with_alpha) };
+        }
+        self.evaluate_parts_body(tau, with_alpha)
+    }
+
+    #[cfg(target_arch = "x86_64")]
+    #[target_feature(enable = "avx2,fma")]
+    fn evaluate_parts_wide(&self, tau: f64, with_alpha: bool) -> IdealDerivatives {
+        self.evaluate_parts_body(tau, with_alpha)
+    }
+
+    #[inline(always)]
+    fn evaluate_parts_body(&self, tau: f64, with_alpha: bool) -> IdealDerivatives {
         let ln_tau = if with_alpha || !self.power.is_empty() {
             tau.ln()
         } else {
@@ -268,6 +284,8 @@ struct PowerGroup {
 struct GaussianTerm {
     n: f64,
     d: i32,
+    /// d as a floating-point number.
+    d_f: f64,
     t: f64,
     eta: f64,
     epsilon: f64,
@@ -315,6 +333,152 @@ pub struct TauFactors {
     gaussian: [f64; MAX_GAUSSIAN],
     /// Per Gaussian term: its logarithmic τ derivative B = t/τ − 2β(τ−γ).
     gaussian_b: [f64; MAX_GAUSSIAN],
+}
+
+/// The δ factors of every residual term at one δ, kept inline (no heap). They hold
+/// every exponential of δ the equation has and do not depend on τ, so that a
+/// density iteration at fixed T computes them once a step and the properties at its
+/// root reuse the last step's.
+#[derive(Debug, Clone)]
+pub struct DeltaShapes {
+    inv_delta: f64,
+    /// Per (d, l) group of power terms: δ^d exp(−δ^l), then δ ∂/∂δ, δ² ∂²/∂δ² and
+    /// δ³ ∂³/∂δ³ of it, each over it.
+    group: [[f64; 4]; MAX_GROUPS],
+    /// Per Gaussian term: δ^d exp(−η(δ−ε)²), then its first three δ derivatives,
+    /// each over it.
+    gaussian: [[f64; 4]; MAX_GAUSSIAN],
+}
+
+impl DeltaShapes {
+    /// All factors zero, to be filled by [`ResidualPart::density_derivatives`].
+    pub const EMPTY: DeltaShapes = DeltaShapes {
+        inv_delta: 0.0,
+        group: [[0.0; 4]; MAX_GROUPS],
+        gaussian: [[0.0; 4]; MAX_GAUSSIAN],
+    };
+}
+
+/// Where [`ResidualPart::for_each_shape`] puts each term's δ factors.
+trait ShapeSink {
+    /// The δ factors of power-term group `index`.
+    fn group(&mut self, index: usize, shape: [f64; 4]);
+    /// The δ factors of Gaussian term `index`.
+    fn gaussian(&mut self, index: usize, shape: [f64; 4]);
+}
+
+/// Sums the δ factors straight into the derivatives, with the τ factors.
+struct SumsSink<'a> {
+    sums: AllSums,
+    factors: &'a TauFactors,
+    terms: &'a [GaussianTerm],
+}
+
+impl ShapeSink for SumsSink<'_> {
+    #[inline(always)]
+    fn group(&mut self, index: usize, shape: [f64; 4]) {
+        self.sums.add_group(&self.factors.group[index], shape);
+    }
+
+    #[inline(always)]
+    fn gaussian(&mut self, index: usize, shape: [f64; 4]) {
+        self.sums
+            .add_gaussian(&self.terms[index], self.factors, index, shape);
+    }
+}
+
+/// Stores the δ factors and sums the δ derivatives with the τ factors.
+struct DensitySink<'a> {
+    /// Power terms: δα_δ, δ²α_δδ, δ³α_δδδ, without the 1/δ factors.
+    power: [f64; 3],
+    /// Gaussian terms: α_δ, α_δδ, α_δδδ.
+    gaussian: [f64; 3],
+    factors: &'a TauFactors,
+    shapes: &'a mut DeltaShapes,
+}
+
+impl ShapeSink for DensitySink<'_> {
+    #[inline(always)]
+    fn group(&mut self, index: usize, shape: [f64; 4]) {
+        let base = self.factors.group[index][0] * shape[0];
+        for (sum, factor) in self.power.iter_mut().zip(&shape[1..]) {
+            *sum += base * factor;
+        }
+        self.shapes.group[index] = shape;
+    }
+
+    #[inline(always)]
+    fn gaussian(&mut self, index: usize, shape: [f64; 4]) {
+        let base = self.factors.gaussian[index] * shape[0];
+        for (sum, factor) in self.gaussian.iter_mut().zip(&shape[1..]) {
+            *sum += base * factor;
+        }
+        self.shapes.gaussian[index] = shape;
+    }
+}
+
+/// Running sums of every residual derivative over the terms. The power terms' sums
+/// are taken without their 1/δ and 1/τ factors, which [`AllSums::finish`] applies
+/// once.
+#[derive(Default)]
+struct AllSums {
+    /// Power terms: α, δα_δ, δ²α_δδ, τα_τ, τ²α_ττ, δτα_δτ.
+    power: [f64; 6],
+    /// Gaussian terms: α, α_δ, α_δδ, α_τ, α_ττ, α_δτ.
+    gaussian: [f64; 6],
+}
+
+impl AllSums {
+    /// Adds a group of power terms: its τ sums and its δ factors.
+    #[inline(always)]
+    fn add_group(&mut self, sums: &[f64; 3], shape: [f64; 4]) {
+        let base = sums[0] * shape[0];
+        let base_tau = sums[1] * shape[0];
+        let s = &mut self.power;
+        s[0] += base;
+        s[1] += base * shape[1];
+        s[2] += base * shape[2];
+        s[3] += base_tau;
+        s[4] += sums[2] * shape[0];
+        s[5] += base_tau * shape[1];
+    }
+
+    /// Adds Gaussian term `index`: its τ factors and its δ factors.
+    #[inline(always)]
+    fn add_gaussian(
+        &mut self,
+        term: &GaussianTerm,
+        factors: &TauFactors,
+        index: usize,
+        shape: [f64; 4],
+    ) {
+        let (value, b) = (factors.gaussian[index], factors.gaussian_b[index]);
+        let inv_tau = factors.inv_tau;
+        let tau_second = b * b - term.t * inv_tau * inv_tau - 2.0 * term.beta;
+        let base = value * shape[0];
+        let s = &mut self.gaussian;
+        s[0] += base;
+        s[1] += base * shape[1];
+        s[2] += base * shape[2];
+        s[3] += base * b;
+        s[4] += base * tau_second;
+        s[5] += base * shape[1] * b;
+    }
+
+    /// The derivatives: the power terms' sums scaled by 1/δ and 1/τ, plus the
+    /// Gaussian terms'.
+    #[inline(always)]
+    fn finish(self, inv_delta: f64, inv_tau: f64) -> ResidualDerivatives {
+        let (p, g) = (self.power, self.gaussian);
+        ResidualDerivatives {
+            alpha: p[0] + g[0],
+            alpha_delta: p[1] * inv_delta + g[1],
+            alpha_delta_delta: p[2] * inv_delta * inv_delta + g[2],
+            alpha_tau: p[3] * inv_tau + g[3],
+            alpha_tau_tau: p[4] * inv_tau * inv_tau + g[4],
+            alpha_delta_tau: p[5] * inv_delta * inv_tau + g[5],
+        }
+    }
 }
 
 impl TauFactors {
@@ -406,6 +570,7 @@ impl ResidualPart {
                         part.gaussian.push(GaussianTerm {
                             n: n[i],
                             d: d_whole,
+                            d_f: d_whole as f64,
                             t: t[i],
                             eta: eta[i],
                             epsilon: epsilon[i],
@@ -457,6 +622,22 @@ impl ResidualPart {
 
     /// The τ-dependent factors at τ.
     pub fn at_tau(&self, tau: f64) -> TauFactors {
+        #[cfg(target_arch = "x86_64")]
+        if wide_arithmetic() {
+            // SAFETY: the CPU has the features, checked at run time.
+            return unsafe { self.at_tau_wide(tau) };
+        }
+        self.at_tau_body(tau)
+    }
+
+    #[cfg(target_arch = "x86_64")]
+    #[target_feature(enable = "avx2,fma")]
+    fn at_tau_wide(&self, tau: f64) -> TauFactors {
+        self.at_tau_body(tau)
+    }
+
+    #[inline(always)]
+    fn at_tau_body(&self, tau: f64) -> TauFactors {
         let table = TauPowers::new(tau, self.largest_whole, self.needs_eighths);
         let mut powers = [0.0f64; MAX_TERMS];
         for (slot, e) in powers.iter_mut().zip(&self.exponents) {
@@ -499,8 +680,39 @@ impl ResidualPart {
 
     /// αʳ and its derivatives at δ, with the τ factors from [`ResidualPart::at_tau`].
     pub fn evaluate(&self, factors: &TauFactors, delta: f64) -> ResidualDerivatives {
-        // δ^l and exp(−δ^l) for every l in the table, computed once.
-        let mut delta_l = [1.0f64; L_TABLE];
+        #[cfg(target_arch = "x86_64")]
+        if wide_arithmetic() {
+            // SAFETY: the CPU has the features, checked at run time.
+            return unsafe { self.evaluate_wide(factors, delta) };
+        }
+        self.evaluate_body(factors, delta)
+    }
+
+    #[cfg(target_arch = "x86_64")]
+    #[target_feature(enable = "avx2,fma")]
+    fn evaluate_wide(&self, factors: &TauFactors, delta: f64) -> ResidualDerivatives {
+        self.evaluate_body(factors, delta)
+    }
+
+    /// The δ factors go straight into the sums, without being stored.
+    #[inline(always)]
+    fn evaluate_body(&self, factors: &TauFactors, delta: f64) -> ResidualDerivatives {
+        let mut sink = SumsSink {
+            sums: AllSums::default(),
+            factors,
+            terms: &self.gaussian,
+        };
+        let inv_delta = self.for_each_shape(delta, &mut sink);
+        sink.sums.finish(inv_delta, factors.inv_tau)
+    }
+
+    /// Computes the δ factors of every term at δ and hands each to `sink`; returns
+    /// 1/δ.
+    #[inline(always)]
+    fn for_each_shape(&self, delta: f64, sink: &mut impl ShapeSink) -> f64 {
+        // δ^l and exp(−δ^l) for every l in the table, computed once. Index 0 stands
+        // for "no exponential": δ^0 → 0, e → 1.
+        let mut delta_l = [0.0f64; L_TABLE];
         let mut exp_l = [1.0f64; L_TABLE];
         let mut value = 1.0;
         for l in 1..=self.largest_l.min(L_TABLE - 1) {
@@ -521,57 +733,109 @@ impl ResidualPart {
             }
         };
         let inv_delta = 1.0 / delta;
-        let mut out = ResidualDerivatives::default();
-        let inv_tau = factors.inv_tau;
-        // Index 0 of the exponential tables stands for "no exponential": δ^0 → 0, e → 1.
-        delta_l[0] = 0.0;
-        // Per group, with k = d − l δ^l: δ ∂/∂δ of δ^d exp(−δ^l) is k times it, and
-        // δ² ∂²/∂δ² is k(k − 1) − l² δ^l times it. The 1/δ and 1/τ factors are applied
-        // once, after the sums.
-        let (mut sum_delta, mut sum_delta_delta, mut sum_delta_tau) = (0.0, 0.0, 0.0);
-        for (group, sums) in self.groups.iter().zip(&factors.group) {
-            let li = group.l as usize;
+        // Per group, with k = d − l δ^l and m = l² δ^l: δ ∂/∂δ of δ^d exp(−δ^l) is k
+        // times it, δ² ∂²/∂δ² is k(k − 1) − m times it and δ³ ∂³/∂δ³ is
+        // k(k − 1)(k − 2) − m(3k + l − 3) times it.
+        for (i, g) in self.groups.iter().enumerate().take(MAX_GROUPS) {
+            let li = g.l as usize;
             let (dl, el) = (delta_l[li], exp_l[li]);
-            let shape = delta_d[group.d as usize] * el;
-            let k = group.d_f - group.l_f * dl;
-            let second = k * (k - 1.0) - group.l2_f * dl;
-            let base = sums[0] * shape;
-            let base_tau = sums[1] * shape;
-            out.alpha += base;
-            sum_delta += base * k;
-            sum_delta_delta += base * second;
-            out.alpha_tau += base_tau;
-            out.alpha_tau_tau += sums[2] * shape;
-            sum_delta_tau += base_tau * k;
+            let k = g.d_f - g.l_f * dl;
+            let m = g.l2_f * dl;
+            sink.group(
+                i,
+                [
+                    delta_d[g.d as usize] * el,
+                    k,
+                    k * (k - 1.0) - m,
+                    k * (k - 1.0) * (k - 2.0) - m * (3.0 * k + g.l_f - 3.0),
+                ],
+            );
         }
-        out.alpha_delta = sum_delta * inv_delta;
-        out.alpha_delta_delta = sum_delta_delta * inv_delta * inv_delta;
-        out.alpha_tau *= inv_tau;
-        out.alpha_tau_tau *= inv_tau * inv_tau;
-        out.alpha_delta_tau = sum_delta_tau * inv_delta * inv_tau;
-        for ((term, value), b) in self
-            .gaussian
-            .iter()
-            .zip(&factors.gaussian)
-            .zip(&factors.gaussian_b)
-        {
-            let f = [
-                *value,
-                *b,
-                b * b - term.t * inv_tau * inv_tau - 2.0 * term.beta,
-            ];
+        // Per Gaussian term, with a = d/δ − 2η(δ − ε) its logarithmic δ derivative
+        // and a′ = −d/δ² − 2η: its first three δ derivatives over it are a, a² + a′
+        // and a³ + 3aa′ + 2d/δ³.
+        for (i, term) in self.gaussian.iter().enumerate().take(MAX_GAUSSIAN) {
             let offset = delta - term.epsilon;
-            let d = term.d as f64;
-            let base = f[0] * power_of(term.d) * super::fast_exp::exp(-term.eta * offset * offset);
-            let a = d * inv_delta - 2.0 * term.eta * offset;
-            out.alpha += base;
-            out.alpha_delta += base * a;
-            out.alpha_delta_delta += base * (a * a - d * inv_delta * inv_delta - 2.0 * term.eta);
-            out.alpha_tau += base * f[1];
-            out.alpha_tau_tau += base * f[2];
-            out.alpha_delta_tau += base * a * f[1];
+            let a = term.d_f * inv_delta - 2.0 * term.eta * offset;
+            let a_slope = -term.d_f * inv_delta * inv_delta - 2.0 * term.eta;
+            sink.gaussian(
+                i,
+                [
+                    power_of(term.d) * super::fast_exp::exp(-term.eta * offset * offset),
+                    a,
+                    a * a + a_slope,
+                    a * a * a
+                        + 3.0 * a * a_slope
+                        + 2.0 * term.d_f * inv_delta * inv_delta * inv_delta,
+                ],
+            );
         }
-        out
+        inv_delta
+    }
+
+    /// ∂αʳ/∂δ, ∂²αʳ/∂δ² and ∂³αʳ/∂δ³ at δ from the τ factors: what a density
+    /// iteration at fixed T needs, without the τ derivatives. The δ factors are
+    /// written into `shapes` on the way, for [`ResidualPart::derivatives`] at the
+    /// iteration's root.
+    pub fn density_derivatives(
+        &self,
+        factors: &TauFactors,
+        delta: f64,
+        shapes: &mut DeltaShapes,
+    ) -> [f64; 3] {
+        #[cfg(target_arch = "x86_64")]
+        if wide_arithmetic() {
+            // SAFETY: the CPU has the features, checked at run time.
+            return unsafe { self.density_derivatives_wide(factors, delta, shapes) };
+        }
+        self.density_derivatives_body(factors, delta, shapes)
+    }
+
+    #[cfg(target_arch = "x86_64")]
+    #[target_feature(enable = "avx2,fma")]
+    fn density_derivatives_wide(
+        &self,
+        factors: &TauFactors,
+        delta: f64,
+        shapes: &mut DeltaShapes,
+    ) -> [f64; 3] {
+        self.density_derivatives_body(factors, delta, shapes)
+    }
+
+    #[inline(always)]
+    fn density_derivatives_body(
+        &self,
+        factors: &TauFactors,
+        delta: f64,
+        shapes: &mut DeltaShapes,
+    ) -> [f64; 3] {
+        let mut sink = DensitySink {
+            power: [0.0; 3],
+            gaussian: [0.0; 3],
+            factors,
+            shapes,
+        };
+        let inv_delta = self.for_each_shape(delta, &mut sink);
+        sink.shapes.inv_delta = inv_delta;
+        let (p, g) = (sink.power, sink.gaussian);
+        // Summed as in [`AllSums::finish`], so the first two are its bits.
+        [
+            p[0] * inv_delta + g[0],
+            p[1] * inv_delta * inv_delta + g[1],
+            p[2] * inv_delta * inv_delta * inv_delta + g[2],
+        ]
+    }
+
+    /// αʳ and all its derivatives from the τ factors and stored δ factors.
+    pub fn derivatives(&self, factors: &TauFactors, shapes: &DeltaShapes) -> ResidualDerivatives {
+        let mut sums = AllSums::default();
+        for (i, shape) in shapes.group[..self.groups.len()].iter().enumerate() {
+            sums.add_group(&factors.group[i], *shape);
+        }
+        for (i, (term, shape)) in self.gaussian.iter().zip(&shapes.gaussian).enumerate() {
+            sums.add_gaussian(term, factors, i, *shape);
+        }
+        sums.finish(shapes.inv_delta, factors.inv_tau)
     }
 
     /// αʳ and its derivatives at (τ, δ).
@@ -623,8 +887,110 @@ impl ResidualPart {
     }
 }
 
+/// True when the CPU has AVX2 and FMA (checked once, then cached by the standard
+/// library). The hot evaluations are compiled twice, for these features and for the
+/// baseline, and chosen at run time; Rust forms no fused multiply-adds by itself,
+/// so both give the same bits (unit test `wide_code_gives_the_same_bits`) and the
+/// wider code is only faster (about 5–8 % of a (T, p) flash here,
+/// docs/performance.md).
+#[cfg(target_arch = "x86_64")]
+#[inline(always)]
+fn wide_arithmetic() -> bool {
+    std::arch::is_x86_feature_detected!("avx2") && std::arch::is_x86_feature_detected!("fma")
+}
+
 #[cfg(test)]
 mod tests {
+    /// States over every fluid's range: 40 temperatures by 40 densities up to 3.5
+    /// times the critical density, as (τ, δ).
+    fn grid(fluid: &crate::fluids::Fluid) -> Vec<(f64, f64)> {
+        let (low, high) = (fluid.temperature_min, fluid.temperature_max);
+        let mut out = Vec::new();
+        for i in 0..40 {
+            let t = low * (high / low).powf(i as f64 / 39.0);
+            for j in 0..40 {
+                let density = 1e-4 * fluid.critical.density * (3.5e4f64).powf(j as f64 / 39.0);
+                out.push((fluid.tau(t), fluid.delta(density)));
+            }
+        }
+        out
+    }
+
+    /// The derivatives summed from the δ factors a density step stored (how a
+    /// state's properties reuse its density iteration's last step) are the same bits
+    /// as those summed in one pass, and so are the density step's δ derivatives.
+    #[test]
+    fn stored_factors_give_the_same_bits_as_one_pass() {
+        let mut shapes = super::DeltaShapes::EMPTY;
+        for fluid in crate::fluids::all().unwrap() {
+            let residual = &fluid.residual;
+            for (tau, delta) in grid(fluid) {
+                let factors = residual.at_tau(tau);
+                let [first, second, _] = residual.density_derivatives(&factors, delta, &mut shapes);
+                let (one_pass, stored) = (
+                    residual.evaluate(&factors, delta),
+                    residual.derivatives(&factors, &shapes),
+                );
+                assert_eq!(one_pass, stored, "{} at τ={tau} δ={delta}", fluid.name);
+                // The power terms' 1/δ factors are applied in the same place, so the
+                // same sums give the same bits.
+                assert_eq!(
+                    first.to_bits(),
+                    one_pass.alpha_delta.to_bits(),
+                    "{}",
+                    fluid.name
+                );
+                assert_eq!(
+                    second.to_bits(),
+                    one_pass.alpha_delta_delta.to_bits(),
+                    "{}",
+                    fluid.name
+                );
+            }
+        }
+    }
+
+    /// Where the CPU has AVX2 and FMA, the code compiled for them (no fused
+    /// multiply-adds are formed: Rust does not contract) gives the same bits as the
+    /// baseline code, so results do not depend on the machine.
+    #[cfg(target_arch = "x86_64")]
+    #[test]
+    fn wide_code_gives_the_same_bits() {
+        if !super::wide_arithmetic() {
+            return;
+        }
+        let (mut wide, mut plain) = (super::DeltaShapes::EMPTY, super::DeltaShapes::EMPTY);
+        let mut compared = 0;
+        for fluid in crate::fluids::all().unwrap() {
+            let residual = &fluid.residual;
+            for (tau, delta) in grid(fluid) {
+                // SAFETY: the features were detected above.
+                let (factors, plain_factors) = (
+                    unsafe { residual.at_tau_wide(tau) },
+                    residual.at_tau_body(tau),
+                );
+                assert_eq!(format!("{factors:?}"), format!("{plain_factors:?}"));
+                let sums = (
+                    unsafe { residual.density_derivatives_wide(&factors, delta, &mut wide) },
+                    residual.density_derivatives_body(&factors, delta, &mut plain),
+                );
+                assert_eq!(format!("{sums:?}"), format!("{:?}", (sums.1, sums.0)));
+                assert_eq!(format!("{wide:?}"), format!("{plain:?}"), "{}", fluid.name);
+                assert_eq!(
+                    unsafe { residual.evaluate_wide(&factors, delta) },
+                    residual.evaluate_body(&factors, delta)
+                );
+                let ideal = (
+                    unsafe { fluid.ideal.evaluate_parts_wide(tau, true) },
+                    fluid.ideal.evaluate_parts_body(tau, true),
+                );
+                assert_eq!(format!("{:?}", ideal.0), format!("{:?}", ideal.1));
+                compared += 1;
+            }
+        }
+        assert!(compared > 1000);
+    }
+
     /// The derivatives without α⁰ are the same bits as with it, for every fluid
     /// at 200 temperatures; α⁰ is then NaN.
     #[test]
