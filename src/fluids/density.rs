@@ -69,12 +69,13 @@ impl Fluid {
             // inflection, a slope near zero) the plain Newton step is taken. A step
             // may change the density by at most half; far beyond the physical
             // densities some equations turn to negative pressures.
-            let newton = f / slope;
-            let divisor = 1.0 - 0.5 * newton * curvature / slope;
-            let step = if divisor > 0.5 && divisor < 2.0 {
-                newton / divisor
+            // As f f′/(f′² − f f″/2), one division.
+            let square = slope * slope;
+            let denominator = square - 0.5 * f * curvature;
+            let step = if denominator > 0.5 * square && denominator < 2.0 * square {
+                f * slope / denominator
             } else {
-                newton
+                f / slope
             };
             let mut next = (x - step).clamp(0.5 * x, 1.5 * x);
             if !(slope > 0.0 && next > low && next < high) {

@@ -166,6 +166,29 @@ pub fn exp(x: f64) -> f64 {
         }
         return x.exp();
     }
+    exp_within_range(x)
+}
+
+/// e^x of every element in place, each the same bits as [`exp`]: where every
+/// argument lies in the inlined range, by arithmetic without branches, which the
+/// compiler may carry out for several elements at once (AVX2 gathers the table
+/// entries); else one by one through [`exp`].
+#[inline(always)]
+pub fn exp_in_place(values: &mut [f64]) {
+    if values.iter().all(|x| x.abs() < 700.0) {
+        for x in values.iter_mut() {
+            *x = exp_within_range(*x);
+        }
+    } else {
+        for x in values.iter_mut() {
+            *x = exp(*x);
+        }
+    }
+}
+
+/// e^x for |x| < 700, without branches.
+#[inline(always)]
+fn exp_within_range(x: f64) -> f64 {
     // k = round(x·128/ln 2) sits in the low bits of kd's pattern, offset by 2^51.
     let kd = x * INV_LN2_N + SHIFT;
     let ki = kd.to_bits() as i64;

@@ -331,7 +331,8 @@ impl Fluid {
     /// and vapour of a saturation, or a species on both sides of the ortho–para
     /// solution's boiling, are evaluated at one τ one after the other (the same bits
     /// in, the same bits out).
-    fn ideal_at(&self, tau: f64) -> IdealDerivatives {
+    fn ideal_at(&self, factors: &TauFactors) -> IdealDerivatives {
+        let tau = factors.tau();
         let key = (self.identity, tau.to_bits());
         LAST_IDEAL.with(|last| {
             if let Some((k, i)) = last.get() {
@@ -339,7 +340,7 @@ impl Fluid {
                     return i;
                 }
             }
-            let i = self.ideal.evaluate(tau);
+            let i = self.ideal.evaluate_with_ln_tau(tau, factors.ln_tau());
             last.set(Some((key, i)));
             i
         })
@@ -391,7 +392,7 @@ impl Fluid {
         let tau = factors.tau();
         let delta = self.delta(density);
         let r = self.residual_at_delta(factors, delta);
-        let i = self.ideal_at(tau);
+        let i = self.ideal_at(factors);
         let rt = self.gas_constant * temperature;
         let big_r = self.gas_constant;
         let d_ar = delta * r.alpha_delta;

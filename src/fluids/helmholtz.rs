@@ -184,26 +184,52 @@ impl IdealPart {
     /// [`IdealPart::evaluate`], α⁰ itself only `with_alpha` (else NaN); the
     /// derivatives are the same bits either way.
     fn evaluate_parts(&self, tau: f64, with_alpha: bool) -> IdealDerivatives {
+        self.evaluate_parts_given(tau, with_alpha, None)
+    }
+
+    /// [`IdealPart::evaluate`] with ln τ already at hand (it is
+    /// [`TauFactors::ln_tau`], the same bits as `tau.ln()`).
+    pub fn evaluate_with_ln_tau(&self, tau: f64, ln_tau: f64) -> IdealDerivatives {
+        self.evaluate_parts_given(tau, true, Some(ln_tau))
+    }
+
+    /// [`IdealPart::evaluate_parts`] with ln τ given, or computed when needed.
+    fn evaluate_parts_given(
+        &self,
+        tau: f64,
+        with_alpha: bool,
+        ln_tau: Option<f64>,
+    ) -> IdealDerivatives {
         #[cfg(target_arch = "x86_64")]
         if wide_arithmetic() {
             // SAFETY: the CPU has the features, checked at run time.
-            return unsafe { self.evaluate_parts_wide(tau, with_alpha) };
+            return unsafe { self.evaluate_parts_wide(tau, with_alpha, ln_tau) };
         }
-        self.evaluate_parts_body(tau, with_alpha)
+        self.evaluate_parts_body(tau, with_alpha, ln_tau)
     }
 
     #[cfg(target_arch = "x86_64")]
     #[target_feature(enable = "avx2,fma")]
-    fn evaluate_parts_wide(&self, tau: f64, with_alpha: bool) -> IdealDerivatives {
-        self.evaluate_parts_body(tau, with_alpha)
+    fn evaluate_parts_wide(
+        &self,
+        tau: f64,
+        with_alpha: bool,
+        ln_tau: Option<f64>,
+    ) -> IdealDerivatives {
+        self.evaluate_parts_body(tau, with_alpha, ln_tau)
     }
 
     #[inline(always)]
-    fn evaluate_parts_body(&self, tau: f64, with_alpha: bool) -> IdealDerivatives {
-        let ln_tau = if with_alpha || !self.power.is_empty() {
-            tau.ln()
-        } else {
-            f64::NAN
+    fn evaluate_parts_body(
+        &self,
+        tau: f64,
+        with_alpha: bool,
+        ln_tau: Option<f64>,
+    ) -> IdealDerivatives {
+        let ln_tau = match ln_tau {
+            Some(value) => value,
+            None if with_alpha || !self.power.is_empty() => tau.ln(),
+            None => f64::NAN,
         };
         let mut out = IdealDerivatives {
             alpha: self.lead_constant + self.lead_tau * tau + self.log_tau * ln_tau,
@@ -216,31 +242,16 @@ impl IdealPart {
             out.alpha_tau += value * t / tau;
             out.alpha_tau_tau += value * t * (t - 1.0) / (tau * tau);
         }
-        for &(n, theta) in &self.planck {
-            let x = theta * tau;
-            let e = super::fast_exp::exp(-x);
-            // 1 − e^(−x) without cancellation: directly where e^(−x) ≤ 1/2 (the
-            // subtraction then loses nothing), else from expm1.
-            let one_minus = if x >= std::f64::consts::LN_2 {
-                1.0 - e
-            } else {
-                -(-x).exp_m1()
-            };
-            if with_alpha {
-                // ln(1 − e): below 1e-4 by its series to e⁴ (the rest is under 3e-17
-                // of it), which spares the logarithm at the low temperatures where
-                // every term lies there.
-                let log_one_minus = if e < 1e-4 {
-                    -e * (1.0 + e * (0.5 + e * (1.0 / 3.0 + e * 0.25)))
-                } else {
-                    one_minus.ln()
-                };
-                out.alpha += n * log_one_minus;
+        // The exponentials e^(−θτ) eight at a time, all at once.
+        for chunk in self.planck.chunks(8) {
+            let mut decays = [0.0f64; 8];
+            for (decay, &(_, theta)) in decays.iter_mut().zip(chunk) {
+                *decay = -theta * tau;
             }
-            // e/(1 − e), one division for both derivatives.
-            let ratio = e / one_minus;
-            out.alpha_tau += n * theta * ratio;
-            out.alpha_tau_tau -= n * theta * theta * ratio / one_minus;
+            super::fast_exp::exp_in_place(&mut decays[..chunk.len()]);
+            for (&(n, theta), &e) in chunk.iter().zip(&decays) {
+                Self::add_planck(&mut out, n, theta, tau, e, with_alpha);
+            }
         }
         for &(n, c, d, theta) in &self.general {
             let e = super::fast_exp::exp(theta * tau);
@@ -255,6 +266,42 @@ impl IdealPart {
             out.alpha = f64::NAN;
         }
         out
+    }
+
+    /// Adds Planck–Einstein term n ln(1 − e^(−θτ)) and its τ derivatives, with
+    /// e = e^(−θτ) computed by the caller.
+    #[inline(always)]
+    fn add_planck(
+        out: &mut IdealDerivatives,
+        n: f64,
+        theta: f64,
+        tau: f64,
+        e: f64,
+        with_alpha: bool,
+    ) {
+        let x = theta * tau;
+        // 1 − e^(−x) without cancellation: directly where e^(−x) ≤ 1/2 (the
+        // subtraction then loses nothing), else from expm1.
+        let one_minus = if x >= std::f64::consts::LN_2 {
+            1.0 - e
+        } else {
+            -(-x).exp_m1()
+        };
+        if with_alpha {
+            // ln(1 − e): below 1e-4 by its series to e⁴ (the rest is under 3e-17
+            // of it), which spares the logarithm at the low temperatures where
+            // every term lies there.
+            let log_one_minus = if e < 1e-4 {
+                -e * (1.0 + e * (0.5 + e * (1.0 / 3.0 + e * 0.25)))
+            } else {
+                one_minus.ln()
+            };
+            out.alpha += n * log_one_minus;
+        }
+        // e/(1 − e), one division for both derivatives.
+        let ratio = e / one_minus;
+        out.alpha_tau += n * theta * ratio;
+        out.alpha_tau_tau -= n * theta * theta * ratio / one_minus;
     }
 }
 
@@ -311,6 +358,8 @@ pub struct ResidualPart {
     largest_whole: usize,
     needs_eighths: bool,
     exponent_of: Vec<usize>,
+    /// The exponents that are not whole eighths: (index among `exponents`, t).
+    real_exponents: Vec<(usize, f64)>,
     gaussian_exponents: Vec<Exponent>,
 }
 
@@ -326,6 +375,7 @@ pub const MAX_GAUSSIAN: usize = 24;
 pub struct TauFactors {
     tau: f64,
     inv_tau: f64,
+    ln_tau: f64,
     /// Per (d, l) group of power terms: Σ n τ^t, Σ n t τ^t and Σ n t(t − 1) τ^t, so
     /// that τ ∂/∂τ and τ² ∂²/∂τ² of the group's τ part are the second and third.
     group: [[f64; 3]; MAX_GROUPS],
@@ -482,6 +532,11 @@ impl AllSums {
 }
 
 impl TauFactors {
+    /// ln τ, as `tau().ln()` gives it (the same bits).
+    pub fn ln_tau(&self) -> f64 {
+        self.ln_tau
+    }
+
     /// The τ these factors were computed at.
     pub fn tau(&self) -> f64 {
         self.tau
@@ -600,6 +655,15 @@ impl ResidualPart {
             };
             part.exponent_of.push(index);
         }
+        part.real_exponents = part
+            .exponents
+            .iter()
+            .enumerate()
+            .filter_map(|(i, e)| match *e {
+                Exponent::Real(t) => Some((i, t)),
+                Exponent::Eighths(_) => None,
+            })
+            .collect();
         part.gaussian_exponents = part.gaussian.iter().map(|g| Exponent::of(g.t)).collect();
         for exponent in part.exponents.iter().chain(&part.gaussian_exponents) {
             if let Exponent::Eighths(k) = *exponent {
@@ -639,6 +703,8 @@ impl ResidualPart {
     #[inline(always)]
     fn at_tau_body(&self, tau: f64) -> TauFactors {
         let table = TauPowers::new(tau, self.largest_whole, self.needs_eighths);
+        // τ^t of every distinct exponent: the real ones as exp(t ln τ), all at once
+        // (the others' arguments are zero and their exponentials unused).
         let mut powers = [0.0f64; MAX_TERMS];
         for (slot, e) in powers.iter_mut().zip(&self.exponents) {
             *slot = table.power(*e);
@@ -646,6 +712,7 @@ impl ResidualPart {
         let mut out = TauFactors {
             tau,
             inv_tau: 1.0 / tau,
+            ln_tau: table.ln_tau,
             group: [[0.0; 3]; MAX_GROUPS],
             gaussian: [0.0; MAX_GAUSSIAN],
             gaussian_b: [0.0; MAX_GAUSSIAN],
@@ -657,23 +724,33 @@ impl ResidualPart {
             sums[1] += value * term.t;
             sums[2] += value * term.t_t1;
         }
-        for (i, (term, e)) in self
+        // τ^t exp(−β(τ−γ)²) as one exponential where τ^t would be one itself; the
+        // exponentials all at once.
+        let mut bells = [0.0f64; MAX_GAUSSIAN];
+        for ((bell, term), e) in bells
+            .iter_mut()
+            .zip(&self.gaussian)
+            .zip(&self.gaussian_exponents)
+        {
+            let offset = tau - term.gamma;
+            *bell = match *e {
+                Exponent::Real(t) => t * table.ln_tau - term.beta * offset * offset,
+                Exponent::Eighths(_) => -term.beta * offset * offset,
+            };
+        }
+        super::fast_exp::exp_in_place(&mut bells[..self.gaussian.len().min(MAX_GAUSSIAN)]);
+        for (i, ((term, e), bell)) in self
             .gaussian
             .iter()
             .zip(&self.gaussian_exponents)
+            .zip(&bells)
             .enumerate()
         {
-            let offset = tau - term.gamma;
-            // τ^t exp(−β(τ−γ)²) as one exponential where τ^t would be one itself.
             out.gaussian[i] = match *e {
-                Exponent::Real(t) => {
-                    term.n * super::fast_exp::exp(t * table.ln_tau - term.beta * offset * offset)
-                }
-                Exponent::Eighths(_) => {
-                    term.n * table.power(*e) * super::fast_exp::exp(-term.beta * offset * offset)
-                }
+                Exponent::Real(_) => term.n * bell,
+                Exponent::Eighths(_) => term.n * table.power(*e) * bell,
             };
-            out.gaussian_b[i] = term.t * out.inv_tau - 2.0 * term.beta * offset;
+            out.gaussian_b[i] = term.t * out.inv_tau - 2.0 * term.beta * (tau - term.gamma);
         }
         out
     }
@@ -754,14 +831,22 @@ impl ResidualPart {
         // Per Gaussian term, with a = d/δ − 2η(δ − ε) its logarithmic δ derivative
         // and a′ = −d/δ² − 2η: its first three δ derivatives over it are a, a² + a′
         // and a³ + 3aa′ + 2d/δ³.
-        for (i, term) in self.gaussian.iter().enumerate().take(MAX_GAUSSIAN) {
+        // The bells exp(−η(δ − ε)²) all at once.
+        let count = self.gaussian.len().min(MAX_GAUSSIAN);
+        let mut bells = [0.0f64; MAX_GAUSSIAN];
+        for (bell, term) in bells.iter_mut().zip(&self.gaussian) {
+            let offset = delta - term.epsilon;
+            *bell = -term.eta * offset * offset;
+        }
+        super::fast_exp::exp_in_place(&mut bells[..count]);
+        for (i, (term, bell)) in self.gaussian.iter().zip(&bells).enumerate() {
             let offset = delta - term.epsilon;
             let a = term.d_f * inv_delta - 2.0 * term.eta * offset;
             let a_slope = -term.d_f * inv_delta * inv_delta - 2.0 * term.eta;
             sink.gaussian(
                 i,
                 [
-                    power_of(term.d) * super::fast_exp::exp(-term.eta * offset * offset),
+                    power_of(term.d) * bell,
                     a,
                     a * a + a_slope,
                     a * a * a
@@ -981,8 +1066,8 @@ mod tests {
                     residual.evaluate_body(&factors, delta)
                 );
                 let ideal = (
-                    unsafe { fluid.ideal.evaluate_parts_wide(tau, true) },
-                    fluid.ideal.evaluate_parts_body(tau, true),
+                    unsafe { fluid.ideal.evaluate_parts_wide(tau, true, None) },
+                    fluid.ideal.evaluate_parts_body(tau, true, None),
                 );
                 assert_eq!(format!("{:?}", ideal.0), format!("{:?}", ideal.1));
                 compared += 1;
