@@ -20,6 +20,35 @@ pub struct IdealDerivatives {
     pub alpha_tau_tau: f64,
 }
 
+/// Defines method `$entry` and its copy `$wide` compiled for AVX2 and FMA, both
+/// running `$body` (which must be `#[inline(always)]`); the entry takes the copy
+/// where the CPU has the features (see [`wide_arithmetic`]), else the body as
+/// compiled for the baseline.
+macro_rules! wide_or_baseline {
+    (
+        $(#[$meta:meta])*
+        $vis:vis fn $entry:ident / $wide:ident => $body:ident(
+            $($argument:ident: $kind:ty),* $(,)?
+        ) -> $output:ty
+    ) => {
+        $(#[$meta])*
+        $vis fn $entry(&self, $($argument: $kind),*) -> $output {
+            #[cfg(target_arch = "x86_64")]
+            if wide_arithmetic() {
+                // SAFETY: the CPU has the features, checked at run time.
+                return unsafe { self.$wide($($argument),*) };
+            }
+            self.$body($($argument),*)
+        }
+
+        #[cfg(target_arch = "x86_64")]
+        #[target_feature(enable = "avx2,fma")]
+        fn $wide(&self, $($argument: $kind),*) -> $output {
+            self.$body($($argument),*)
+        }
+    };
+}
+
 /// αʳ and its partial derivatives up to second order.
 #[derive(Debug, Clone, Copy, Default, PartialEq)]
 pub struct ResidualDerivatives {
@@ -193,30 +222,13 @@ impl IdealPart {
         self.evaluate_parts_given(tau, true, Some(ln_tau))
     }
 
-    /// [`IdealPart::evaluate_parts`] with ln τ given, or computed when needed.
-    fn evaluate_parts_given(
-        &self,
-        tau: f64,
-        with_alpha: bool,
-        ln_tau: Option<f64>,
-    ) -> IdealDerivatives {
-        #[cfg(target_arch = "x86_64")]
-        if wide_arithmetic() {
-            // SAFETY: the CPU has the features, checked at run time.
-            return unsafe { self.evaluate_parts_wide(tau, with_alpha, ln_tau) };
-        }
-        self.evaluate_parts_body(tau, with_alpha, ln_tau)
-    }
-
-    #[cfg(target_arch = "x86_64")]
-    #[target_feature(enable = "avx2,fma")]
-    fn evaluate_parts_wide(
-        &self,
-        tau: f64,
-        with_alpha: bool,
-        ln_tau: Option<f64>,
-    ) -> IdealDerivatives {
-        self.evaluate_parts_body(tau, with_alpha, ln_tau)
+    wide_or_baseline! {
+        /// [`IdealPart::evaluate_parts`] with ln τ given, or computed when needed.
+        fn evaluate_parts_given / evaluate_parts_wide => evaluate_parts_body(
+            tau: f64,
+            with_alpha: bool,
+            ln_tau: Option<f64>,
+        ) -> IdealDerivatives
     }
 
     #[inline(always)]
@@ -684,20 +696,9 @@ impl ResidualPart {
         self.len() == 0
     }
 
-    /// The τ-dependent factors at τ.
-    pub fn at_tau(&self, tau: f64) -> TauFactors {
-        #[cfg(target_arch = "x86_64")]
-        if wide_arithmetic() {
-            // SAFETY: the CPU has the features, checked at run time.
-            return unsafe { self.at_tau_wide(tau) };
-        }
-        self.at_tau_body(tau)
-    }
-
-    #[cfg(target_arch = "x86_64")]
-    #[target_feature(enable = "avx2,fma")]
-    fn at_tau_wide(&self, tau: f64) -> TauFactors {
-        self.at_tau_body(tau)
+    wide_or_baseline! {
+        /// The τ-dependent factors at τ.
+        pub fn at_tau / at_tau_wide => at_tau_body(tau: f64) -> TauFactors
     }
 
     #[inline(always)]
@@ -755,20 +756,12 @@ impl ResidualPart {
         out
     }
 
-    /// αʳ and its derivatives at δ, with the τ factors from [`ResidualPart::at_tau`].
-    pub fn evaluate(&self, factors: &TauFactors, delta: f64) -> ResidualDerivatives {
-        #[cfg(target_arch = "x86_64")]
-        if wide_arithmetic() {
-            // SAFETY: the CPU has the features, checked at run time.
-            return unsafe { self.evaluate_wide(factors, delta) };
-        }
-        self.evaluate_body(factors, delta)
-    }
-
-    #[cfg(target_arch = "x86_64")]
-    #[target_feature(enable = "avx2,fma")]
-    fn evaluate_wide(&self, factors: &TauFactors, delta: f64) -> ResidualDerivatives {
-        self.evaluate_body(factors, delta)
+    wide_or_baseline! {
+        /// αʳ and its derivatives at δ, with the τ factors from [`ResidualPart::at_tau`].
+        pub fn evaluate / evaluate_wide => evaluate_body(
+            factors: &TauFactors,
+            delta: f64,
+        ) -> ResidualDerivatives
     }
 
     /// The δ factors go straight into the sums, without being stored.
@@ -858,33 +851,16 @@ impl ResidualPart {
         inv_delta
     }
 
-    /// ∂αʳ/∂δ, ∂²αʳ/∂δ² and ∂³αʳ/∂δ³ at δ from the τ factors: what a density
-    /// iteration at fixed T needs, without the τ derivatives. The δ factors are
-    /// written into `shapes` on the way, for [`ResidualPart::derivatives`] at the
-    /// iteration's root.
-    pub fn density_derivatives(
-        &self,
-        factors: &TauFactors,
-        delta: f64,
-        shapes: &mut DeltaShapes,
-    ) -> [f64; 3] {
-        #[cfg(target_arch = "x86_64")]
-        if wide_arithmetic() {
-            // SAFETY: the CPU has the features, checked at run time.
-            return unsafe { self.density_derivatives_wide(factors, delta, shapes) };
-        }
-        self.density_derivatives_body(factors, delta, shapes)
-    }
-
-    #[cfg(target_arch = "x86_64")]
-    #[target_feature(enable = "avx2,fma")]
-    fn density_derivatives_wide(
-        &self,
-        factors: &TauFactors,
-        delta: f64,
-        shapes: &mut DeltaShapes,
-    ) -> [f64; 3] {
-        self.density_derivatives_body(factors, delta, shapes)
+    wide_or_baseline! {
+        /// ∂αʳ/∂δ, ∂²αʳ/∂δ² and ∂³αʳ/∂δ³ at δ from the τ factors: what a density
+        /// iteration at fixed T needs, without the τ derivatives. The δ factors are
+        /// written into `shapes` on the way, for [`ResidualPart::derivatives`] at the
+        /// iteration's root.
+        pub fn density_derivatives / density_derivatives_wide => density_derivatives_body(
+            factors: &TauFactors,
+            delta: f64,
+            shapes: &mut DeltaShapes,
+        ) -> [f64; 3]
     }
 
     #[inline(always)]
