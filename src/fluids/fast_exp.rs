@@ -171,8 +171,8 @@ pub fn exp(x: f64) -> f64 {
 
 /// e^x of every element in place, each the same bits as [`exp`]: where every
 /// argument lies in the inlined range, by arithmetic without branches, which the
-/// compiler may carry out for several elements at once (AVX2 gathers the table
-/// entries); else one by one through [`exp`].
+/// compiler may carry out for several elements at once and the processor overlaps;
+/// else one by one through [`exp`].
 #[inline(always)]
 pub fn exp_in_place(values: &mut [f64]) {
     if values.iter().all(|x| x.abs() < 700.0) {

@@ -254,16 +254,9 @@ impl IdealPart {
             out.alpha_tau += value * t / tau;
             out.alpha_tau_tau += value * t * (t - 1.0) / (tau * tau);
         }
-        // The exponentials e^(−θτ) eight at a time, all at once.
-        for chunk in self.planck.chunks(8) {
-            let mut decays = [0.0f64; 8];
-            for (decay, &(_, theta)) in decays.iter_mut().zip(chunk) {
-                *decay = -theta * tau;
-            }
-            super::fast_exp::exp_in_place(&mut decays[..chunk.len()]);
-            for (&(n, theta), &e) in chunk.iter().zip(&decays) {
-                Self::add_planck(&mut out, n, theta, tau, e, with_alpha);
-            }
+        for &(n, theta) in &self.planck {
+            let e = super::fast_exp::exp(-theta * tau);
+            Self::add_planck(&mut out, n, theta, tau, e, with_alpha);
         }
         for &(n, c, d, theta) in &self.general {
             let e = super::fast_exp::exp(theta * tau);
@@ -370,8 +363,6 @@ pub struct ResidualPart {
     largest_whole: usize,
     needs_eighths: bool,
     exponent_of: Vec<usize>,
-    /// The exponents that are not whole eighths: (index among `exponents`, t).
-    real_exponents: Vec<(usize, f64)>,
     gaussian_exponents: Vec<Exponent>,
 }
 
@@ -667,15 +658,6 @@ impl ResidualPart {
             };
             part.exponent_of.push(index);
         }
-        part.real_exponents = part
-            .exponents
-            .iter()
-            .enumerate()
-            .filter_map(|(i, e)| match *e {
-                Exponent::Real(t) => Some((i, t)),
-                Exponent::Eighths(_) => None,
-            })
-            .collect();
         part.gaussian_exponents = part.gaussian.iter().map(|g| Exponent::of(g.t)).collect();
         for exponent in part.exponents.iter().chain(&part.gaussian_exponents) {
             if let Exponent::Eighths(k) = *exponent {
@@ -725,33 +707,22 @@ impl ResidualPart {
             sums[1] += value * term.t;
             sums[2] += value * term.t_t1;
         }
-        // τ^t exp(−β(τ−γ)²) as one exponential where τ^t would be one itself; the
-        // exponentials all at once.
-        let mut bells = [0.0f64; MAX_GAUSSIAN];
-        for ((bell, term), e) in bells
-            .iter_mut()
-            .zip(&self.gaussian)
-            .zip(&self.gaussian_exponents)
-        {
-            let offset = tau - term.gamma;
-            *bell = match *e {
-                Exponent::Real(t) => t * table.ln_tau - term.beta * offset * offset,
-                Exponent::Eighths(_) => -term.beta * offset * offset,
-            };
-        }
-        super::fast_exp::exp_in_place(&mut bells[..self.gaussian.len().min(MAX_GAUSSIAN)]);
-        for (i, ((term, e), bell)) in self
+        for (i, (term, e)) in self
             .gaussian
             .iter()
             .zip(&self.gaussian_exponents)
-            .zip(&bells)
             .enumerate()
         {
+            let offset = tau - term.gamma;
             out.gaussian[i] = match *e {
-                Exponent::Real(_) => term.n * bell,
-                Exponent::Eighths(_) => term.n * table.power(*e) * bell,
+                Exponent::Real(t) => {
+                    term.n * super::fast_exp::exp(t * table.ln_tau - term.beta * offset * offset)
+                }
+                Exponent::Eighths(_) => {
+                    term.n * table.power(*e) * super::fast_exp::exp(-term.beta * offset * offset)
+                }
             };
-            out.gaussian_b[i] = term.t * out.inv_tau - 2.0 * term.beta * (tau - term.gamma);
+            out.gaussian_b[i] = term.t * out.inv_tau - 2.0 * term.beta * offset;
         }
         out
     }
