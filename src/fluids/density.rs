@@ -63,13 +63,13 @@ impl Fluid {
             } else {
                 high = high.min(x);
             }
-            // Halley's step, f/f′ divided by 1 − f f″/(2f′²): third-order convergence
-            // for one more sum in the evaluation (a quarter fewer evaluations over
-            // the benchmark's states). Where the divisor strays far from 1 (an
+            // Halley's step, f/f′ divided by 1 − f f″/(2f′²), taken as
+            // f f′/(f′² − f f″/2) with one division: third-order convergence for one
+            // more sum in the evaluation (a quarter fewer evaluations over the
+            // benchmark's states). Where the divisor strays far from 1 (an
             // inflection, a slope near zero) the plain Newton step is taken. A step
             // may change the density by at most half; far beyond the physical
             // densities some equations turn to negative pressures.
-            // As f f′/(f′² − f f″/2), one division.
             let square = slope * slope;
             let denominator = square - 0.5 * f * curvature;
             let step = if denominator > 0.5 * square && denominator < 2.0 * square {

@@ -686,8 +686,7 @@ impl ResidualPart {
     #[inline(always)]
     fn at_tau_body(&self, tau: f64) -> TauFactors {
         let table = TauPowers::new(tau, self.largest_whole, self.needs_eighths);
-        // τ^t of every distinct exponent: the real ones as exp(t ln τ), all at once
-        // (the others' arguments are zero and their exponentials unused).
+        // τ^t of every distinct exponent, each once.
         let mut powers = [0.0f64; MAX_TERMS];
         for (slot, e) in powers.iter_mut().zip(&self.exponents) {
             *slot = table.power(*e);
@@ -794,8 +793,8 @@ impl ResidualPart {
         }
         // Per Gaussian term, with a = d/δ − 2η(δ − ε) its logarithmic δ derivative
         // and a′ = −d/δ² − 2η: its first three δ derivatives over it are a, a² + a′
-        // and a³ + 3aa′ + 2d/δ³.
-        // The bells exp(−η(δ − ε)²) all at once.
+        // and a³ + 3aa′ + 2d/δ³. The bells exp(−η(δ − ε)²) are computed first, all
+        // at once.
         let count = self.gaussian.len().min(MAX_GAUSSIAN);
         let mut bells = [0.0f64; MAX_GAUSSIAN];
         for (bell, term) in bells.iter_mut().zip(&self.gaussian) {
