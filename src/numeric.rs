@@ -83,16 +83,35 @@ pub fn bracketed_newton(
     high: f64,
     relative: f64,
 ) -> Result<f64> {
+    // The settled search stops at the same evaluation; the answer is one step on.
+    let with_step = |t: f64| {
+        let (value, slope) = f(t);
+        let next = if value == 0.0 { t } else { t - value / slope };
+        (value, slope, next)
+    };
+    bracketed_newton_settled(solver, with_step, start, low, high, relative).map(|(_, next)| next)
+}
+
+/// As [`bracketed_newton`], but the answer is the last point evaluated, taken once
+/// the Newton step computed there is within `relative` of it, together with what
+/// `f` computed there (its third output): no evaluation is spent past the answer.
+/// The point's own step bounds its distance from the root.
+pub fn bracketed_newton_settled<P>(
+    solver: &'static str,
+    f: impl Fn(f64) -> (f64, f64, P),
+    start: f64,
+    low: f64,
+    high: f64,
+    relative: f64,
+) -> Result<(f64, P)> {
     let (mut a, mut b) = (low, high);
     let mut t = start;
     let mut last = f64::NAN;
     for _ in 0..BRACKETED_NEWTON_CAP {
-        let (value, slope) = f(t);
+        let (value, slope, payload) = f(t);
         last = value;
-        // An exact root is the answer (it would otherwise become a bracket's end,
-        // and a step of zero onto it would be taken for one leaving the bracket).
         if value == 0.0 {
-            return Ok(t);
+            return Ok((t, payload));
         }
         if value < 0.0 {
             a = t;
@@ -101,7 +120,7 @@ pub fn bracketed_newton(
         }
         let newton = t - value / slope;
         if (newton - t).abs() <= relative * t {
-            return Ok(newton);
+            return Ok((t, payload));
         }
         t = if newton > a && newton < b {
             newton
@@ -168,6 +187,37 @@ mod tests {
         };
         let root = bracketed_newton("test", f, 0.5, 0.0, 1.0, 1e-14).unwrap();
         assert_eq!((root, calls.get()), (0.5, 1));
+    }
+
+    /// The settled search answers with the last point it evaluated and what was
+    /// computed there, after as many evaluations as the plain search (which answers
+    /// one step on, where a caller needing the state would evaluate once more).
+    #[test]
+    fn bracketed_newton_settled_answers_with_its_last_evaluation() {
+        let calls = std::cell::Cell::new(0);
+        let f = |x: f64| {
+            calls.set(calls.get() + 1);
+            (x * x - 2.0, 2.0 * x, x * x)
+        };
+        let (root, square) = bracketed_newton_settled("test", f, 1.0, 0.0, 2.0, 1e-14).unwrap();
+        assert!((root - 2f64.sqrt()).abs() < 1e-14 * root);
+        assert_eq!(square, root * root);
+        let settled_calls = calls.get();
+        calls.set(0);
+        let plain = bracketed_newton(
+            "test",
+            |x| {
+                let (value, slope, _) = f(x);
+                (value, slope)
+            },
+            1.0,
+            0.0,
+            2.0,
+            1e-14,
+        )
+        .unwrap();
+        assert_eq!(calls.get(), settled_calls);
+        assert!((plain - root).abs() < 1e-14 * root);
     }
 
     #[test]

@@ -389,3 +389,53 @@ fn exchanger_finds_an_internal_pinch() {
     let dh_cold = cold.flow * (outlets[1].state.enthalpy - cold.state.enthalpy);
     assert!((dh_hot - dh_cold).abs() < 1e-6 * dh_hot);
 }
+
+/// A solve that leaves out the exchangers' largest duty (as the pressure advice's
+/// re-solve does) gives the same streams and yield to the bit; only the largest
+/// duty and the effectiveness are missing (NaN), and the design checks count the
+/// same errors.
+#[test]
+fn leaving_out_the_largest_duty_changes_nothing_else() {
+    for name in DEMOS {
+        let plant = load(&demo(name), &[]).unwrap();
+        let full = solve(&plant, &Options::default()).unwrap();
+        let lean = solve(
+            &plant,
+            &Options {
+                skip_largest_duty: true,
+                ..Options::default()
+            },
+        )
+        .unwrap();
+        assert_eq!(
+            full.summary.liquid_yield, lean.summary.liquid_yield,
+            "{name}"
+        );
+        assert_eq!(full.iterations, lean.iterations, "{name}");
+        for (a, b) in full.streams.iter().zip(&lean.streams) {
+            assert_eq!(a.state.temperature, b.state.temperature, "{name}");
+            assert_eq!(a.state.enthalpy, b.state.enthalpy, "{name}");
+            assert_eq!(a.flow, b.flow, "{name}");
+        }
+        let mut exchangers = 0;
+        for (a, b) in full.units.iter().zip(&lean.units) {
+            if let (Details::Exchanger(a), Details::Exchanger(b)) =
+                (&a.performance.details, &b.performance.details)
+            {
+                exchangers += 1;
+                assert!(
+                    a.max_duty.is_finite() && a.effectiveness.is_finite(),
+                    "{name}"
+                );
+                assert!(b.max_duty.is_nan() && b.effectiveness.is_nan(), "{name}");
+                assert_eq!((a.min_approach, a.ua), (b.min_approach, b.ua), "{name}");
+            }
+        }
+        assert!(exchangers > 0, "{name}");
+        assert_eq!(
+            cryochain::rules::design_errors(&plant, &full),
+            cryochain::rules::design_errors(&plant, &lean),
+            "{name}"
+        );
+    }
+}

@@ -189,9 +189,10 @@ pub struct ProfilePoint {
 pub struct ExchangerReport {
     /// Conductance UA = Σ dQ/ΔT_lm over the segments, W/K (infinite at a pinch of 0).
     pub ua: f64,
-    /// Duty over the largest duty the streams allow (pinch of zero).
+    /// Duty over the largest duty the streams allow (pinch of zero); NaN where the
+    /// solve was asked to leave the largest duty out (`Options::skip_largest_duty`).
     pub effectiveness: f64,
-    /// The largest duty the streams allow, W.
+    /// The largest duty the streams allow, W (NaN where left out, as above).
     pub max_duty: f64,
     /// The smallest hot-minus-cold temperature difference anywhere, K.
     pub min_approach: f64,
@@ -380,7 +381,8 @@ impl Sides<'_> {
             let f = k as f64 / n as f64;
             let p = hot.pressure - self.design.hot_pressure_drop * f;
             let h = hot.enthalpy - q * f / mh;
-            let state = self.hot_path.state(p, h, &hot_states[k - 1])?;
+            let earlier = k.checked_sub(2).map(|j| &hot_states[j]);
+            let state = self.hot_path.state_along(p, h, &hot_states[k - 1], earlier)?;
             hot_states.push(state);
         }
         let mut cold_states: Vec<State> = Vec::with_capacity(n + 1);
@@ -392,7 +394,8 @@ impl Sides<'_> {
             let p = cold.pressure - self.design.cold_pressure_drop * along;
             let h = cold.enthalpy + (q + leak) * along / mc;
             let near = cold_states.last().unwrap_or(cold);
-            let state = self.cold_path.state(p, h, near)?;
+            let earlier = cold_states.len().checked_sub(2).map(|j| &cold_states[j]);
+            let state = self.cold_path.state_along(p, h, near, earlier)?;
             cold_states.push(state);
         }
         cold_states.reverse();
@@ -571,15 +574,30 @@ pub fn exchange(
         }
     };
     if !context.detailed && !degenerate {
-        // Outlets only: no profile needed for this pass.
-        let hot_out = sides.hot_path.state_ph(
-            sides.hot_outlet_pressure(),
-            hot.state.enthalpy - duty / hot.flow,
-        )?;
-        let cold_out = sides.cold_path.state_ph(
-            sides.cold_outlet_pressure(),
-            cold.state.enthalpy + (duty + design.heat_leak) / cold.flow,
-        )?;
+        // Outlets only: no profile needed for this pass. An outlet whose temperature
+        // the specification sets is searched for from there.
+        let hot_enthalpy = hot.state.enthalpy - duty / hot.flow;
+        let hot_out = match design.spec {
+            ExchangerSpec::ColdEndApproach(dt) => sides.hot_path.state_ph_guessed(
+                sides.hot_outlet_pressure(),
+                hot_enthalpy,
+                cold.state.temperature + dt,
+            ),
+            _ => sides
+                .hot_path
+                .state_ph(sides.hot_outlet_pressure(), hot_enthalpy),
+        }?;
+        let cold_enthalpy = cold.state.enthalpy + (duty + design.heat_leak) / cold.flow;
+        let cold_out = match design.spec {
+            ExchangerSpec::WarmEndApproach(dt) => sides.cold_path.state_ph_guessed(
+                sides.cold_outlet_pressure(),
+                cold_enthalpy,
+                hot.state.temperature - dt,
+            ),
+            _ => sides
+                .cold_path
+                .state_ph(sides.cold_outlet_pressure(), cold_enthalpy),
+        }?;
         let performance = Performance {
             heat_in: vec![(design.heat_leak, context.ambient)],
             duty: Some(duty),
@@ -646,6 +664,7 @@ pub fn exchange(
     let max_duty = match known_max {
         Some(q_max) => q_max,
         None if degenerate => 0.0,
+        None if !context.largest_duty => f64::NAN,
         None => sides.max_duty(upper, Some(duty))?,
     };
     let ua = if degenerate {
@@ -655,7 +674,13 @@ pub fn exchange(
     } else {
         conductance(profile)
     };
-    let effectiveness = if max_duty > 0.0 { duty / max_duty } else { 0.0 };
+    let effectiveness = if max_duty > 0.0 {
+        duty / max_duty
+    } else if max_duty.is_nan() {
+        f64::NAN
+    } else {
+        0.0
+    };
     let warm_end_approach = hot.state.temperature - cold_out.temperature;
     let cold_end_approach = hot_out.temperature - cold.state.temperature;
     let (delivered, specification_met) = match design.spec {

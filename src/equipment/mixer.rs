@@ -79,7 +79,13 @@ impl Equipment for Mixer {
             .sum::<f64>()
             / flow;
         let material = mixed_material(inlets)?;
-        let state = material.state_ph(pressure, enthalpy)?;
+        // A hydrogen solution's search starts at the inlets' flow-weighted temperature.
+        let guess = inlets
+            .iter()
+            .map(|f| f.flow * f.state.temperature)
+            .sum::<f64>()
+            / flow;
+        let state = material.state_ph_from(pressure, enthalpy, guess)?;
         Ok((vec![Flow { state, flow }], Performance::default()))
     }
 }

@@ -146,6 +146,9 @@ pub struct Context {
     /// Work out everything reported (exchanger profiles, conductance, largest duty),
     /// not only what the outlets need; the solver asks for it on its final pass.
     pub detailed: bool,
+    /// On the detailed pass, work out each two-stream exchanger's largest duty and
+    /// effectiveness (else NaN); off only for re-solves that read neither.
+    pub largest_duty: bool,
     /// The flow the solver gives a feed, kg/s (fixed, or the make-up iterate).
     pub feed_flow: f64,
     /// The unit's duty on the previous pass, W, which exchangers solved for their
@@ -191,6 +194,7 @@ impl Context {
         Context {
             ambient,
             detailed: false,
+            largest_duty: true,
             feed_flow: 0.0,
             duty_hint: None,
             loose: false,

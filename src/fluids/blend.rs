@@ -620,11 +620,12 @@ impl Blend {
             Some((side, densities)) if side == liquid => Some(densities),
             _ => None,
         };
-        // The property less the target, and its slope along the path, at T on a side.
-        let evaluate = |t: f64, liquid: bool| -> (f64, f64) {
+        // The property less the target, its slope along the path, and the solution's
+        // properties with their para fraction, at T on a side.
+        let evaluate_with = |t: f64, liquid: bool| -> (f64, f64, Option<(Properties, f64)>) {
             let x = para_at(t);
             let Ok((para, ortho)) = self.species_near(t, pressure, liquid, seeds(liquid)) else {
-                return (f64::NAN, f64::NAN);
+                return (f64::NAN, f64::NAN, None);
             };
             let mixed = self.mix(x, &para, &ortho);
             last.set(Some((liquid, (para.density, ortho.density))));
@@ -640,15 +641,17 @@ impl Blend {
             (
                 property.pick(&mixed) - target,
                 property.slope(&mixed) + along_x * dx_dt,
+                Some((mixed, x)),
             )
         };
-        // The state at the Newton's answer (one step past the last evaluation, which
-        // is more accurate than that evaluation); a residual beyond rounding is
-        // refused.
-        let finish = |t: f64, liquid: bool| -> Option<State> {
-            let x = para_at(t);
-            let (para, ortho) = self.species_near(t, pressure, liquid, seeds(liquid)).ok()?;
-            let properties = self.mix(x, &para, &ortho);
+        let evaluate = |t: f64, liquid: bool| -> (f64, f64) {
+            let (value, slope, _) = evaluate_with(t, liquid);
+            (value, slope)
+        };
+        // The state at the search's answer, the last point it evaluated (its own
+        // Newton step within the tolerance); a residual beyond rounding is refused.
+        let finish = |t: f64, liquid: bool, found: Option<(Properties, f64)>| -> Option<State> {
+            let (properties, x) = found?;
             self.check(t, pressure, x).ok()?;
             let residual = property.pick(&properties) - target;
             (residual.abs() <= 1e-9 * property.slope(&properties).abs() * t)
@@ -675,17 +678,17 @@ impl Blend {
                     None
                 };
                 if let Some((liquid, a, b)) = side {
-                    let found = crate::numeric::bracketed_newton(
+                    let found = crate::numeric::bracketed_newton_settled(
                         "ortho–para solution temperature from pressure",
-                        |t| evaluate(t, liquid),
+                        |t| evaluate_with(t, liquid),
                         seed,
                         a,
                         b,
                         1e-13,
                     );
-                    if let Ok(t) = found {
+                    if let Ok((t, at)) = found {
                         if t > a && t < b {
-                            if let Some(state) = finish(t, liquid) {
+                            if let Some(state) = finish(t, liquid, at) {
                                 return Ok(state);
                             }
                         }
@@ -734,6 +737,7 @@ impl Blend {
             }
         };
         let value_and_slope = |t: f64| evaluate(t, side(t));
+        let value_slope_and_state = |t: f64| evaluate_with(t, side(t));
         let out_of_range = || Error::OutOfRange {
             fluid: "hydrogen (ortho–para solution)".into(),
             what: format!(
@@ -768,9 +772,9 @@ impl Blend {
                 }
             }
         };
-        let t = crate::numeric::bracketed_newton(
+        let (t, at) = crate::numeric::bracketed_newton_settled(
             "ortho–para solution temperature from pressure",
-            value_and_slope,
+            value_slope_and_state,
             start,
             low,
             high,
@@ -778,7 +782,7 @@ impl Blend {
         )?;
         self.check(t, pressure, para_at(t))?;
         // A target outside [low, high] ends at an edge with a residual: refused.
-        finish(t, side(t)).ok_or_else(out_of_range)
+        finish(t, side(t), at).ok_or_else(out_of_range)
     }
 
     /// The para fraction of the two-phase solution at p along a para-fraction path:
@@ -848,8 +852,20 @@ impl Blend {
         para_fraction: f64,
         near: &State,
     ) -> Result<State> {
+        self.state_ph_from(pressure, enthalpy, para_fraction, near.temperature)
+    }
+
+    /// As [`Blend::state_ph`], the search started at `guess`, a temperature near
+    /// the answer, K.
+    pub fn state_ph_from(
+        &self,
+        pressure: f64,
+        enthalpy: f64,
+        para_fraction: f64,
+        guess: f64,
+    ) -> Result<State> {
         self.check(self.temperature_range().1, pressure, para_fraction)?;
-        self.state_ph_path_near(pressure, enthalpy, &|_| para_fraction, near)
+        self.state_ph_path_from(pressure, enthalpy, &|_| para_fraction, guess)
     }
 
     /// As [`Blend::state_ph_path`], the search started at `near`'s temperature.
@@ -860,14 +876,20 @@ impl Blend {
         para_at: &dyn Fn(f64) -> f64,
         near: &State,
     ) -> Result<State> {
+        self.state_ph_path_from(pressure, enthalpy, para_at, near.temperature)
+    }
+
+    /// As [`Blend::state_ph_path`], the search started at `guess`, a temperature
+    /// near the answer, K.
+    pub fn state_ph_path_from(
+        &self,
+        pressure: f64,
+        enthalpy: f64,
+        para_at: &dyn Fn(f64) -> f64,
+        guess: f64,
+    ) -> Result<State> {
         self.check(self.temperature_range().1, pressure, 0.5)?;
-        self.state_p_property(
-            pressure,
-            enthalpy,
-            para_at,
-            Target::Enthalpy,
-            Some(near.temperature),
-        )
+        self.state_p_property(pressure, enthalpy, para_at, Target::Enthalpy, Some(guess))
     }
 
     /// The state at (p, h) whose para fraction is the given function of its

@@ -46,6 +46,48 @@ impl StreamPath {
         }
     }
 
+    /// As [`StreamPath::state`] for the next point of a profile whose last two
+    /// states are `earlier` and `near`: a hydrogen search starts at the temperature
+    /// extrapolated through them, linearly in enthalpy (at `near`'s temperature
+    /// where they give no rising slope), which is closer to the answer than
+    /// `near`'s own by about the square of the step. A pure fluid's flash is
+    /// seeded from `near` alone.
+    pub fn state_along(
+        &self,
+        pressure: f64,
+        enthalpy: f64,
+        near: &State,
+        earlier: Option<&State>,
+    ) -> Result<State> {
+        let guess = earlier
+            .map(|earlier| {
+                let slope =
+                    (near.temperature - earlier.temperature) / (near.enthalpy - earlier.enthalpy);
+                (slope, near.temperature + (enthalpy - near.enthalpy) * slope)
+            })
+            .filter(|(slope, guess)| *slope > 0.0 && guess.is_finite())
+            .map_or(near.temperature, |(_, guess)| guess);
+        match self {
+            StreamPath::Frozen(material) => {
+                material.state_ph_guessed(pressure, enthalpy, near, guess)
+            }
+            StreamPath::Catalytic(blend) => {
+                blend.state_ph_path_from(pressure, enthalpy, &equilibrium_para_fraction, guess)
+            }
+        }
+    }
+
+    /// The state on the path at (p, h), a hydrogen search started at `guess`, a
+    /// temperature near the answer (K); a pure fluid's a plain (p, h) flash.
+    pub fn state_ph_guessed(&self, pressure: f64, enthalpy: f64, guess: f64) -> Result<State> {
+        match self {
+            StreamPath::Frozen(material) => material.state_ph_from(pressure, enthalpy, guess),
+            StreamPath::Catalytic(blend) => {
+                blend.state_ph_path_from(pressure, enthalpy, &equilibrium_para_fraction, guess)
+            }
+        }
+    }
+
     /// The state on the path at (p, h) from no neighbour (a plain (p, h) flash).
     pub fn state_ph(&self, pressure: f64, enthalpy: f64) -> Result<State> {
         match self {

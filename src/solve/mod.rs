@@ -35,6 +35,11 @@ pub struct Options {
     /// [`WarmStart`], so that the neighbouring cases of a study start from it.
     /// Done only where it pays: when converging took more passes than that.
     pub estimate_jacobian: bool,
+    /// Leave out each two-stream exchanger's largest duty on the detailed pass
+    /// (its search costs a profile or more): the report's largest duty and
+    /// effectiveness are then NaN. For re-solves that read only the yield, the
+    /// power and the design checks, none of which uses them.
+    pub skip_largest_duty: bool,
 }
 
 /// A converged recycle, to start a neighbouring case from (a sweep's next case, an
@@ -152,6 +157,16 @@ const HINTED_PASSES: usize = 4;
 /// an end pinch taken from the hint did not hold.
 const DETAILED_ROUNDING: f64 = 1e-9;
 
+/// A temperature near the state of enthalpy `enthalpy` close to `near`: `near`'s,
+/// moved along its heat capacity where it has a positive one, K.
+fn temperature_guess(near: &crate::fluids::State, enthalpy: f64) -> f64 {
+    near.cp()
+        .filter(|cp| *cp > 0.0)
+        .map(|cp| near.temperature + (enthalpy - near.enthalpy) / cp)
+        .filter(|moved| moved.is_finite() && *moved > 0.0)
+        .unwrap_or(near.temperature)
+}
+
 /// The largest scaled difference between two vectors.
 fn largest_change(a: &[f64], b: &[f64]) -> f64 {
     a.iter()
@@ -203,9 +218,20 @@ impl Problem<'_> {
                 Some(x) => crate::fluids::Material::hydrogen_solution(x)?,
                 None => crate::fluids::Material::plain(plant.streams[s].fluid),
             };
+            // A hydrogen solution's search starts from the last pass's state of this
+            // stream, moved along its heat capacity to the new enthalpy.
+            let previous = self
+                .last
+                .as_ref()
+                .and_then(|(flows, _)| flows[s].as_ref())
+                .map(|f| &f.state);
+            let first_try = match previous {
+                Some(near) => fluid.state_ph_from(p, h, temperature_guess(near, h)),
+                None => fluid.state_ph(p, h),
+            };
             // An accelerated step may propose an enthalpy outside the fluid's range
             // at this pressure: hold it at the range's edge instead of failing.
-            let state = match fluid.state_ph(p, h) {
+            let state = match first_try {
                 Ok(state) => state,
                 Err(Error::OutOfRange { .. }) => {
                     let warmest = fluid.state_tp(fluid.temperature_max * 0.999, p)?;
@@ -448,7 +474,10 @@ fn solve_from(plant: &Plant, options: &Options, first: FirstPass) -> Result<Solu
         variables: variables.clone(),
         scales,
         networks,
-        context: Context::new(plant.ambient),
+        context: Context {
+            largest_duty: !options.skip_largest_duty,
+            ..Context::new(plant.ambient)
+        },
         last: None,
         duty_hints: std::cell::RefCell::new(vec![None; plant.units.len()]),
         last_change: std::cell::Cell::new(if first.settled { 0.0 } else { f64::INFINITY }),
