@@ -574,30 +574,29 @@ pub fn exchange(
         }
     };
     if !context.detailed && !degenerate {
-        // Outlets only: no profile needed for this pass. An outlet whose temperature
-        // the specification sets is searched for from there.
-        let hot_enthalpy = hot.state.enthalpy - duty / hot.flow;
-        let hot_out = match design.spec {
-            ExchangerSpec::ColdEndApproach(dt) => sides.hot_path.state_ph_guessed(
-                sides.hot_outlet_pressure(),
-                hot_enthalpy,
-                cold.state.temperature + dt,
-            ),
-            _ => sides
-                .hot_path
-                .state_ph(sides.hot_outlet_pressure(), hot_enthalpy),
-        }?;
-        let cold_enthalpy = cold.state.enthalpy + (duty + design.heat_leak) / cold.flow;
-        let cold_out = match design.spec {
-            ExchangerSpec::WarmEndApproach(dt) => sides.cold_path.state_ph_guessed(
-                sides.cold_outlet_pressure(),
-                cold_enthalpy,
-                hot.state.temperature - dt,
-            ),
-            _ => sides
-                .cold_path
-                .state_ph(sides.cold_outlet_pressure(), cold_enthalpy),
-        }?;
+        // Outlets only: no profile needed for this pass. An outlet's search starts
+        // where the specification sets its temperature, else where it left on the
+        // last pass.
+        let hot_guess = match design.spec {
+            ExchangerSpec::ColdEndApproach(dt) => Some(cold.state.temperature + dt),
+            _ => context.outlet_hints[0],
+        };
+        let cold_guess = match design.spec {
+            ExchangerSpec::WarmEndApproach(dt) => Some(hot.state.temperature - dt),
+            _ => context.outlet_hints[1],
+        };
+        let hot_out = outlet_state(
+            &sides.hot_path,
+            sides.hot_outlet_pressure(),
+            hot.state.enthalpy - duty / hot.flow,
+            hot_guess,
+        )?;
+        let cold_out = outlet_state(
+            &sides.cold_path,
+            sides.cold_outlet_pressure(),
+            cold.state.enthalpy + (duty + design.heat_leak) / cold.flow,
+            cold_guess,
+        )?;
         let performance = Performance {
             heat_in: vec![(design.heat_leak, context.ambient)],
             duty: Some(duty),
@@ -756,6 +755,15 @@ fn minimum_approach_duty(
         (None, false),
     )?;
     Ok((duty, false))
+}
+
+/// An outlet's state on its path at (p, h), its search started at `guess` where
+/// there is one.
+fn outlet_state(path: &StreamPath, pressure: f64, enthalpy: f64, guess: Option<f64>) -> Result<State> {
+    match guess {
+        Some(guess) => path.state_ph_guessed(pressure, enthalpy, guess),
+        None => path.state_ph(pressure, enthalpy),
+    }
 }
 
 /// The two outlet flows, each side keeping its mass flow.

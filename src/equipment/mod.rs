@@ -154,6 +154,10 @@ pub struct Context {
     /// The unit's duty on the previous pass, W, which exchangers solved for their
     /// duty start from.
     pub duty_hint: Option<f64>,
+    /// The temperatures of the unit's first two outlets on the previous pass, K,
+    /// where a flash of an outlet may start its search (it ends at the same state
+    /// to the flash's tolerance from any start).
+    pub outlet_hints: [Option<f64>; 2],
     /// The tear streams are still far from converged: an exchanger sized by its
     /// pinch may stop at its coarse profile's answer (which differs from the full
     /// profile's by far less than the tear streams still move). Never on the
@@ -197,6 +201,7 @@ impl Context {
             largest_duty: true,
             feed_flow: 0.0,
             duty_hint: None,
+            outlet_hints: [None; 2],
             loose: false,
             pinch_hint: PinchHint::Check,
             pinch_position: None,

@@ -268,6 +268,11 @@ impl Problem<'_> {
                     _ => 0.0,
                 },
                 duty_hint: self.duty_hints.borrow()[u],
+                outlet_hints: [0, 1].map(|k| {
+                    let (flows, _) = self.last.as_ref()?;
+                    let stream = *unit.outlets.get(k)?;
+                    Some(flows[stream].as_ref()?.state.temperature)
+                }),
                 loose,
                 pinch_hint: pass_hint(
                     self.pinch_places.borrow()[u],
