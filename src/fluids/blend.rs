@@ -73,15 +73,19 @@ thread_local! {
     /// were found, with them ([`Blend::boiling_temperatures`]); there is one blend.
     static LAST_BOILING: RefCell<Recent<u64, (f64, f64)>> =
         const { RefCell::new(Recent::new(KEPT_PRESSURES)) };
-    /// The last few (pressure, para fraction) pairs' saturation temperatures
-    /// ([`Blend::saturation_temperature`]).
-    static LAST_SATURATION_TEMPERATURE: RefCell<Recent<(u64, u64), f64>> =
+    /// The last few (pressure, para fraction) pairs' saturation temperatures with
+    /// both species on both sides there ([`Blend::saturation`]).
+    static LAST_SATURATION: RefCell<Recent<(u64, u64), Saturation>> =
         const { RefCell::new(Recent::new(KEPT_COMPOSITIONS)) };
     /// The last few (pressure, para fraction) pairs' saturated liquid and vapour
     /// ([`Blend::saturated_pair`]).
     static LAST_SATURATED_PAIR: RefCell<Recent<(u64, u64), SaturatedPair>> =
         const { RefCell::new(Recent::new(KEPT_COMPOSITIONS)) };
 }
+
+/// A saturation temperature of the solution (K) and both species' properties
+/// there, [liquid, vapour], each (para, ortho).
+type Saturation = (f64, [(Properties, Properties); 2]);
 
 /// How many pressures' boiling temperatures are kept: a flowsheet's two-phase
 /// hydrogen sits at a few pressures (valve outlets, separators, feeds).
@@ -414,29 +418,35 @@ impl Blend {
     /// The last few pairs' answers are kept per thread (the same bits in give the
     /// same bits out).
     pub fn saturation_temperature(&self, pressure: f64, para_fraction: f64) -> Result<f64> {
+        self.saturation(pressure, para_fraction).map(|(t, _)| t)
+    }
+
+    /// The saturation temperature at p for para fraction x with both species on
+    /// both sides there; the last few answers are kept per thread.
+    fn saturation(&self, pressure: f64, para_fraction: f64) -> Result<Saturation> {
         remembered(
-            &LAST_SATURATION_TEMPERATURE,
+            &LAST_SATURATION,
             (pressure.to_bits(), para_fraction.to_bits()),
-            || self.solve_saturation_temperature(pressure, para_fraction),
+            || self.solve_saturation(pressure, para_fraction),
         )
     }
 
-    /// [`Blend::saturation_temperature`], solved.
-    fn solve_saturation_temperature(&self, pressure: f64, para_fraction: f64) -> Result<f64> {
+    /// [`Blend::saturation`], solved: the species' properties are those of the
+    /// search's last evaluation, at its answer.
+    fn solve_saturation(&self, pressure: f64, para_fraction: f64) -> Result<Saturation> {
         let (tp, to) = self.boiling_temperatures(pressure)?;
-        if para_fraction >= 1.0 {
-            return Ok(tp);
-        }
-        if para_fraction <= 0.0 {
-            return Ok(to);
+        if para_fraction >= 1.0 || para_fraction <= 0.0 {
+            let t = if para_fraction >= 1.0 { tp } else { to };
+            return Ok((t, self.species_both_sides(t, pressure, None)?));
         }
         // g_liquid − g_vapour of the solution per mole, rising with T at the slope
         // s_vapour − s_liquid: Newton steps from the mole-weighted boiling point.
         // Each step's species densities seed the next step's.
         let last: std::cell::Cell<Option<[(f64, f64); 2]>> = std::cell::Cell::new(None);
-        let gap = |t: f64| -> (f64, f64) {
+        let gap = |t: f64| -> (f64, f64, Option<[(Properties, Properties); 2]>) {
             match self.species_both_sides(t, pressure, last.get()) {
-                Ok([(pl, ol), (pv, ov)]) => {
+                Ok(species) => {
+                    let [(pl, ol), (pv, ov)] = &species;
                     last.set(Some([(pl.density, ol.density), (pv.density, ov.density)]));
                     let (wp, wo) = (
                         para_fraction * self.para.molar_mass,
@@ -445,21 +455,26 @@ impl Blend {
                     (
                         wp * (pl.gibbs - pv.gibbs) + wo * (ol.gibbs - ov.gibbs),
                         wp * (pv.entropy - pl.entropy) + wo * (ov.entropy - ol.entropy),
+                        Some(species),
                     )
                 }
-                _ => (f64::NAN, f64::NAN),
+                _ => (f64::NAN, f64::NAN, None),
             }
         };
         let (low, high) = (tp.min(to), tp.max(to));
         let start = para_fraction * tp + (1.0 - para_fraction) * to;
-        crate::numeric::bracketed_newton(
+        let (t, species) = crate::numeric::bracketed_newton_settled(
             "ortho–para solution saturation temperature",
             gap,
             start.clamp(low, high),
             low,
             high,
             1e-13,
-        )
+        )?;
+        match species {
+            Some(species) => Ok((t, species)),
+            None => Ok((t, self.species_both_sides(t, pressure, None)?)),
+        }
     }
 
     /// The saturated liquid and vapour solutions at p for para fraction x.
@@ -470,8 +485,7 @@ impl Blend {
             &LAST_SATURATED_PAIR,
             (pressure.to_bits(), para_fraction.to_bits()),
             || {
-                let t = self.saturation_temperature(pressure, para_fraction)?;
-                let [(pl, ol), (pv, ov)] = self.species_both_sides(t, pressure, None)?;
+                let (_, [(pl, ol), (pv, ov)]) = self.saturation(pressure, para_fraction)?;
                 Ok(SaturatedPair {
                     liquid: self.mix(para_fraction, &pl, &ol),
                     vapour: self.mix(para_fraction, &pv, &ov),
@@ -786,7 +800,12 @@ impl Blend {
     }
 
     /// The para fraction of the two-phase solution at p along a para-fraction path:
-    /// a fixed point x = path(T_sat(p, x)) (one step for a fixed fraction).
+    /// a fixed point x = path(T_sat(p, x)) (one step for a fixed fraction). The
+    /// answer is the last x whose saturation was solved (kept per thread, so the
+    /// saturated pair that follows is not solved again), once the path moves it by
+    /// at most 1e-14. From the second step on, the next x is the secant's root of
+    /// path(T_sat(p, x)) − x through the last two: the map is nearly linear, so
+    /// that one secant step lands about where many plain steps would.
     fn two_phase_para_fraction(&self, pressure: f64, para_at: &dyn Fn(f64) -> f64) -> Result<f64> {
         let mut x = para_at(
             self.normal
@@ -794,13 +813,20 @@ impl Blend {
                 .map(|s| s.liquid.temperature)
                 .unwrap_or(20.0),
         );
+        let mut previous: Option<(f64, f64)> = None;
         const CAP: usize = 40;
         for _ in 0..CAP {
             let next = para_at(self.saturation_temperature(pressure, x)?);
-            if (next - x).abs() <= 1e-14 {
-                return Ok(next);
+            let change = next - x;
+            if change.abs() <= 1e-14 {
+                return Ok(x);
             }
-            x = next;
+            let secant = previous
+                .filter(|(_, last_change)| *last_change != change)
+                .map(|(last_x, last_change)| x - change * (x - last_x) / (change - last_change))
+                .filter(|proposal| (0.0..=1.0).contains(proposal));
+            previous = Some((x, change));
+            x = secant.unwrap_or(next);
         }
         Err(Error::NoConvergence {
             solver: "para fraction of a boiling solution on an equilibrium path",
