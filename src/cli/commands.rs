@@ -134,7 +134,17 @@ pub fn solve(args: &SolveArgs) -> Result<Output, Failure> {
     let units = report::Units::parse(&args.units)?;
     let mut notes = Vec::new();
     let plant = load_plant(args.file.as_deref(), &args.set, &mut notes)?;
-    let solution = cryochain::solve::solve(&plant, &Default::default())?;
+    // The text shows no exchanger's largest duty or effectiveness (their search
+    // costs a profile each); the JSON, the CSV tables, the plots' files and the
+    // HTML report are given them.
+    let options = cryochain::solve::Options {
+        skip_largest_duty: format == Format::Text
+            && args.plot.is_none()
+            && args.csv.is_none()
+            && args.report.is_none(),
+        ..Default::default()
+    };
+    let solution = cryochain::solve::solve(&plant, &options)?;
     if let Some(dir) = &args.plot {
         let files = report::plot::cycle::write_all(&plant, &solution, dir)?;
         notes.push(format!(
