@@ -662,8 +662,8 @@ impl Blend {
             let (value, slope, _) = evaluate_with(t, liquid);
             (value, slope)
         };
-        // The state at the search's answer, the last point it evaluated (its own
-        // Newton step within the tolerance); a residual beyond rounding is refused.
+        // The state at the search's answer from what was computed there (see
+        // `numeric::bracketed_newton_settled`); a residual beyond rounding is refused.
         let finish = |t: f64, liquid: bool, found: Option<(Properties, f64)>| -> Option<State> {
             let (properties, x) = found?;
             self.check(t, pressure, x).ok()?;

@@ -68,12 +68,11 @@ impl StreamPath {
             .filter(|(slope, guess)| *slope > 0.0 && guess.is_finite())
             .map_or(near.temperature, |(_, guess)| guess);
         match self {
-            StreamPath::Frozen(material) => {
-                material.state_ph_guessed(pressure, enthalpy, near, guess)
+            // A pure fluid's flash takes `near`'s density as well.
+            StreamPath::Frozen(material) if material.para_fraction.is_none() => {
+                material.state_ph_near(pressure, enthalpy, near)
             }
-            StreamPath::Catalytic(blend) => {
-                blend.state_ph_path_from(pressure, enthalpy, &equilibrium_para_fraction, guess)
-            }
+            _ => self.state_ph_guessed(pressure, enthalpy, guess),
         }
     }
 

@@ -75,21 +75,6 @@ impl Material {
         }
     }
 
-    /// As [`Material::state_ph_near`], a hydrogen solution's search started at
-    /// `guess`, a temperature near the answer (K); a pure fluid's from `near` alone.
-    pub fn state_ph_guessed(
-        &self,
-        pressure: f64,
-        enthalpy: f64,
-        near: &State,
-        guess: f64,
-    ) -> Result<State> {
-        match self.para_fraction {
-            Some(x) => Blend::get()?.state_ph_from(pressure, enthalpy, x, guess),
-            None => self.fluid.state_ph_near(pressure, enthalpy, near),
-        }
-    }
-
     /// The state at (p, h), a hydrogen solution's search started at `guess`, a
     /// temperature near the answer (K); a pure fluid's a plain (p, h) flash.
     pub fn state_ph_from(&self, pressure: f64, enthalpy: f64, guess: f64) -> Result<State> {
