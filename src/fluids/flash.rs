@@ -157,11 +157,41 @@ impl Fluid {
 
     /// The state at temperature T (K) and pressure p (Pa).
     pub fn state_tp(&'static self, temperature: f64, pressure: f64) -> Result<State> {
+        // A seed only starts the density iteration; should one ever lead it astray
+        // (none is known to), the plain flash decides.
+        self.state_tp_from(temperature, pressure, true)
+            .or_else(|_| self.state_tp_from(temperature, pressure, false))
+    }
+
+    /// [`Fluid::state_tp`] with the density iteration seeded as without the seed
+    /// grid: what the grid's own nodes are computed by.
+    pub(crate) fn state_tp_unseeded(
+        &'static self,
+        temperature: f64,
+        pressure: f64,
+    ) -> Result<State> {
+        self.state_tp_from(temperature, pressure, false)
+    }
+
+    /// [`Fluid::state_tp`], its density iteration seeded from the seed grid (see
+    /// `density_seeds`) when `from_grid` and the grid has a seed there; no second
+    /// try without it.
+    pub(crate) fn state_tp_from(
+        &'static self,
+        temperature: f64,
+        pressure: f64,
+        from_grid: bool,
+    ) -> Result<State> {
         self.check_range(temperature, pressure)?;
+        let seed = if from_grid && !self.pseudo_pure {
+            self.density_seed(temperature, pressure)
+        } else {
+            None
+        };
         let factors = self.tau_factors(temperature);
         // The density on a branch, seeded and bounded by the saturated densities at T.
         let on_branch = |branch: Branch| {
-            self.density_on_branch(&factors, temperature, pressure, branch, None, None)
+            self.density_on_branch(&factors, temperature, pressure, branch, seed, None)
         };
         if temperature >= self.saturation_temperature_max() {
             let rho = on_branch(Branch::Supercritical)?;
@@ -239,7 +269,7 @@ impl Fluid {
             )
         };
         let rho =
-            self.density_on_branch(&factors, temperature, pressure, branch, None, saturated)?;
+            self.density_on_branch(&factors, temperature, pressure, branch, seed, saturated)?;
         self.single_state(
             self.properties_with(&factors, temperature, rho),
             branch == Branch::Liquid,

@@ -90,6 +90,9 @@ pub struct Fluid {
     pub(crate) inversion_cache: std::sync::OnceLock<Result<super::inversion::InversionCurve>>,
     /// The maximum inversion temperature, found on first use.
     pub(crate) max_inversion_cache: std::sync::OnceLock<Result<f64>>,
+    /// The (T, p) flash's density seeds, made on the first flash (see
+    /// `density_seeds`).
+    density_seeds: std::sync::OnceLock<super::density_seeds::DensitySeeds>,
     /// A number of its own among the fluids built in this process, naming its
     /// equation as it stands in the evaluations kept by `Fluid::residual_at_delta`
     /// and `Fluid::ideal_at` (a new number whenever the equation is changed, as
@@ -233,6 +236,7 @@ impl Fluid {
             residual,
             inversion_cache: std::sync::OnceLock::new(),
             max_inversion_cache: std::sync::OnceLock::new(),
+            density_seeds: std::sync::OnceLock::new(),
             identity: NEXT_IDENTITY.fetch_add(1, std::sync::atomic::Ordering::Relaxed),
         };
         let mut fluid = fluid;
@@ -265,6 +269,14 @@ impl Fluid {
         // its own any more.
         self.identity = NEXT_IDENTITY.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
         Ok(())
+    }
+
+    /// A seed for the density at (T, p) from the seed grid (see `density_seeds`);
+    /// `None` where the grid has none.
+    pub(crate) fn density_seed(&'static self, temperature: f64, pressure: f64) -> Option<f64> {
+        self.density_seeds
+            .get_or_init(|| super::density_seeds::DensitySeeds::new(self))
+            .seed(self, temperature, pressure)
     }
 
     /// τ = Tr/T.

@@ -9,6 +9,7 @@ pub mod ancillary;
 pub mod blend;
 pub mod conversion;
 pub mod density;
+mod density_seeds;
 pub mod diagram;
 pub mod exergy;
 mod fast_exp;
