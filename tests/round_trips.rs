@@ -1,6 +1,6 @@
 //! Round trips over the whole validity range of every fluid: a state from (T, p) or
 //! (T, quality) gives h and s; the (p, h) and (p, s) flashes must recover T within
-//! 1e-7 K and the quality within 1e-8. States are drawn by proptest.
+//! 1e-7 K, the quality within 1e-8 and the phase label. States are drawn by proptest.
 
 use cryochain::fluids::{self, Fluid};
 use proptest::prelude::*;
@@ -93,6 +93,30 @@ fn check_recovers(
         fluid.name,
         from_s.temperature
     );
+    // The same phase label, unless T or p lies within rounding of a boundary
+    // between labels (the top of the saturation line, the critical point).
+    let near = |a: f64, b: f64| (a / b - 1.0).abs() < 1e-9;
+    let on_boundary = near(temperature, fluid.saturation_temperature_max())
+        || near(temperature, fluid.critical.temperature)
+        || near(pressure, fluid.critical.pressure);
+    if !on_boundary {
+        prop_assert_eq!(
+            from_h.phase,
+            state.phase,
+            "{} (p,h) at T={} p={}",
+            fluid.name,
+            temperature,
+            pressure
+        );
+        prop_assert_eq!(
+            from_s.phase,
+            state.phase,
+            "{} (p,s) at T={} p={}",
+            fluid.name,
+            temperature,
+            pressure
+        );
+    }
     // Air, whose bubble and dew lines are apart, has two-phase (T, p) states.
     prop_assert_eq!(from_h.is_two_phase(), state.is_two_phase());
     prop_assert_eq!(from_s.is_two_phase(), state.is_two_phase());

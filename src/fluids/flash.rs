@@ -714,7 +714,13 @@ impl Fluid {
         bounds: (f64, f64),
     ) -> Option<Result<State>> {
         let props = self.joint_newton(pressure, target, held, start, bounds)?;
-        let liquid_side = region == Region::Liquid;
+        // Above the saturation range but below the critical temperature: a liquid
+        // where denser than critical (a pure fluid's compressed liquid), as the
+        // (T, p) flash labels it.
+        let liquid_side = region == Region::Liquid
+            || (region == Region::AboveCritical
+                && props.temperature < self.critical.temperature
+                && props.density > self.critical.density);
         Some(self.single_state(props, liquid_side))
     }
 
