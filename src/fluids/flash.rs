@@ -9,6 +9,7 @@
 use super::density::Branch;
 use super::fluid::{Fluid, Properties};
 use super::saturation::{Saturation, SEED_DENSITY_ERROR};
+use super::seed_grid::Quantity;
 use super::state::{Phase, SaturatedPair, State};
 use crate::error::{Error, Result};
 
@@ -29,6 +30,12 @@ const QUICK_NEWTON_STEPS: usize = 8;
 /// Newton steps of the two-variable (T, ρ) flash near a known state before it
 /// hands over to the bracketed search.
 const NEAR_NEWTON_STEPS: usize = 12;
+
+/// How far (relative) the density a (p, h) or (p, s) flash finds from the seed
+/// grid's start may lie from the grid's density at its temperature: a root of
+/// p(T, ρ) = p on another branch lies tens of percent away; the grid's own error
+/// is below a percent outside the critical region (`seed_grid` tests).
+const ISOBAR_BRANCH_TOLERANCE: f64 = 0.05;
 
 /// Newton steps of the ideal-gas temperature estimate (a seed, not a result).
 const IDEAL_GAS_ESTIMATE_STEPS: usize = 30;
@@ -174,7 +181,7 @@ impl Fluid {
     }
 
     /// [`Fluid::state_tp`], its density iteration seeded from the seed grid (see
-    /// `density_seeds`) when `from_grid` and the grid has a seed there; no second
+    /// `seed_grid`) when `from_grid` and the grid has a seed there; no second
     /// try without it.
     pub(crate) fn state_tp_from(
         &'static self,
@@ -547,6 +554,9 @@ impl Fluid {
                 ),
             });
         }
+        if let Some(state) = self.state_from_isobar_start(pressure, target, held) {
+            return Ok(state);
+        }
         let (sat_low, sat_high) = self.saturation_pressure_range();
         // The triple-point pressure itself, within rounding, still has both phases.
         if pressure >= sat_low * (1.0 - 1e-9) && pressure < sat_high {
@@ -621,6 +631,47 @@ impl Fluid {
             (coldest, f64::INFINITY),
         )
         .unwrap_or_else(|| self.search_temperature(pressure, target, held, region, props))
+    }
+
+    /// The state at (p, target) by the joint Newton from the seed grid's start (see
+    /// `seed_grid`), accepted only inside the start's cell, where no phase boundary
+    /// lies, on the side of the critical density the cell's corners are, and within
+    /// [`ISOBAR_BRANCH_TOLERANCE`] of the density the cell interpolates (not another
+    /// root of p(T, ρ) = p); `None` otherwise, and for air.
+    fn state_from_isobar_start(
+        &'static self,
+        pressure: f64,
+        target: f64,
+        held: Held,
+    ) -> Option<State> {
+        if self.pseudo_pure {
+            return None;
+        }
+        let quantity = match held {
+            Held::Enthalpy => Quantity::Enthalpy,
+            Held::Entropy => Quantity::Entropy,
+        };
+        let start = self.isobar_start(pressure, target, quantity)?;
+        let props = self.properties(start.temperature, start.density);
+        let found = self.joint_newton(pressure, target, held, &props, start.temperatures)?;
+        // Below the critical temperature a root on the other side of the critical
+        // density than the cell's corners is metastable (the joint Newton refuses
+        // unstable ones, where ∂p/∂ρ ≤ 0).
+        if found.temperature < self.saturation_temperature_max() {
+            let denser = found.density > self.critical.density;
+            if (start.vapour && denser) || (start.liquid && !denser) {
+                return None;
+            }
+        }
+        let interpolated = self.density_seed(found.temperature, pressure)?;
+        if (found.density / interpolated - 1.0).abs() > ISOBAR_BRANCH_TOLERANCE {
+            return None;
+        }
+        // A stable single-phase state below the critical temperature is a liquid
+        // where denser than critical, as the (T, p) flash labels it.
+        let liquid_side = found.temperature < self.saturation_temperature_max()
+            && found.density > self.critical.density;
+        self.single_state(found, liquid_side).ok()
     }
 
     /// The state at (p, target) when it clearly lies away from saturation, judged by
@@ -770,7 +821,7 @@ impl Fluid {
             }
             props = self.properties_with(&self.tau_factors(t), t, rho);
             let converged = (props.pressure - pressure).abs()
-                <= 1e-12 * pressure + 1e-14 * rho * self.gas_constant * t
+                <= 1e-14 * pressure + 1e-14 * rho * self.gas_constant * t
                 && (held.of(&props) - target).abs() <= 0.1 * held.rounding(self, t);
             if converged {
                 if !(props.dp_drho > 0.0) || self.check_range(t, pressure).is_err() {

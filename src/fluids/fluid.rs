@@ -91,8 +91,8 @@ pub struct Fluid {
     /// The maximum inversion temperature, found on first use.
     pub(crate) max_inversion_cache: std::sync::OnceLock<Result<f64>>,
     /// The (T, p) flash's density seeds, made on the first flash (see
-    /// `density_seeds`).
-    density_seeds: std::sync::OnceLock<super::density_seeds::DensitySeeds>,
+    /// `seed_grid`).
+    seed_grid: std::sync::OnceLock<super::seed_grid::SeedGrid>,
     /// A number of its own among the fluids built in this process, naming its
     /// equation as it stands in the evaluations kept by `Fluid::residual_at_delta`
     /// and `Fluid::ideal_at` (a new number whenever the equation is changed, as
@@ -236,7 +236,7 @@ impl Fluid {
             residual,
             inversion_cache: std::sync::OnceLock::new(),
             max_inversion_cache: std::sync::OnceLock::new(),
-            density_seeds: std::sync::OnceLock::new(),
+            seed_grid: std::sync::OnceLock::new(),
             identity: NEXT_IDENTITY.fetch_add(1, std::sync::atomic::Ordering::Relaxed),
         };
         let mut fluid = fluid;
@@ -271,12 +271,27 @@ impl Fluid {
         Ok(())
     }
 
-    /// A seed for the density at (T, p) from the seed grid (see `density_seeds`);
+    /// A seed for the density at (T, p) from the seed grid (see `seed_grid`);
     /// `None` where the grid has none.
     pub(crate) fn density_seed(&'static self, temperature: f64, pressure: f64) -> Option<f64> {
-        self.density_seeds
-            .get_or_init(|| super::density_seeds::DensitySeeds::new(self))
-            .seed(self, temperature, pressure)
+        self.seeds().seed(self, temperature, pressure)
+    }
+
+    /// Where the (p, h) or (p, s) flash should start, from the seed grid (see
+    /// `seed_grid`); `None` where the grid has no start.
+    pub(crate) fn isobar_start(
+        &'static self,
+        pressure: f64,
+        target: f64,
+        quantity: super::seed_grid::Quantity,
+    ) -> Option<super::seed_grid::IsobarStart> {
+        self.seeds().isobar_start(self, pressure, target, quantity)
+    }
+
+    /// The seed grid, made (empty) the first time.
+    fn seeds(&self) -> &super::seed_grid::SeedGrid {
+        self.seed_grid
+            .get_or_init(|| super::seed_grid::SeedGrid::new(self))
     }
 
     /// τ = Tr/T.
