@@ -190,12 +190,31 @@ impl Fluid {
         from_grid: bool,
     ) -> Result<State> {
         self.check_range(temperature, pressure)?;
-        let seed = if from_grid && !self.pseudo_pure {
-            self.density_seed(temperature, pressure)
-        } else {
-            None
+        let (seed, side) = match from_grid && !self.pseudo_pure {
+            true => self
+                .density_seed_and_side(temperature, pressure)
+                .map_or((None, None), |(density, side)| (Some(density), side)),
+            false => (None, None),
         };
         let factors = self.tau_factors(temperature);
+        // Below the critical temperature in a cell wholly on one side of the
+        // saturation line: that side's branch, bounded by the critical density
+        // instead of the saturated one (no saturation table needed), and the root
+        // kept where it is mechanically stable (∂p/∂ρ > 0, so not between the
+        // spinodals); a stable root on the cell's side of the critical density is the
+        // stable state. Else the search below decides.
+        if let Some(branch) = side.filter(|_| temperature < self.saturation_temperature_max()) {
+            let critical = self.critical.density;
+            let bounds = Some((critical, critical));
+            if let Ok(rho) =
+                self.density_on_branch(&factors, temperature, pressure, branch, seed, bounds)
+            {
+                let props = self.properties_with(&factors, temperature, rho);
+                if props.dp_drho > 0.0 {
+                    return self.single_state(props, branch == Branch::Liquid);
+                }
+            }
+        }
         // The density on a branch, seeded and bounded by the saturated densities at T.
         let on_branch = |branch: Branch| {
             self.density_on_branch(&factors, temperature, pressure, branch, seed, None)

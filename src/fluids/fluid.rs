@@ -277,6 +277,16 @@ impl Fluid {
         self.seeds().seed(self, temperature, pressure)
     }
 
+    /// [`Fluid::density_seed`], and the branch every state of the seed's cell lies
+    /// on, where the cell lies wholly on one side of the saturation line.
+    pub(crate) fn density_seed_and_side(
+        &'static self,
+        temperature: f64,
+        pressure: f64,
+    ) -> Option<(f64, Option<super::density::Branch>)> {
+        self.seeds().seed_and_side(self, temperature, pressure)
+    }
+
     /// Where the (p, h) or (p, s) flash should start, from the seed grid (see
     /// `seed_grid`); `None` where the grid has no start.
     pub(crate) fn isobar_start(

@@ -23,6 +23,7 @@
 //! the critical pressure. Elsewhere (a cell the saturation or melting line crosses,
 //! outside the grid) the flashes start as before.
 
+use super::density::Branch;
 use super::fluid::Fluid;
 use std::sync::OnceLock;
 
@@ -269,6 +270,20 @@ impl SeedGrid {
         temperature: f64,
         pressure: f64,
     ) -> Option<f64> {
+        self.seed_and_side(fluid, temperature, pressure)
+            .map(|(density, _)| density)
+    }
+
+    /// [`SeedGrid::seed`], and the branch every state of its cell lies on where the
+    /// cell's corners are all vapour or all liquid below the critical temperature
+    /// (the vapour pressure rises with temperature, so no state of such a cell lies
+    /// across the saturation line).
+    pub(crate) fn seed_and_side(
+        &self,
+        fluid: &'static Fluid,
+        temperature: f64,
+        pressure: f64,
+    ) -> Option<(f64, Option<Branch>)> {
         let x = (temperature.ln() - self.ln_temperature_low) * self.inverse_steps.0;
         let (column, v) = self.column_of(pressure)?;
         // Also false for NaN.
@@ -280,7 +295,15 @@ impl SeedGrid {
             return None;
         }
         let a = self.cell_at(fluid, row, column)?;
-        Some(super::fast_exp::exp(ln_density_in(&a, x - row as f64, v)))
+        let side = match a.regions {
+            VAPOUR => Some(Branch::Vapour),
+            LIQUID => Some(Branch::Liquid),
+            _ => None,
+        };
+        Some((
+            super::fast_exp::exp(ln_density_in(&a, x - row as f64, v)),
+            side,
+        ))
     }
 
     /// Where the (p, h) or (p, s) flash for `target` of `quantity` at p should start:
