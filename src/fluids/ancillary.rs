@@ -86,6 +86,9 @@ pub struct MeltingLine {
     /// outside the line or between its parts), to bracket the melting temperature of
     /// a pressure within one cell (see [`MeltingLine::cell_bracket`]).
     nodes: Vec<f64>,
+    /// The line's lowest and highest temperatures, K, and cells per kelvin of the
+    /// tables, computed once.
+    span: (f64, f64, f64),
 }
 
 /// One cell of the melting line's table: its ends as (temperature K, melting
@@ -117,7 +120,19 @@ impl MeltingLine {
             parts: file.parts.clone(),
             floors: Vec::new(),
             nodes: Vec::new(),
+            span: (0.0, 0.0, 0.0),
         };
+        let low = file
+            .parts
+            .iter()
+            .map(|p| p.temperature_min_k)
+            .fold(f64::INFINITY, f64::min);
+        let high = file
+            .parts
+            .iter()
+            .map(|p| p.temperature_max_k)
+            .fold(f64::NEG_INFINITY, f64::max);
+        line.span = (low, high, FLOOR_CELLS as f64 / (high - low));
         let (low, width) = line.cells();
         line.nodes = (0..=FLOOR_CELLS)
             .map(|k| {
@@ -155,8 +170,7 @@ impl MeltingLine {
     /// cell, so that no solid needs to be ruled out by evaluating the line at `t`
     /// (a quick test before the exact one; false says nothing).
     pub fn surely_below(&self, t: f64, p: f64) -> bool {
-        let (low, width) = self.cells();
-        let position = (t - low) / width * FLOOR_CELLS as f64;
+        let position = (t - self.span.0) * self.span.2;
         if !(position >= 0.0 && position < FLOOR_CELLS as f64) {
             return false;
         }
@@ -275,18 +289,12 @@ impl MeltingLine {
 
     /// The lowest temperature the line covers.
     pub fn temperature_min(&self) -> f64 {
-        self.parts
-            .iter()
-            .map(|p| p.temperature_min_k)
-            .fold(f64::INFINITY, f64::min)
+        self.span.0
     }
 
     /// The highest temperature the line covers.
     pub fn temperature_max(&self) -> f64 {
-        self.parts
-            .iter()
-            .map(|p| p.temperature_max_k)
-            .fold(f64::NEG_INFINITY, f64::max)
+        self.span.1
     }
 }
 
