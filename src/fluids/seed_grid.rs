@@ -81,6 +81,23 @@ pub(crate) struct IsobarStart {
     pub liquid: bool,
 }
 
+/// One row of a grid (fixed temperature), allocated the first time one of its
+/// entries is asked for, so that a process that flashes a few states touches a few
+/// rows' memory; each entry filled on demand, `None` where it cannot be had.
+type Row<T> = OnceLock<Box<[OnceLock<Option<T>>]>>;
+
+/// Entry `column` of `row`, allocating the row (`length` entries) and filling the
+/// entry (by `fill`) the first time.
+#[inline(always)]
+fn entry<T: Copy>(
+    row: &Row<T>,
+    length: usize,
+    column: usize,
+    fill: impl FnOnce() -> Option<T>,
+) -> Option<T> {
+    *row.get_or_init(|| (0..length).map(|_| OnceLock::new()).collect())[column].get_or_init(fill)
+}
+
 /// The grid of one fluid, its nodes filled on demand.
 #[derive(Debug, Clone)]
 pub(crate) struct SeedGrid {
@@ -94,12 +111,12 @@ pub(crate) struct SeedGrid {
     inverse_steps: (f64, f64),
     /// The first column at or above the critical pressure.
     critical_column: usize,
-    /// Row-major; `None` where the plain flash fails (the solid, the saturation
-    /// line itself).
-    nodes: Box<[OnceLock<Option<Node>>]>,
-    /// Row-major, one fewer each way: the cell's interpolating polynomial (see
+    /// Rows of nodes; `None` where the plain flash fails (the solid, the
+    /// saturation line itself).
+    nodes: Box<[Row<Node>]>,
+    /// Rows of cells, one fewer each way: the cell's interpolating polynomial (see
     /// [`Cell`]), `None` where the cell is not smooth or a corner failed.
-    cells: Box<[OnceLock<Option<Cell>>]>,
+    cells: Box<[Row<Cell>]>,
 }
 
 /// A smooth cell: its interpolant ln ρ = Σ a[i][j] uⁱ vʲ (i, j = 0 … 3; u, v ∈
@@ -187,16 +204,14 @@ impl SeedGrid {
             critical_column: ((fluid.critical.pressure.ln() - ln_pressure_low) / step_pressure)
                 .ceil()
                 .max(0.0) as usize,
-            nodes: (0..rows * columns).map(|_| OnceLock::new()).collect(),
-            cells: (0..(rows - 1) * (columns - 1))
-                .map(|_| OnceLock::new())
-                .collect(),
+            nodes: (0..rows).map(|_| OnceLock::new()).collect(),
+            cells: (0..rows - 1).map(|_| OnceLock::new()).collect(),
         }
     }
 
     /// Node (row, column), computed by a plain flash the first time.
     fn node(&self, fluid: &'static Fluid, row: usize, column: usize) -> Option<Node> {
-        *self.nodes[row * self.columns + column].get_or_init(|| {
+        entry(&self.nodes[row], self.columns, column, || {
             let ln_temperature = self.ln_temperature_low + row as f64 * self.step_temperature;
             let ln_pressure = self.ln_pressure_low + column as f64 * self.step_pressure;
             let (temperature, pressure) = (ln_temperature.exp(), ln_pressure.exp());
@@ -259,7 +274,9 @@ impl SeedGrid {
     /// is not smooth.
     #[inline(always)]
     fn cell_at(&self, fluid: &'static Fluid, row: usize, column: usize) -> Option<Cell> {
-        *self.cells[row * (self.columns - 1) + column].get_or_init(|| self.cell(fluid, row, column))
+        entry(&self.cells[row], self.columns - 1, column, || {
+            self.cell(fluid, row, column)
+        })
     }
 
     /// A seed for the density at (T, p): `None` outside the grid or where the cell
