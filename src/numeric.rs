@@ -203,6 +203,27 @@ pub fn golden_maximum(mut f: impl FnMut(f64) -> f64, a: f64, b: f64, tolerance: 
     0.5 * (a + b)
 }
 
+/// The cubic Hermite basis at t ∈ [0, 1] for a cell of width `width`: weights of
+/// (f₀, f₀′, f₁, f₁′) for the value, and for the slope (d/dx, x = t·width).
+#[inline(always)]
+pub fn hermite_basis(t: f64, width: f64) -> ([f64; 4], [f64; 4]) {
+    let t2 = t * t;
+    let t3 = t2 * t;
+    let value = [
+        2.0 * t3 - 3.0 * t2 + 1.0,
+        (t3 - 2.0 * t2 + t) * width,
+        -2.0 * t3 + 3.0 * t2,
+        (t3 - t2) * width,
+    ];
+    let slope = [
+        (6.0 * t2 - 6.0 * t) / width,
+        3.0 * t2 - 4.0 * t + 1.0,
+        (-6.0 * t2 + 6.0 * t) / width,
+        3.0 * t2 - 2.0 * t,
+    ];
+    (value, slope)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

@@ -165,9 +165,16 @@ impl Fluid {
     /// The state at temperature T (K) and pressure p (Pa).
     pub fn state_tp(&'static self, temperature: f64, pressure: f64) -> Result<State> {
         // A seed only starts the density iteration; should one ever lead it astray
-        // (none is known to), the plain flash decides.
+        // (none is known to), the plain flash decides. Where there was no seed the
+        // error stands (no second try of the same work).
         self.state_tp_from(temperature, pressure, true)
-            .or_else(|_| self.state_tp_from(temperature, pressure, false))
+            .or_else(|error| {
+                if !self.pseudo_pure && self.density_seed(temperature, pressure).is_some() {
+                    self.state_tp_from(temperature, pressure, false)
+                } else {
+                    Err(error)
+                }
+            })
     }
 
     /// [`Fluid::state_tp`] with the density iteration seeded as without the seed
@@ -190,11 +197,11 @@ impl Fluid {
         from_grid: bool,
     ) -> Result<State> {
         self.check_range(temperature, pressure)?;
-        let (seed, side) = match from_grid && !self.pseudo_pure {
-            true => self
-                .density_seed_and_side(temperature, pressure)
-                .map_or((None, None), |(density, side)| (Some(density), side)),
-            false => (None, None),
+        let (seed, side) = if from_grid && !self.pseudo_pure {
+            self.density_seed_and_side(temperature, pressure)
+                .map_or((None, None), |(density, side)| (Some(density), side))
+        } else {
+            (None, None)
         };
         let factors = self.tau_factors(temperature);
         // Below the critical temperature in a cell wholly on one side of the

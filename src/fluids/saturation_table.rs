@@ -118,26 +118,6 @@ pub struct SaturationTable {
     step: f64,
 }
 
-/// The cubic Hermite basis at t ∈ [0, 1] for a cell of width `width`: weights of
-/// (f₀, f₀′, f₁, f₁′) for the value, and for the slope.
-fn hermite_basis(t: f64, width: f64) -> ([f64; 4], [f64; 4]) {
-    let t2 = t * t;
-    let t3 = t2 * t;
-    let value = [
-        2.0 * t3 - 3.0 * t2 + 1.0,
-        (t3 - 2.0 * t2 + t) * width,
-        -2.0 * t3 + 3.0 * t2,
-        (t3 - t2) * width,
-    ];
-    let slope = [
-        (6.0 * t2 - 6.0 * t) / width,
-        3.0 * t2 - 4.0 * t + 1.0,
-        (-6.0 * t2 + 6.0 * t) / width,
-        3.0 * t2 - 2.0 * t,
-    ];
-    (value, slope)
-}
-
 impl SaturationTable {
     /// True when the table holds no nodes.
     pub fn is_empty(&self) -> bool {
@@ -208,7 +188,7 @@ impl SaturationTable {
     ) -> Option<ApproximateSaturation> {
         let (a, b) = (self.node(cell)?, self.node(cell + 1)?);
         let t = (temperature - a.temperature) / self.step;
-        let (weights, slope_weights) = hermite_basis(t, self.step);
+        let (weights, slope_weights) = crate::numeric::hermite_basis(t, self.step);
         let column = |c: usize, w: &[f64; 4]| {
             w[0] * a.values[c] + w[1] * a.slopes[c] + w[2] * b.values[c] + w[3] * b.slopes[c]
         };
@@ -285,7 +265,7 @@ impl SaturationTable {
         let (mut low, mut high) = (0.0f64, 1.0f64);
         let mut t = ((target - y0) / (y1 - y0)).clamp(0.0, 1.0);
         for _ in 0..INVERSION_CAP {
-            let (w, ws) = hermite_basis(t, self.step);
+            let (w, ws) = crate::numeric::hermite_basis(t, self.step);
             let f = w[0] * y0 + w[1] * m0 + w[2] * y1 + w[3] * m1 - target;
             if f == 0.0 {
                 break;

@@ -25,6 +25,7 @@
 
 use super::density::Branch;
 use super::fluid::Fluid;
+use crate::numeric::hermite_basis;
 use std::sync::OnceLock;
 
 /// Grid spacing in ln T.
@@ -133,31 +134,6 @@ struct Cell {
 /// no more than a few digits).
 const ISOBAR_NEWTON_STEPS: usize = 4;
 
-/// The cubic Hermite basis functions at t ∈ [0, 1]: value at 0, slope at 0, value
-/// at 1, slope at 1.
-#[inline(always)]
-fn hermite_weights(t: f64) -> [f64; 4] {
-    let (t2, t3) = (t * t, t * t * t);
-    [
-        2.0 * t3 - 3.0 * t2 + 1.0,
-        t3 - 2.0 * t2 + t,
-        3.0 * t2 - 2.0 * t3,
-        t3 - t2,
-    ]
-}
-
-/// The derivatives of [`hermite_weights`] in t.
-#[inline(always)]
-fn hermite_slopes(t: f64) -> [f64; 4] {
-    let t2 = t * t;
-    [
-        6.0 * t2 - 6.0 * t,
-        3.0 * t2 - 4.0 * t + 1.0,
-        6.0 * t - 6.0 * t2,
-        3.0 * t2 - 2.0 * t,
-    ]
-}
-
 /// ln ρ at (u, v) in a cell, by Estrin's scheme (a short chain of dependent
 /// operations).
 #[inline(always)]
@@ -168,8 +144,9 @@ fn ln_density_in(cell: &Cell, u: f64, v: f64) -> f64 {
     (along_v(0) + u * along_v(1)) + u2 * (along_v(2) + u * along_v(3))
 }
 
-/// The cubic Hermite basis functions (value at 0, slope at 0, value at 1, slope at
-/// 1) as coefficients of 1, t, t², t³.
+/// The cubic Hermite basis functions of [`hermite_basis`] (value at 0, slope at 0,
+/// value at 1, slope at 1; unit width) as coefficients of 1, t, t², t³, to build a
+/// cell's polynomial.
 const HERMITE: [[f64; 4]; 4] = [
     [1.0, 0.0, -3.0, 2.0],
     [0.0, 1.0, -2.0, 1.0],
@@ -337,7 +314,7 @@ impl SeedGrid {
     ) -> Option<IsobarStart> {
         let (column, v) = self.column_of(pressure)?;
         let index = quantity as usize;
-        let across = hermite_weights(v);
+        let (across, _) = hermite_basis(v, 1.0);
         // The quantity at p on `row` (None where a node failed) and its slope along
         // ln T there (linear in v between the nodes), times the step.
         let on_isobar = |row: usize| -> Option<(f64, f64)> {
@@ -370,8 +347,7 @@ impl SeedGrid {
         // from the straight line's answer, kept inside the cell.
         let mut u = (target - low) / (high - low);
         for _ in 0..ISOBAR_NEWTON_STEPS {
-            let [w0, w1, w2, w3] = hermite_weights(u);
-            let [s0, s1, s2, s3] = hermite_slopes(u);
+            let ([w0, w1, w2, w3], [s0, s1, s2, s3]) = hermite_basis(u, 1.0);
             let value = w0 * low + w1 * low_slope + w2 * high + w3 * high_slope - target;
             let slope = s0 * low + s1 * low_slope + s2 * high + s3 * high_slope;
             if !(slope > 0.0) {
