@@ -413,6 +413,16 @@ impl Blend {
         })
     }
 
+    /// Bounds on both species' boiling temperatures at `pressure`, (below both,
+    /// above both), K: the temperatures of the saturation tables' nodes (exact
+    /// saturated states) on either side of the pressure. `None` where either table
+    /// does not reach it.
+    fn boiling_bounds(&self, pressure: f64) -> Option<(f64, f64)> {
+        let para = self.para.saturation_table.temperature_bracket(pressure)?;
+        let ortho = self.ortho.saturation_table.temperature_bracket(pressure)?;
+        Some((para.0.min(ortho.0), para.1.max(ortho.1)))
+    }
+
     /// The blend's saturation temperature at p for para fraction x (K), where the
     /// mole-weighted Gibbs energies of the liquid and vapour solutions are equal.
     /// The last few pairs' answers are kept per thread (the same bits in give the
@@ -676,14 +686,11 @@ impl Blend {
         let mut anchor: Option<(f64, (f64, f64))> = None;
         if pressure <= BLEND_SATURATION_PRESSURE_MAX {
             self.check_saturation_pressure(pressure)?;
-            let (para_boiling, ortho_boiling) = self.boiling_temperatures(pressure)?;
-            let (first, last) = (
-                para_boiling.min(ortho_boiling),
-                para_boiling.max(ortho_boiling),
-            );
             // From a seed clearly on one side, Newton on that side first: an answer
-            // inside it is single phase, and the bracket's ends are not needed.
-            if let Some(seed) = seed {
+            // inside it is single phase, and the bracket's ends are not needed. The
+            // side's end is a bound on both species' boiling temperatures from their
+            // saturation tables, so that no saturation is solved on the way.
+            if let Some((seed, (first, last))) = seed.zip(self.boiling_bounds(pressure)) {
                 let side = if seed > last && seed < high {
                     Some((false, last, high))
                 } else if seed < first && seed > low {
@@ -709,6 +716,11 @@ impl Blend {
                     }
                 }
             }
+            let (para_boiling, ortho_boiling) = self.boiling_temperatures(pressure)?;
+            let (first, last) = (
+                para_boiling.min(ortho_boiling),
+                para_boiling.max(ortho_boiling),
+            );
             let at_last = evaluate(last, false);
             if at_last.0 < 0.0 {
                 low = last;

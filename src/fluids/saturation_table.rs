@@ -234,8 +234,19 @@ impl SaturationTable {
         self.interpolate(cell, temperature, self.error(cell)?)
     }
 
-    /// The cell and temperature of [`SaturationTable::at_pressure`].
-    fn cell_at_pressure(&self, pressure: f64) -> Option<(usize, f64)> {
+    /// The temperatures of the two nodes whose exact saturation pressures enclose
+    /// `pressure` (K), widened by 1e-9 of themselves for the nodes' own solve: a
+    /// bracket of the saturation temperature one cell wide, from the nodes alone (no
+    /// interpolation, no measured error). `None` outside the table.
+    pub fn temperature_bracket(&self, pressure: f64) -> Option<(f64, f64)> {
+        let (cell, _) = self.cell_index_at_pressure(pressure)?;
+        let (a, b) = (self.node(cell)?, self.node(cell + 1)?);
+        Some((a.temperature * (1.0 - 1e-9), b.temperature * (1.0 + 1e-9)))
+    }
+
+    /// The cell whose nodes' ln p enclose ln `pressure` (clamped to the table's
+    /// ends within 1e-9), and that ln p; `None` outside the table.
+    fn cell_index_at_pressure(&self, pressure: f64) -> Option<(usize, f64)> {
         if self.is_empty() || !(pressure > 0.0) {
             return None;
         }
@@ -258,7 +269,12 @@ impl SaturationTable {
                 above = middle;
             }
         }
-        let cell = below.clamp(1, self.nodes.len() - 1) - 1;
+        Some((below.clamp(1, self.nodes.len() - 1) - 1, target))
+    }
+
+    /// The cell and temperature of [`SaturationTable::at_pressure`].
+    fn cell_at_pressure(&self, pressure: f64) -> Option<(usize, f64)> {
+        let (cell, target) = self.cell_index_at_pressure(pressure)?;
         let (a, b) = (self.node(cell)?, self.node(cell + 1)?);
         let (y0, y1) = (a.values[LN_PRESSURE], b.values[LN_PRESSURE]);
         let (m0, m1) = (a.slopes[LN_PRESSURE], b.slopes[LN_PRESSURE]);
