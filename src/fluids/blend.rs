@@ -423,6 +423,24 @@ impl Blend {
         Some((para.0.min(ortho.0), para.1.max(ortho.1)))
     }
 
+    /// Both species' boiling temperatures at `pressure` interpolated by their
+    /// saturation tables, and [`Blend::boiling_bounds`]; `None` where either table
+    /// does not reach the pressure.
+    fn boiling_estimates(&self, pressure: f64) -> Option<(f64, f64, (f64, f64))> {
+        let bounds = self.boiling_bounds(pressure)?;
+        let para = self
+            .para
+            .saturation_table
+            .at_pressure(pressure)?
+            .temperature;
+        let ortho = self
+            .ortho
+            .saturation_table
+            .at_pressure(pressure)?
+            .temperature;
+        Some((para, ortho, bounds))
+    }
+
     /// The blend's saturation temperature at p for para fraction x (K), where the
     /// mole-weighted Gibbs energies of the liquid and vapour solutions are equal.
     /// The last few pairs' answers are kept per thread (the same bits in give the
@@ -444,11 +462,21 @@ impl Blend {
     /// [`Blend::saturation`], solved: the species' properties are those of the
     /// search's last evaluation, at its answer.
     fn solve_saturation(&self, pressure: f64, para_fraction: f64) -> Result<Saturation> {
-        let (tp, to) = self.boiling_temperatures(pressure)?;
         if para_fraction >= 1.0 || para_fraction <= 0.0 {
+            let (tp, to) = self.boiling_temperatures(pressure)?;
             let t = if para_fraction >= 1.0 { tp } else { to };
             return Ok((t, self.species_both_sides(t, pressure, None)?));
         }
+        // The species' boiling temperatures bracket the solution's: bounded by the
+        // saturation tables' nodes and estimated by their interpolation, or solved
+        // where a table does not reach the pressure.
+        let (tp, to, (low, high)) = match self.boiling_estimates(pressure) {
+            Some(found) => found,
+            None => {
+                let (tp, to) = self.boiling_temperatures(pressure)?;
+                (tp, to, (tp.min(to), tp.max(to)))
+            }
+        };
         // g_liquid − g_vapour of the solution per mole, rising with T at the slope
         // s_vapour − s_liquid: Newton steps from the mole-weighted boiling point.
         // Each step's species densities seed the next step's.
@@ -471,7 +499,6 @@ impl Blend {
                 _ => (f64::NAN, f64::NAN, None),
             }
         };
-        let (low, high) = (tp.min(to), tp.max(to));
         let start = para_fraction * tp + (1.0 - para_fraction) * to;
         let (t, species) = crate::numeric::bracketed_newton_settled(
             "ortho–para solution saturation temperature",
@@ -564,11 +591,17 @@ impl Blend {
         if !self.has_saturation(t, p) {
             return Ok(p > self.normal.critical.pressure && t < self.normal.critical.temperature);
         }
-        let (para_sat, ortho_sat) = self.boiling_temperatures(p)?;
-        if t < para_sat.min(ortho_sat) {
+        let (below, above) = match self.boiling_bounds(p) {
+            Some(bounds) => bounds,
+            None => {
+                let (para_sat, ortho_sat) = self.boiling_temperatures(p)?;
+                (para_sat.min(ortho_sat), para_sat.max(ortho_sat))
+            }
+        };
+        if t < below {
             return Ok(true);
         }
-        if t > para_sat.max(ortho_sat) {
+        if t > above {
             return Ok(false);
         }
         Ok(t < self.saturation_temperature(p, x)?)
@@ -716,11 +749,20 @@ impl Blend {
                     }
                 }
             }
-            let (para_boiling, ortho_boiling) = self.boiling_temperatures(pressure)?;
-            let (first, last) = (
-                para_boiling.min(ortho_boiling),
-                para_boiling.max(ortho_boiling),
-            );
+            // Above both species' boiling temperatures the solution is vapour, below
+            // both liquid; the bounds from the tables' nodes serve as well as the
+            // exact temperatures (a target between them is found from the solution's
+            // saturation below either way).
+            let (first, last) = match self.boiling_bounds(pressure) {
+                Some(bounds) => bounds,
+                None => {
+                    let (para_boiling, ortho_boiling) = self.boiling_temperatures(pressure)?;
+                    (
+                        para_boiling.min(ortho_boiling),
+                        para_boiling.max(ortho_boiling),
+                    )
+                }
+            };
             let at_last = evaluate(last, false);
             if at_last.0 < 0.0 {
                 low = last;
@@ -819,12 +861,15 @@ impl Blend {
     /// path(T_sat(p, x)) − x through the last two: the map is nearly linear, so
     /// that one secant step lands about where many plain steps would.
     fn two_phase_para_fraction(&self, pressure: f64, para_at: &dyn Fn(f64) -> f64) -> Result<f64> {
-        let mut x = para_at(
-            self.normal
+        // From normal hydrogen's boiling temperature (its table's, or solved).
+        let boiling = match self.normal.saturation_table.at_pressure(pressure) {
+            Some(line) => Ok(line.temperature),
+            None => self
+                .normal
                 .saturation_at_pressure(pressure)
-                .map(|s| s.liquid.temperature)
-                .unwrap_or(20.0),
-        );
+                .map(|s| s.liquid.temperature),
+        };
+        let mut x = para_at(boiling.unwrap_or(20.0));
         let mut previous: Option<(f64, f64)> = None;
         const CAP: usize = 40;
         for _ in 0..CAP {
