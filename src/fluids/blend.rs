@@ -87,6 +87,10 @@ thread_local! {
 /// there, [liquid, vapour], each (para, ortho).
 type Saturation = (f64, [(Properties, Properties); 2]);
 
+/// Both species' boiling temperatures at a pressure with their molar entropies of
+/// vaporisation, [(T, Δs) of para, of ortho], and bounds (below both, above both).
+type BoilingEstimates = ([(f64, f64); 2], (f64, f64));
+
 /// How many pressures' boiling temperatures are kept: a flowsheet's two-phase
 /// hydrogen sits at a few pressures (valve outlets, separators, feeds).
 const KEPT_PRESSURES: usize = 8;
@@ -260,7 +264,22 @@ impl Blend {
         let factors = fluid.tau_factors(temperature);
         let density = Self::species_density(fluid, &factors, temperature, pressure, liquid, near)?;
         // The density search's last evaluation, kept per thread, serves these.
-        Ok(fluid.properties_with(&factors, temperature, density))
+        Ok(Self::at_pressure(
+            fluid.properties_with(&factors, temperature, density),
+            pressure,
+        ))
+    }
+
+    /// A species' properties at the density found for `pressure`, labelled with that
+    /// pressure: the equation's own pressure there differs from it only by the
+    /// density search's tolerance (1e-13), and a state keeps the pressure it was
+    /// asked at, so that streams at one pressure carry the same bits (and the
+    /// solution's saturation at that pressure is solved once).
+    fn at_pressure(properties: Properties, pressure: f64) -> Properties {
+        Properties {
+            pressure,
+            ..properties
+        }
     }
 
     /// One species' density at (T, p); see [`Blend::species_properties`].
@@ -320,7 +339,10 @@ impl Blend {
                 let seed = near.map(|n| pick(&n[index]));
                 let density =
                     Self::species_density(fluid, &factors, temperature, pressure, liquid, seed)?;
-                Ok(fluid.properties_with(&factors, temperature, density))
+                Ok(Self::at_pressure(
+                    fluid.properties_with(&factors, temperature, density),
+                    pressure,
+                ))
             };
             Ok([side(0, true)?, side(1, false)?])
         };
@@ -424,21 +446,17 @@ impl Blend {
     }
 
     /// Both species' boiling temperatures at `pressure` interpolated by their
-    /// saturation tables, and [`Blend::boiling_bounds`]; `None` where either table
-    /// does not reach the pressure.
-    fn boiling_estimates(&self, pressure: f64) -> Option<(f64, f64, (f64, f64))> {
+    /// saturation tables, each with its entropy of vaporisation per mole (J/(mol·K)),
+    /// and [`Blend::boiling_bounds`]; `None` where either table does not reach the
+    /// pressure.
+    fn boiling_estimates(&self, pressure: f64) -> Option<BoilingEstimates> {
         let bounds = self.boiling_bounds(pressure)?;
-        let para = self
-            .para
-            .saturation_table
-            .at_pressure(pressure)?
-            .temperature;
-        let ortho = self
-            .ortho
-            .saturation_table
-            .at_pressure(pressure)?
-            .temperature;
-        Some((para, ortho, bounds))
+        let estimate = |fluid: &Fluid| {
+            let line = fluid.saturation_table.at_pressure(pressure)?;
+            let vaporisation = (line.vapour_entropy - line.liquid_entropy) * fluid.molar_mass;
+            Some((line.temperature, vaporisation))
+        };
+        Some(([estimate(self.para)?, estimate(self.ortho)?], bounds))
     }
 
     /// The blend's saturation temperature at p for para fraction x (K), where the
@@ -469,17 +487,27 @@ impl Blend {
         }
         // The species' boiling temperatures bracket the solution's: bounded by the
         // saturation tables' nodes and estimated by their interpolation, or solved
-        // where a table does not reach the pressure.
-        let (tp, to, (low, high)) = match self.boiling_estimates(pressure) {
-            Some(found) => found,
+        // where a table does not reach the pressure. Each species' g_liquid − g_vapour rises through zero at its boiling
+        // temperature with the slope Δs of vaporisation, so the mole-weighted gap is
+        // about zero at the Δs-weighted mean of the boiling temperatures: the start.
+        let (start, (low, high)) = match self.boiling_estimates(pressure) {
+            Some(([(tp, sp), (to, so)], bounds)) => {
+                let (wp, wo) = (para_fraction * sp, (1.0 - para_fraction) * so);
+                let start = (wp * tp + wo * to) / (wp + wo);
+                let linear = para_fraction * tp + (1.0 - para_fraction) * to;
+                (if start.is_finite() { start } else { linear }, bounds)
+            }
             None => {
                 let (tp, to) = self.boiling_temperatures(pressure)?;
-                (tp, to, (tp.min(to), tp.max(to)))
+                (
+                    para_fraction * tp + (1.0 - para_fraction) * to,
+                    (tp.min(to), tp.max(to)),
+                )
             }
         };
         // g_liquid − g_vapour of the solution per mole, rising with T at the slope
-        // s_vapour − s_liquid: Newton steps from the mole-weighted boiling point.
-        // Each step's species densities seed the next step's.
+        // s_vapour − s_liquid: Newton steps from the start. Each step's species
+        // densities seed the next step's.
         let last: std::cell::Cell<Option<[(f64, f64); 2]>> = std::cell::Cell::new(None);
         let gap = |t: f64| -> (f64, f64, Option<[(Properties, Properties); 2]>) {
             match self.species_both_sides(t, pressure, last.get()) {
@@ -499,7 +527,6 @@ impl Blend {
                 _ => (f64::NAN, f64::NAN, None),
             }
         };
-        let start = para_fraction * tp + (1.0 - para_fraction) * to;
         let (t, species) = crate::numeric::bracketed_newton_settled(
             "ortho–para solution saturation temperature",
             gap,
@@ -687,17 +714,23 @@ impl Blend {
             let mixed = self.mix(x, &para, &ortho);
             last.set(Some((liquid, (para.density, ortho.density))));
             // The path's share of the slope: d(property)/dx · dx/dT, both by
-            // differences (the mix is arithmetic on the species' properties).
-            let step = 1e-6;
-            let x_other = if x + step <= 1.0 { x + step } else { x - step };
-            let along_x = (property.pick(&self.mix(x_other, &para, &ortho))
-                - property.pick(&mixed))
-                / (x_other - x);
+            // differences (the mix is arithmetic on the species' properties); none
+            // along a path of fixed composition.
             let dt = 1e-6 * t;
             let dx_dt = (para_at(t + dt) - para_at(t - dt)) / (2.0 * dt);
+            let along_path = if dx_dt == 0.0 {
+                0.0
+            } else {
+                let step = 1e-6;
+                let x_other = if x + step <= 1.0 { x + step } else { x - step };
+                let along_x = (property.pick(&self.mix(x_other, &para, &ortho))
+                    - property.pick(&mixed))
+                    / (x_other - x);
+                along_x * dx_dt
+            };
             (
                 property.pick(&mixed) - target,
-                property.slope(&mixed) + along_x * dx_dt,
+                property.slope(&mixed) + along_path,
                 Some((mixed, x)),
             )
         };
