@@ -654,8 +654,8 @@ fn a_search_from_any_guess_finds_the_same_state() {
                     count += 1;
                 }
             }
-            // Along a catalyst: the equilibrium path, from guesses and from two
-            // neighbours on either side.
+            // Along a catalyst: the equilibrium path, from guesses and from one, two
+            // or three neighbours on either side.
             let x = spin::equilibrium_para_fraction(t);
             let Ok(state) = blend.state_tp(t, p, x) else {
                 continue;
@@ -670,13 +670,16 @@ fn a_search_from_any_guess_finds_the_same_state() {
                 assert!((from.temperature - plain.temperature).abs() < 1e-13 * t);
                 count += 1;
             }
-            for pair in [[0, 1], [3, 2], [1, 0]] {
-                let (Ok(earlier), Ok(near)) = (&neighbours[pair[0]], &neighbours[pair[1]]) else {
+            for order in [&[0, 1][..], &[3, 2], &[1, 0], &[0, 1, 2], &[3, 2, 1], &[2]] {
+                let Ok(previous) = order
+                    .iter()
+                    .map(|&i| neighbours[i].clone())
+                    .collect::<Result<Vec<_>, _>>()
+                else {
                     continue;
                 };
-                let along = path
-                    .state_along(p, state.enthalpy, near, Some(earlier))
-                    .unwrap();
+                let near = previous.last().unwrap();
+                let along = path.state_along(p, state.enthalpy, &previous).unwrap();
                 assert!(
                     (along.temperature - plain.temperature).abs() < 1e-13 * t,
                     "{t} K, {p} Pa along from {} K: {}",

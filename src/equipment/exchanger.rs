@@ -381,8 +381,7 @@ impl Sides<'_> {
             let f = k as f64 / n as f64;
             let p = hot.pressure - self.design.hot_pressure_drop * f;
             let h = hot.enthalpy - q * f / mh;
-            let earlier = k.checked_sub(2).map(|j| &hot_states[j]);
-            let state = self.hot_path.state_along(p, h, &hot_states[k - 1], earlier)?;
+            let state = self.hot_path.state_along(p, h, &hot_states)?;
             hot_states.push(state);
         }
         let mut cold_states: Vec<State> = Vec::with_capacity(n + 1);
@@ -393,9 +392,7 @@ impl Sides<'_> {
             let along = 1.0 - f;
             let p = cold.pressure - self.design.cold_pressure_drop * along;
             let h = cold.enthalpy + (q + leak) * along / mc;
-            let near = cold_states.last().unwrap_or(cold);
-            let earlier = cold_states.len().checked_sub(2).map(|j| &cold_states[j]);
-            let state = self.cold_path.state_along(p, h, near, earlier)?;
+            let state = self.cold_path.state_along(p, h, &cold_states)?;
             cold_states.push(state);
         }
         cold_states.reverse();

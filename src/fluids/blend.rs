@@ -128,34 +128,34 @@ impl Blend {
 
     fn build(para: &'static Fluid, ortho: &'static Fluid, normal: &'static Fluid) -> Result<Blend> {
         let pressure = 1.0; // Pa; the ideal-gas parts do not depend on it except by ln p.
-        let differences: Vec<(f64, f64, f64)> = fit_temperatures()
+                            // (T, Δh, Δs of the equations' ideal gases, ΔE and Δμ of the rotational sums).
+        let differences: Vec<(f64, f64, f64, f64, f64)> = fit_temperatures()
             .map(|t| {
                 let (hp, sp) = ideal_gas_molar(para, t, pressure);
                 let (ho, so) = ideal_gas_molar(ortho, t, pressure);
-                (t, ho - hp, so - sp)
+                let (energy, gibbs) = spin::ortho_para_differences(t);
+                (t, ho - hp, so - sp, energy, gibbs)
             })
             .collect();
         let count = differences.len() as f64;
         let a = differences
             .iter()
-            .map(|&(t, dh, _)| spin::ortho_para_energy_difference(t) - dh)
+            .map(|&(_, dh, _, energy, _)| energy - dh)
             .sum::<f64>()
             / count;
         // μ_o − μ_p = (Δh + A) − T(Δs + B) = Δμ_rot: least squares for B in T·B.
         let (mut numerator, mut denominator) = (0.0, 0.0);
-        for &(t, dh, ds) in &differences {
-            let residual = dh + a - t * ds - spin::ortho_para_gibbs_difference(t);
+        for &(t, dh, ds, _, gibbs) in &differences {
+            let residual = dh + a - t * ds - gibbs;
             numerator += t * residual;
             denominator += t * t;
         }
         let b = numerator / denominator;
         let mut enthalpy_misfit: f64 = 0.0;
         let mut gibbs_misfit: f64 = 0.0;
-        for &(t, dh, ds) in &differences {
-            enthalpy_misfit =
-                enthalpy_misfit.max((dh + a - spin::ortho_para_energy_difference(t)).abs());
-            gibbs_misfit = gibbs_misfit
-                .max((dh + a - t * (ds + b) - spin::ortho_para_gibbs_difference(t)).abs());
+        for &(t, dh, ds, energy, gibbs) in &differences {
+            enthalpy_misfit = enthalpy_misfit.max((dh + a - energy).abs());
+            gibbs_misfit = gibbs_misfit.max((dh + a - t * (ds + b) - gibbs).abs());
         }
         let mut blend = Blend {
             para,

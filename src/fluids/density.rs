@@ -3,6 +3,7 @@
 
 use super::fluid::Fluid;
 use super::helmholtz::TauFactors;
+use super::saturation::UNMEASURED_SEED_FRACTION;
 use crate::error::{Error, Result};
 
 /// Which root of p(T, ρ) = p is wanted.
@@ -125,8 +126,17 @@ impl Fluid {
 
     /// Approximate saturated densities (liquid, vapour) at T, kg/m³: from the
     /// saturation table where it covers T closely, else from the ancillary equations.
+    /// Below [`UNMEASURED_SEED_FRACTION`] of the table's top its cells are close
+    /// without measuring them (the same densities, without an exact saturation
+    /// solved for each cell a run touches).
     pub fn approximate_saturated_densities(&self, temperature: f64) -> (f64, f64) {
-        match self.saturation_table.at_temperature(temperature) {
+        let line = match self.saturation_table.temperature_range() {
+            Some((_, top)) if temperature <= UNMEASURED_SEED_FRACTION * top => {
+                self.saturation_table.at_temperature_unmeasured(temperature)
+            }
+            _ => self.saturation_table.at_temperature(temperature),
+        };
+        match line {
             Some(line)
                 if line.error.density < super::saturation::SEED_DENSITY_ERROR
                     && line.liquid_density > line.vapour_density =>

@@ -226,6 +226,20 @@ impl SaturationTable {
         self.interpolate(cell, temperature, self.error(cell)?)
     }
 
+    /// [`SaturationTable::at_temperature`] without the cell's measured error (its
+    /// `error` is zero): for seeds where every cell's error is known to be small.
+    pub fn at_temperature_unmeasured(&self, temperature: f64) -> Option<ApproximateSaturation> {
+        let cell = self.cell_at_temperature(temperature)?;
+        self.interpolate(cell, temperature, TableError::default())
+    }
+
+    /// The measured error of the cell holding `temperature`, and the temperature of
+    /// the cell's upper node; `None` outside the table.
+    pub fn cell_error_at(&self, temperature: f64) -> Option<(TableError, f64)> {
+        let cell = self.cell_at_temperature(temperature)?;
+        Some((self.error(cell)?, self.node(cell + 1)?.temperature))
+    }
+
     /// The approximate saturated states at pressure p (Pa); `None` outside the table.
     /// The temperature solves the cell's cubic for ln p by Newton's method kept inside
     /// the cell (bisection when a step leaves it).

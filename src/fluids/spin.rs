@@ -125,18 +125,26 @@ pub fn wavenumber_to_molar_energy(wavenumber: f64) -> f64 {
 
 /// The ortho − para rotational energy difference of the ideal gas at T, J/mol.
 pub fn ortho_para_energy_difference(temperature: f64) -> f64 {
-    let sums = rotational_sums(temperature);
-    wavenumber_to_molar_energy(sums.odd_energy - sums.even_energy)
+    ortho_para_differences(temperature).0
 }
 
 /// The ortho − para ideal-gas Gibbs-energy difference at T, J/mol:
 /// −RT ln(3·Z_odd/Z_even).
 pub fn ortho_para_gibbs_difference(temperature: f64) -> f64 {
+    ortho_para_differences(temperature).1
+}
+
+/// [`ortho_para_energy_difference`] and [`ortho_para_gibbs_difference`] at T from
+/// one evaluation of the rotational sums, J/mol.
+pub fn ortho_para_differences(temperature: f64) -> (f64, f64) {
     let beta = SECOND_RADIATION_CONSTANT / temperature;
     let sums = rotational_sums(temperature);
     // ln Z_odd = ln(Z_odd relative to J = 1) − c₂E₁/T, kept apart for low T.
     let log_odd = sums.odd_from_first.ln() - level_energy(1) * beta;
-    -MOLAR_GAS_CONSTANT * temperature * (ORTHO_SPIN_WEIGHT.ln() + log_odd - sums.even.ln())
+    (
+        wavenumber_to_molar_energy(sums.odd_energy - sums.even_energy),
+        -MOLAR_GAS_CONSTANT * temperature * (ORTHO_SPIN_WEIGHT.ln() + log_odd - sums.even.ln()),
+    )
 }
 
 #[cfg(test)]
