@@ -694,12 +694,14 @@ fn a_search_from_any_guess_finds_the_same_state() {
 }
 
 /// Robustness of the converting demo across a wide design space (20–300 bar,
-/// 79.5–200 K after the bath). Measured: 94 of 100 cases converge; the six left fail
-/// with the solver, its passes and the last residual named — at the edge where the
-/// loop stops making liquid (there the loop's para fraction is undetermined: no
-/// make-up gas fixes it) and at 300 bar, where an intermediate pass cools the
-/// high-pressure stream into the parahydrogen solid (the melting pressure at 21.6 K
-/// is 29.9 MPa) and is refused.
+/// 79.5–200 K after the bath). Measured: 96 of 100 cases converge; the four left,
+/// all at 300 bar, are refused because the high-pressure stream leaves the cold
+/// exchanger in the parahydrogen solid (29.9 MPa at about 21.15 K, where it melts at
+/// 27.7 MPa), the equipment, pressure, temperature and melting pressure named. (Until
+/// the converging passes stopped flashing each end-approach exchanger's end-limited
+/// outlets, the same four failed as non-convergence: those flashes, at the cold
+/// inlet's temperature, fell into the solid and failed the passes.) A failure that
+/// is neither a named non-convergence nor that refusal fails the test.
 #[test]
 fn the_converting_demo_converges_across_a_wide_sweep() {
     use cryochain::study::{sweep, Variable};
@@ -716,12 +718,13 @@ fn the_converting_demo_converges_across_a_wide_sweep() {
         .collect();
     assert!(failed.len() <= 8, "{} of 100 failed", failed.len());
     for reason in failed {
-        assert!(
-            reason.contains("did not converge after")
-                && reason.contains("last residual")
-                && reason.contains("tear streams"),
-            "{reason}"
-        );
+        let unconverged = reason.contains("did not converge after")
+            && reason.contains("last residual")
+            && reason.contains("tear streams");
+        let frozen = reason.contains("in equipment 'cold-hx'")
+            && reason.contains("this is in the solid")
+            && reason.contains("melting pressure");
+        assert!(unconverged || frozen, "{reason}");
     }
     // Cold after the bath and near 150 bar it makes the most liquid.
     let best = study

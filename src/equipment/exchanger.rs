@@ -431,23 +431,34 @@ impl Sides<'_> {
     /// The duty at which either outlet would reach the other stream's inlet
     /// temperature: an upper bound on any duty.
     fn end_limited_duty(&self) -> Result<f64> {
+        let Some((t_cold, t_hot)) = self.end_limits() else {
+            return Ok(0.0);
+        };
+        let hot_limit = self.duty_for_hot_outlet(t_cold)?;
+        let cold_limit = self.duty_for_cold_outlet(t_hot)?;
+        Ok(hot_limit.min(cold_limit).max(0.0))
+    }
+
+    /// The temperatures that bound the outlets, (coldest hot outlet, warmest cold
+    /// outlet): the other stream's inlet, and neither outlet out of its fluid's
+    /// range (the hot one not into the solid). `None` where the hot inlet is no
+    /// warmer than the cold one (no duty at all).
+    fn end_limits(&self) -> Option<(f64, f64)> {
         let (hot, cold) = (&self.hot.state, &self.cold.state);
         if hot.temperature <= cold.temperature {
-            return Ok(0.0);
+            return None;
         }
         let hot_fluid = hot.fluid();
         let cold_fluid = cold.fluid();
-        // Neither outlet may leave its fluid's range: the hot one not into the solid.
         let coldest_hot = hot_fluid
             .melting_temperature(self.hot_outlet_pressure())
             .unwrap_or(hot_fluid.temperature_min)
             .max(hot_fluid.temperature_min)
             * (1.0 + 1e-6);
-        let t_cold = cold.temperature.max(coldest_hot);
-        let t_hot = hot.temperature.min(cold_fluid.temperature_max);
-        let hot_limit = self.duty_for_hot_outlet(t_cold)?;
-        let cold_limit = self.duty_for_cold_outlet(t_hot)?;
-        Ok(hot_limit.min(cold_limit).max(0.0))
+        Some((
+            cold.temperature.max(coldest_hot),
+            hot.temperature.min(cold_fluid.temperature_max),
+        ))
     }
 
     /// The largest duty: where the smallest temperature difference reaches zero
@@ -521,6 +532,38 @@ pub fn exchange(
     };
     let (hot_material, cold_material) = (hot.state.material(), cold.state.material());
     let degenerate = !(hot.flow > 0.0 && cold.flow > 0.0);
+    // A converging pass with an end approach: the duty the approach asks for is the
+    // answer unless an outlet would pass the other stream's inlet (the end-limited
+    // duty then caps it), which the outlets themselves show; the end-limited duty's
+    // two flashes are spent only then (the same duty and outlets either way).
+    if !context.detailed && !degenerate {
+        let asked = match design.spec {
+            ExchangerSpec::WarmEndApproach(dt) => Some(
+                sides.duty_for_cold_outlet((hot.state.temperature - dt).max(cold.state.temperature)),
+            ),
+            ExchangerSpec::ColdEndApproach(dt) => Some(
+                sides.duty_for_hot_outlet((cold.state.temperature + dt).min(hot.state.temperature)),
+            ),
+            _ => None,
+        };
+        if let Some(Ok(asked)) = asked {
+            let duty = asked.max(0.0);
+            if let (Ok((hot_out, cold_out)), Some((coldest_hot, warmest_cold))) =
+                (converging_outlets(&sides, duty, context), sides.end_limits())
+            {
+                if hot_out.temperature >= coldest_hot && cold_out.temperature <= warmest_cold {
+                    return Ok(converging_result(
+                        &sides,
+                        duty,
+                        hot_out,
+                        cold_out,
+                        None,
+                        context.ambient,
+                    ));
+                }
+            }
+        }
+    }
     let upper = if degenerate {
         0.0
     } else {
@@ -571,36 +614,16 @@ pub fn exchange(
         }
     };
     if !context.detailed && !degenerate {
-        // Outlets only: no profile needed for this pass. An outlet's search starts
-        // where the specification sets its temperature, else where it left on the
-        // last pass.
-        let hot_guess = match design.spec {
-            ExchangerSpec::ColdEndApproach(dt) => Some(cold.state.temperature + dt),
-            _ => context.outlet_hints[0],
-        };
-        let cold_guess = match design.spec {
-            ExchangerSpec::WarmEndApproach(dt) => Some(hot.state.temperature - dt),
-            _ => context.outlet_hints[1],
-        };
-        let hot_out = outlet_state(
-            &sides.hot_path,
-            sides.hot_outlet_pressure(),
-            hot.state.enthalpy - duty / hot.flow,
-            hot_guess,
-        )?;
-        let cold_out = outlet_state(
-            &sides.cold_path,
-            sides.cold_outlet_pressure(),
-            cold.state.enthalpy + (duty + design.heat_leak) / cold.flow,
-            cold_guess,
-        )?;
-        let performance = Performance {
-            heat_in: vec![(design.heat_leak, context.ambient)],
-            duty: Some(duty),
+        // Outlets only: no profile needed for this pass.
+        let (hot_out, cold_out) = converging_outlets(&sides, duty, context)?;
+        return Ok(converging_result(
+            &sides,
+            duty,
+            hot_out,
+            cold_out,
             pinch_at_end,
-            ..Performance::default()
-        };
-        return Ok((outlets(hot, cold, hot_out, cold_out), performance));
+            context.ambient,
+        ));
     }
     let pinch = if degenerate {
         let profile = sides
@@ -719,6 +742,52 @@ pub fn exchange(
         ..Performance::default()
     };
     Ok((outlets(hot, cold, hot_out, cold_out), performance))
+}
+
+/// A converging pass's outlets for `duty` (no profile): each outlet's search starts
+/// where the specification sets its temperature, else where it left on the last
+/// pass.
+fn converging_outlets(sides: &Sides, duty: f64, context: &Context) -> Result<(State, State)> {
+    let (hot, cold, design) = (sides.hot, sides.cold, sides.design);
+    let hot_guess = match design.spec {
+        ExchangerSpec::ColdEndApproach(dt) => Some(cold.state.temperature + dt),
+        _ => context.outlet_hints[0],
+    };
+    let cold_guess = match design.spec {
+        ExchangerSpec::WarmEndApproach(dt) => Some(hot.state.temperature - dt),
+        _ => context.outlet_hints[1],
+    };
+    let hot_out = outlet_state(
+        &sides.hot_path,
+        sides.hot_outlet_pressure(),
+        hot.state.enthalpy - duty / hot.flow,
+        hot_guess,
+    )?;
+    let cold_out = outlet_state(
+        &sides.cold_path,
+        sides.cold_outlet_pressure(),
+        cold.state.enthalpy + (duty + design.heat_leak) / cold.flow,
+        cold_guess,
+    )?;
+    Ok((hot_out, cold_out))
+}
+
+/// A converging pass's outlets and performance (duty and heat leak, no profile).
+fn converging_result(
+    sides: &Sides,
+    duty: f64,
+    hot_out: State,
+    cold_out: State,
+    pinch_at_end: Option<bool>,
+    ambient: f64,
+) -> (Vec<Flow>, Performance) {
+    let performance = Performance {
+        heat_in: vec![(sides.design.heat_leak, ambient)],
+        duty: Some(duty),
+        pinch_at_end,
+        ..Performance::default()
+    };
+    (outlets(sides.hot, sides.cold, hot_out, cold_out), performance)
 }
 
 /// The duty at which the smallest difference is `dt` (at most `upper`), and whether
