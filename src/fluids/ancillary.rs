@@ -80,8 +80,10 @@ pub struct MeltingLine {
     form: MeltingForm,
     parts: Vec<MeltingPart>,
     /// Pressures surely below the line, one per cell of [`FLOOR_CELLS`] equal cells
-    /// over the line's temperatures (see [`MeltingLine::surely_below`]).
-    floors: Vec<f64>,
+    /// over the line's temperatures (see [`MeltingLine::surely_below`]), each
+    /// sampled the first time a state in its cell is checked (a run checks a few
+    /// cells; sampling all of them was a tenth of loading a fluid).
+    floors: Vec<std::sync::OnceLock<f64>>,
     /// The melting pressure at each cell's ends ([`FLOOR_CELLS`] + 1 of them; NaN
     /// outside the line or between its parts), to bracket the melting temperature of
     /// a pressure within one cell (see [`MeltingLine::cell_bracket`]).
@@ -133,7 +135,6 @@ impl MeltingLine {
             .map(|p| p.temperature_max_k)
             .fold(f64::NEG_INFINITY, f64::max);
         line.span = (low, high, FLOOR_CELLS as f64 / (high - low));
-        let (low, width) = line.cells();
         line.nodes = (0..=FLOOR_CELLS)
             .map(|k| {
                 line.pressure(line.node_temperature(k))
@@ -142,20 +143,7 @@ impl MeltingLine {
             })
             .collect();
         line.floors = (0..FLOOR_CELLS)
-            .map(|cell| {
-                (0..FLOOR_SAMPLES)
-                    .map(|k| {
-                        let fraction = (cell as f64 + k as f64 / (FLOOR_SAMPLES - 1) as f64)
-                            / FLOOR_CELLS as f64;
-                        line.pressure((low + fraction * width).min(line.temperature_max()))
-                    })
-                    // A cell that reaches outside the line (or between its parts)
-                    // has no floor: its states are always checked exactly.
-                    .try_fold(f64::INFINITY, |floor, p| {
-                        p.filter(|p| p.is_finite()).map(|p| floor.min(p))
-                    })
-                    .map_or(f64::NEG_INFINITY, |floor| floor * (1.0 - FLOOR_MARGIN))
-            })
+            .map(|_| std::sync::OnceLock::new())
             .collect();
         line
     }
@@ -174,7 +162,26 @@ impl MeltingLine {
         if !(position >= 0.0 && position < FLOOR_CELLS as f64) {
             return false;
         }
-        p < self.floors[position as usize]
+        let cell = position as usize;
+        p < *self.floors[cell].get_or_init(|| self.floor(cell))
+    }
+
+    /// The floor of cell `cell`: the smallest of the line's pressures at
+    /// [`FLOOR_SAMPLES`] points across it, less [`FLOOR_MARGIN`]; −∞ for a cell that
+    /// reaches outside the line (or between its parts), whose states are always
+    /// checked exactly.
+    fn floor(&self, cell: usize) -> f64 {
+        let (low, width) = self.cells();
+        (0..FLOOR_SAMPLES)
+            .map(|k| {
+                let fraction =
+                    (cell as f64 + k as f64 / (FLOOR_SAMPLES - 1) as f64) / FLOOR_CELLS as f64;
+                self.pressure((low + fraction * width).min(self.temperature_max()))
+            })
+            .try_fold(f64::INFINITY, |floor, p| {
+                p.filter(|p| p.is_finite()).map(|p| floor.min(p))
+            })
+            .map_or(f64::NEG_INFINITY, |floor| floor * (1.0 - FLOOR_MARGIN))
     }
 
     /// The temperature of the table's node `k` (the cells' ends), K.
