@@ -546,7 +546,8 @@ pub fn exchange(
             ),
             _ => None,
         };
-        if let Some(Ok(asked)) = asked {
+        // (A duty that is not a number goes the whole way, to fail as it did.)
+        if let Some(Ok(asked)) = asked.filter(|a| a.as_ref().is_ok_and(|q| q.is_finite())) {
             let duty = asked.max(0.0);
             if let (Ok((hot_out, cold_out)), Some((coldest_hot, warmest_cold))) =
                 (converging_outlets(&sides, duty, context), sides.end_limits())

@@ -128,7 +128,9 @@ impl Blend {
 
     fn build(para: &'static Fluid, ortho: &'static Fluid, normal: &'static Fluid) -> Result<Blend> {
         let pressure = 1.0; // Pa; the ideal-gas parts do not depend on it except by ln p.
-                            // (T, Δh, Δs of the equations' ideal gases, ΔE and Δμ of the rotational sums).
+
+        // (T, Δh and Δs of the equations' ideal gases, ΔE and Δμ of the rotational
+        // sums), ortho less para, per mole.
         let differences: Vec<(f64, f64, f64, f64, f64)> = fit_temperatures()
             .map(|t| {
                 let (hp, sp) = ideal_gas_molar(para, t, pressure);
@@ -487,9 +489,10 @@ impl Blend {
         }
         // The species' boiling temperatures bracket the solution's: bounded by the
         // saturation tables' nodes and estimated by their interpolation, or solved
-        // where a table does not reach the pressure. Each species' g_liquid − g_vapour rises through zero at its boiling
-        // temperature with the slope Δs of vaporisation, so the mole-weighted gap is
-        // about zero at the Δs-weighted mean of the boiling temperatures: the start.
+        // where a table does not reach the pressure. Each species' g_liquid −
+        // g_vapour rises through zero at its boiling temperature with the slope Δs
+        // of vaporisation, so the mole-weighted gap is about zero at the Δs-weighted
+        // mean of the boiling temperatures: the start.
         let (start, (low, high)) = match self.boiling_estimates(pressure) {
             Some(([(tp, sp), (to, so)], bounds)) => {
                 let (wp, wo) = (para_fraction * sp, (1.0 - para_fraction) * so);
