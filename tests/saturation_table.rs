@@ -184,7 +184,7 @@ fn seeds_below_the_unmeasured_fraction_lie_in_close_cells() {
             if lower > UNMEASURED_SEED_FRACTION * high {
                 break;
             }
-            let (error, _) = table.cell_error_at(lower + 0.5 * step).unwrap();
+            let error = table.cell_error_at(lower + 0.5 * step).unwrap();
             assert!(
                 error.density < 1e-5,
                 "{name}: the cell from {lower} K measures {:e}",

@@ -439,6 +439,23 @@ impl Sides<'_> {
         Ok(hot_limit.min(cold_limit).max(0.0))
     }
 
+    /// The duty an end-approach specification asks for, before any cap: the cold
+    /// outlet at the hot inlet's temperature less the approach (warm end), or the
+    /// hot outlet at the cold inlet's plus it (cold end), neither past the other
+    /// inlet. `None` for another specification.
+    fn end_approach_duty(&self) -> Option<Result<f64>> {
+        let (hot, cold) = (&self.hot.state, &self.cold.state);
+        match self.design.spec {
+            ExchangerSpec::WarmEndApproach(dt) => Some(
+                self.duty_for_cold_outlet((hot.temperature - dt).max(cold.temperature)),
+            ),
+            ExchangerSpec::ColdEndApproach(dt) => Some(
+                self.duty_for_hot_outlet((cold.temperature + dt).min(hot.temperature)),
+            ),
+            _ => None,
+        }
+    }
+
     /// The temperatures that bound the outlets, (coldest hot outlet, warmest cold
     /// outlet): the other stream's inlet, and neither outlet out of its fluid's
     /// range (the hot one not into the solid). `None` where the hot inlet is no
@@ -537,15 +554,7 @@ pub fn exchange(
     // duty then caps it), which the outlets themselves show; the end-limited duty's
     // two flashes are spent only then (the same duty and outlets either way).
     if !context.detailed && !degenerate {
-        let asked = match design.spec {
-            ExchangerSpec::WarmEndApproach(dt) => Some(
-                sides.duty_for_cold_outlet((hot.state.temperature - dt).max(cold.state.temperature)),
-            ),
-            ExchangerSpec::ColdEndApproach(dt) => Some(
-                sides.duty_for_hot_outlet((cold.state.temperature + dt).min(hot.state.temperature)),
-            ),
-            _ => None,
-        };
+        let asked = sides.end_approach_duty();
         // (A duty that is not a number goes the whole way, to fail as it did.)
         if let Some(Ok(asked)) = asked.filter(|a| a.as_ref().is_ok_and(|q| q.is_finite())) {
             let duty = asked.max(0.0);
@@ -581,11 +590,9 @@ pub fn exchange(
             ))
         }
         _ if upper <= 0.0 => 0.0,
-        ExchangerSpec::WarmEndApproach(dt) => sides
-            .duty_for_cold_outlet((hot.state.temperature - dt).max(cold.state.temperature))?
-            .clamp(0.0, upper),
-        ExchangerSpec::ColdEndApproach(dt) => sides
-            .duty_for_hot_outlet((cold.state.temperature + dt).min(hot.state.temperature))?
+        ExchangerSpec::WarmEndApproach(_) | ExchangerSpec::ColdEndApproach(_) => sides
+            .end_approach_duty()
+            .unwrap_or(Ok(0.0))?
             .clamp(0.0, upper),
         ExchangerSpec::MinimumApproach(dt) => {
             let (duty, at_end) = minimum_approach_duty(&sides, dt, upper, duty_hint, context)?;

@@ -233,11 +233,10 @@ impl SaturationTable {
         self.interpolate(cell, temperature, TableError::default())
     }
 
-    /// The measured error of the cell holding `temperature`, and the temperature of
-    /// the cell's upper node; `None` outside the table.
-    pub fn cell_error_at(&self, temperature: f64) -> Option<(TableError, f64)> {
-        let cell = self.cell_at_temperature(temperature)?;
-        Some((self.error(cell)?, self.node(cell + 1)?.temperature))
+    /// The measured error of the cell holding `temperature`; `None` outside the
+    /// table.
+    pub fn cell_error_at(&self, temperature: f64) -> Option<TableError> {
+        self.error(self.cell_at_temperature(temperature)?)
     }
 
     /// The approximate saturated states at pressure p (Pa); `None` outside the table.
