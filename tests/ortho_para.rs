@@ -702,6 +702,48 @@ fn a_search_from_any_guess_finds_the_same_state() {
 /// outlets, the same four failed as non-convergence: those flashes, at the cold
 /// inlet's temperature, fell into the solid and failed the passes.) A failure that
 /// is neither a named non-convergence nor that refusal fails the test.
+/// A case solved after another, on the same thread, gives the same figures to the
+/// bit as solved first: what one solve leaves behind on its thread (the memories
+/// of its flashes, the species' states its searches start from) never changes the
+/// next one's answers, so that a study's cases do not depend on which thread ran
+/// them. (Common practice for reproducible studies; no source.)
+#[test]
+fn a_case_solved_after_another_is_the_same_to_the_bit() {
+    let bits = |solution: &Solution| -> Vec<u64> {
+        solution
+            .streams
+            .iter()
+            .flat_map(|s| {
+                [
+                    s.state.temperature,
+                    s.state.enthalpy,
+                    s.state.density,
+                    s.flow,
+                ]
+            })
+            .map(f64::to_bits)
+            .collect()
+    };
+    for (file, change) in [
+        (DEMO, "compressor.outlet_pressure=125 bar"),
+        (CATALYTIC, "feed.temperature=41 K"),
+    ] {
+        let plant = load(Path::new(file), &[]).unwrap();
+        let other = load(
+            Path::new(file),
+            &[cryochain::flowsheet::Override::parse(change).unwrap()],
+        )
+        .unwrap();
+        let first = bits(&solve(&plant, &Options::default()).unwrap());
+        solve(&other, &Options::default()).unwrap();
+        let again = bits(&solve(&plant, &Options::default()).unwrap());
+        assert!(
+            first == again,
+            "{file}: the figures changed after another case was solved"
+        );
+    }
+}
+
 #[test]
 fn the_converting_demo_converges_across_a_wide_sweep() {
     use cryochain::study::{sweep, Variable};

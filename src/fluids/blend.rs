@@ -81,7 +81,29 @@ thread_local! {
     /// ([`Blend::saturated_pair`]).
     static LAST_SATURATED_PAIR: RefCell<Recent<(u64, u64), SaturatedPair>> =
         const { RefCell::new(Recent::new(KEPT_COMPOSITIONS)) };
+    /// Both species at this thread's last two single-phase answers of (p, h) or
+    /// (p, s) searches, [the one before, the last], each with its side (`true` for
+    /// the liquid side): the next search nearby starts its species' densities from
+    /// them ([`Blend::joint_search`]).
+    static LAST_SPECIES: std::cell::Cell<[Option<Answer>; 2]> =
+        const { std::cell::Cell::new([None, None]) };
 }
+
+/// How far (relative, in temperature and in pressure) a search may start from the
+/// last answer's species for their densities to seed it.
+const JOINT_REACH: f64 = 0.05;
+
+/// Step cap of the joint search; past it the nested search takes over.
+const JOINT_STEPS: usize = 8;
+
+/// A joint step within this fraction of every variable ends the joint search (one
+/// more evaluation, one step on, unless it is within rounding): the temperature
+/// search's own tolerance.
+const JOINT_TOLERANCE: f64 = 1e-13;
+
+/// A joint step within this fraction of every variable: the point is the root as
+/// closely as the equations can tell.
+const JOINT_ROUNDING: f64 = 1e-15;
 
 /// A saturation temperature of the solution (K) and both species' properties
 /// there, [liquid, vapour], each (para, ortho).
@@ -709,32 +731,18 @@ impl Blend {
         };
         // The property less the target, its slope along the path, and the solution's
         // properties with their para fraction, at T on a side.
-        let evaluate_with = |t: f64, liquid: bool| -> (f64, f64, Option<(Properties, f64)>) {
+        let evaluate_with = |t: f64, liquid: bool| -> (f64, f64, Option<Found>) {
             let x = para_at(t);
             let Ok((para, ortho)) = self.species_near(t, pressure, liquid, seeds(liquid)) else {
                 return (f64::NAN, f64::NAN, None);
             };
             let mixed = self.mix(x, &para, &ortho);
             last.set(Some((liquid, (para.density, ortho.density))));
-            // The path's share of the slope: d(property)/dx · dx/dT, both by
-            // differences (the mix is arithmetic on the species' properties); none
-            // along a path of fixed composition.
-            let dt = 1e-6 * t;
-            let dx_dt = (para_at(t + dt) - para_at(t - dt)) / (2.0 * dt);
-            let along_path = if dx_dt == 0.0 {
-                0.0
-            } else {
-                let step = 1e-6;
-                let x_other = if x + step <= 1.0 { x + step } else { x - step };
-                let along_x = (property.pick(&self.mix(x_other, &para, &ortho))
-                    - property.pick(&mixed))
-                    / (x_other - x);
-                along_x * dx_dt
-            };
+            let along_path = self.along_path(property, para_at, t, x, (&para, &ortho), &mixed);
             (
                 property.pick(&mixed) - target,
                 property.slope(&mixed) + along_path,
-                Some((mixed, x)),
+                Some((mixed, x, (para, ortho))),
             )
         };
         let evaluate = |t: f64, liquid: bool| -> (f64, f64) {
@@ -743,12 +751,14 @@ impl Blend {
         };
         // The state at the search's answer from what was computed there (see
         // `numeric::bracketed_newton_settled`); a residual beyond rounding is refused.
-        let finish = |t: f64, liquid: bool, found: Option<(Properties, f64)>| -> Option<State> {
-            let (properties, x) = found?;
+        let finish = |t: f64, liquid: bool, found: Option<Found>| -> Option<State> {
+            let (properties, x, (para, ortho)) = found?;
             self.check(t, pressure, x).ok()?;
             let residual = property.pick(&properties) - target;
-            (residual.abs() <= 1e-9 * property.slope(&properties).abs() * t)
-                .then(|| self.state(properties, liquid, x))
+            (residual.abs() <= 1e-9 * property.slope(&properties).abs() * t).then(|| {
+                remember_answer((liquid, para, ortho));
+                self.state(properties, liquid, x)
+            })
         };
         let mut liquid_below = false;
         // A point of the bracket's end with its value and slope, to start from.
@@ -768,6 +778,20 @@ impl Blend {
                     None
                 };
                 if let Some((liquid, a, b)) = side {
+                    let joint = self.joint_search(
+                        pressure,
+                        target,
+                        para_at,
+                        property,
+                        seed,
+                        liquid,
+                        (a, b),
+                        &|_| liquid,
+                    );
+                    if let Some(state) = joint.and_then(|(t, found)| finish(t, liquid, Some(found)))
+                    {
+                        return Ok(state);
+                    }
                     let found = crate::numeric::bracketed_newton_settled(
                         "ortho–para solution temperature from pressure",
                         |t| evaluate_with(t, liquid),
@@ -855,6 +879,25 @@ impl Blend {
             ),
         };
         let inside = |t: f64| t > low && t < high;
+        // Above the solution's two-phase limit, from a seed: the joint search first
+        // (on the seed's side, which the answer must share).
+        if let Some(seed) = seed.filter(|t| pressure > BLEND_SATURATION_PRESSURE_MAX && inside(*t))
+        {
+            let liquid = side(seed);
+            let joint = self.joint_search(
+                pressure,
+                target,
+                para_at,
+                property,
+                seed,
+                liquid,
+                (low, high),
+                &side,
+            );
+            if let Some(state) = joint.and_then(|(t, found)| finish(t, liquid, Some(found))) {
+                return Ok(state);
+            }
+        }
         let start = match (seed, anchor) {
             (Some(t), _) if inside(t) => t,
             (_, Some((t, (value, slope)))) if inside(t - value / slope) => t - value / slope,
@@ -887,6 +930,204 @@ impl Blend {
         self.check(t, pressure, para_at(t))?;
         // A target outside [low, high] ends at an edge with a residual: refused.
         finish(t, side(t), at).ok_or_else(out_of_range)
+    }
+
+    /// The path's share of a property's temperature slope at T: d(property)/dx ·
+    /// dx/dT, both by differences (the mix is arithmetic on the species'
+    /// properties); none along a path of fixed composition.
+    fn along_path(
+        &self,
+        property: Target,
+        para_at: &dyn Fn(f64) -> f64,
+        t: f64,
+        x: f64,
+        (para, ortho): (&Properties, &Properties),
+        mixed: &Properties,
+    ) -> f64 {
+        let dt = 1e-6 * t;
+        let dx_dt = (para_at(t + dt) - para_at(t - dt)) / (2.0 * dt);
+        if dx_dt == 0.0 {
+            return 0.0;
+        }
+        let step = 1e-6;
+        let x_other = if x + step <= 1.0 { x + step } else { x - step };
+        let along_x =
+            (property.pick(&self.mix(x_other, para, ortho)) - property.pick(mixed)) / (x_other - x);
+        along_x * dx_dt
+    }
+
+    /// The (p, property) search by Newton in temperature and both species'
+    /// densities together, one evaluation of each species a step and no nested
+    /// density search, from `seed` and the densities of this thread's last answer
+    /// moved to (seed, p) along their slopes. For a start on side `liquid` within
+    /// [`JOINT_REACH`] of that answer; the answer must lie inside `bounds` (open), on
+    /// the side `side_at` gives there, with each species on the root its own
+    /// density search would find (the same bracket, a rising isotherm) and its
+    /// pressure met as that search meets it. `None` otherwise: the nested search
+    /// then takes over. Ends as [`crate::numeric::bracketed_newton_settled`] does:
+    /// once a step is within [`JOINT_TOLERANCE`] of every variable, at the point one
+    /// step on (evaluated) unless the step is within rounding.
+    #[allow(clippy::too_many_arguments)]
+    fn joint_search(
+        &self,
+        pressure: f64,
+        target: f64,
+        para_at: &dyn Fn(f64) -> f64,
+        property: Target,
+        seed: f64,
+        liquid: bool,
+        bounds: (f64, f64),
+        side_at: &dyn Fn(f64) -> bool,
+    ) -> Option<(f64, Found)> {
+        let [before, last] = LAST_SPECIES.get();
+        let (side, last_para, last_ortho) = last?;
+        let (t_last, p_last) = (last_para.temperature, last_para.pressure);
+        let near = |t: f64, p: f64| {
+            (t - t_last).abs() <= JOINT_REACH * t_last && (p - p_last).abs() <= JOINT_REACH * p_last
+        };
+        if side != liquid || !near(seed, pressure) {
+            return None;
+        }
+        // Each density moved along its isotherm and isobar to (T, p), to first
+        // order; then, where the answer before lies on the same side nearby, with
+        // the curvature in T that it shows, where that changes the move by less
+        // than half (the species' states are smooth there).
+        let linear = |s: &Properties, t: f64, p: f64| {
+            s.density + ((p - p_last) - s.dp_dt * (t - t_last)) / s.dp_drho
+        };
+        let earlier = before.filter(|(side, para, _)| {
+            *side == liquid
+                && near(para.temperature, para.pressure)
+                && (para.temperature - t_last).abs() > 1e-9 * t_last
+        });
+        let moved = |s: &Properties, e: Option<&Properties>| {
+            let first = linear(s, seed, pressure);
+            let Some(e) = e else {
+                return first;
+            };
+            let span = e.temperature - t_last;
+            let curvature = (e.density - linear(s, e.temperature, e.pressure)) / (span * span);
+            let bend = curvature * (seed - t_last) * (seed - t_last);
+            if bend.abs() <= 0.5 * (first - s.density).abs() {
+                first + bend
+            } else {
+                first
+            }
+        };
+        let species = [self.para, self.ortho];
+        let mut t = seed;
+        let mut densities = [
+            moved(&last_para, earlier.as_ref().map(|e| &e.1)),
+            moved(&last_ortho, earlier.as_ref().map(|e| &e.2)),
+        ];
+        let mut last_step = false;
+        for _ in 0..JOINT_STEPS {
+            if !(t > bounds.0 && t < bounds.1 && densities.iter().all(|rho| *rho > 0.0)) {
+                return None;
+            }
+            let raw = [0, 1].map(|i| {
+                let fluid = species[i];
+                fluid.properties_with(&fluid.tau_factors(t), t, densities[i])
+            });
+            // The species' own pressures, then their states labelled with the
+            // pressure asked, as the nested search labels them.
+            let pressures = raw.map(|s| s.pressure);
+            let [para, ortho] = raw.map(|s| Self::at_pressure(s, pressure));
+            let x = para_at(t);
+            let mixed = self.mix(x, &para, &ortho);
+            // The answer here, where its species lie on their branches and meet the
+            // pressure as their density searches accept a root: within their
+            // tolerance, or (in a stiff liquid, where the pressure's own rounding
+            // is larger) with a Newton step within the density's rounding and the
+            // pressure within the looser bound. A point on its branch that does not
+            // yet meet the pressure takes another step.
+            let met = (0..2).all(|i| {
+                let rho = densities[i];
+                let noise = 1e-14 * rho * species[i].gas_constant * t;
+                let residual = (pressures[i] - pressure).abs();
+                let dp_drho = [&para, &ortho][i].dp_drho;
+                residual <= 1e-13 * pressure + noise
+                    || (residual / dp_drho <= 1e-15 * rho
+                        && residual <= 1e-9 * pressure + 1e3 * noise)
+            });
+            let answer = |para: Properties, ortho: Properties, mixed: Properties| {
+                let on_branch = side_at(t) == liquid
+                    && self.species_on_branch(self.para, t, pressure, liquid, &para)
+                    && self.species_on_branch(self.ortho, t, pressure, liquid, &ortho);
+                on_branch.then_some((t, (mixed, x, (para, ortho))))
+            };
+            if last_step && met {
+                return answer(para, ortho, mixed);
+            }
+            let weight = self.para_mass_fraction(x);
+            let weights = [weight, 1.0 - weight];
+            // The property's derivatives in each species' (T, ρ), and the mix's
+            // temperature slope along the isobar with the path's share.
+            let derivatives = |s: &Properties| match property {
+                Target::Enthalpy => (
+                    s.cv + s.dp_dt / s.density,
+                    s.dp_drho / s.density - t * s.dp_dt / (s.density * s.density),
+                ),
+                Target::Entropy => (s.cv / t, -s.dp_dt / (s.density * s.density)),
+            };
+            let residual = property.pick(&mixed) - target;
+            let mut numerator = residual;
+            let mut denominator = self.along_path(property, para_at, t, x, (&para, &ortho), &mixed);
+            for (i, s) in [&para, &ortho].into_iter().enumerate() {
+                let (by_t, by_density) = derivatives(s);
+                let pressure_residual = pressures[i] - pressure;
+                numerator -= weights[i] * by_density * pressure_residual / s.dp_drho;
+                denominator += weights[i] * (by_t - by_density * s.dp_dt / s.dp_drho);
+            }
+            let dt = -numerator / denominator;
+            let steps = [0, 1].map(|i| {
+                let s = [&para, &ortho][i];
+                -((pressures[i] - pressure) + s.dp_dt * dt) / s.dp_drho
+            });
+            if !(dt.is_finite() && steps.iter().all(|d| d.is_finite()))
+                || dt.abs() > 0.2 * t
+                || (0..2).any(|i| steps[i].abs() > 0.5 * densities[i])
+            {
+                return None;
+            }
+            let within = |fraction: f64| {
+                dt.abs() <= fraction * t
+                    && (0..2).all(|i| steps[i].abs() <= fraction * densities[i])
+            };
+            if within(JOINT_ROUNDING) && met {
+                return answer(para, ortho, mixed);
+            }
+            last_step = within(JOINT_TOLERANCE);
+            t += dt;
+            densities = [densities[0] + steps[0], densities[1] + steps[1]];
+        }
+        None
+    }
+
+    /// Whether a species' state at (T, p) lies on the root its density search on
+    /// side `liquid` would find ([`Blend::species_density`]'s bracket), on a rising
+    /// isotherm.
+    fn species_on_branch(
+        &self,
+        fluid: &Fluid,
+        temperature: f64,
+        pressure: f64,
+        liquid: bool,
+        state: &Properties,
+    ) -> bool {
+        let rho = state.density;
+        if !(state.dp_drho > 0.0 && rho > 0.0 && rho < fluid.density_ceiling) {
+            return false;
+        }
+        if temperature >= fluid.saturation_temperature_max() {
+            return true;
+        }
+        let (liquid_density, vapour_density) = fluid.approximate_saturated_densities(temperature);
+        if liquid || pressure >= fluid.critical.pressure {
+            rho > (0.8 * liquid_density).max(fluid.critical.density)
+        } else {
+            rho < (1.6 * vapour_density).min(fluid.critical.density)
+        }
     }
 
     /// The para fraction of the two-phase solution at p along a para-fraction path:
@@ -1100,6 +1341,28 @@ impl Blend {
     }
 }
 
+/// A single-phase answer's side (`true` for the liquid side) and its species'
+/// properties (para, ortho).
+type Answer = (bool, Properties, Properties);
+
+/// Remembers a single-phase answer as this thread's last (see `LAST_SPECIES`).
+fn remember_answer(answer: Answer) {
+    LAST_SPECIES.set([LAST_SPECIES.get()[1], Some(answer)]);
+}
+
+/// Forgets the answers this thread remembers for the joint search's starts. A
+/// solve starts from none, so that its figures do not depend on what the thread
+/// solved before (a study's cases run on whichever thread is free): the joint
+/// search lands on the nested search's answer only to its tolerance, not to the
+/// bit.
+pub fn forget_answers() {
+    LAST_SPECIES.set([None, None]);
+}
+
+/// What a search found at its answer: the solution's properties, its para
+/// fraction and both species' properties (para, ortho).
+type Found = (Properties, f64, (Properties, Properties));
+
 /// The property a (p, property) flash of the solution matches.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 enum Target {
@@ -1165,5 +1428,136 @@ impl ParaChoice {
             });
         }
         Ok(ParaChoice::Fixed(number))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// A (p, property) answer from the nested search alone (no remembered species).
+    fn nested(
+        blend: &Blend,
+        pressure: f64,
+        target: f64,
+        para_at: &dyn Fn(f64) -> f64,
+        property: Target,
+        seed: f64,
+    ) -> State {
+        forget_answers();
+        blend
+            .state_p_property(pressure, target, para_at, property, Some(seed))
+            .unwrap()
+    }
+
+    /// Along an exchanger-like sweep, each answer of the joint search (from the
+    /// last answer's species) is the nested search's: the temperature to 1e-12 and
+    /// the properties with it, on the vapour side at low pressure (along the
+    /// catalyst's equilibrium path), the liquid side, and above the two-phase limit
+    /// (at a fixed para fraction, by enthalpy and by entropy). Fails if a term of
+    /// the joint step is wrong (the search then does not converge, or converges
+    /// elsewhere) or if the search is not taken.
+    #[test]
+    fn joint_search_lands_where_the_nested_search_does() {
+        let blend = Blend::get().unwrap();
+        let fixed = |_: f64| 0.471;
+        let equilibrium = spin::equilibrium_para_fraction;
+        // (pressure, warm end, cold end, para-fraction path, property, liquid side)
+        type Case<'a> = (f64, f64, f64, &'a dyn Fn(f64) -> f64, Target, bool);
+        let cases: [Case; 5] = [
+            (119.5e5, 117.0, 46.0, &fixed, Target::Enthalpy, false),
+            (119.5e5, 117.0, 46.0, &fixed, Target::Entropy, false),
+            (1.28e5, 290.0, 80.0, &equilibrium, Target::Enthalpy, false),
+            (1.3e5, 20.5, 16.0, &fixed, Target::Enthalpy, true),
+            (30e5, 25.0, 16.0, &equilibrium, Target::Enthalpy, true),
+        ];
+        for (pressure, warm, cold, para_at, property, liquid) in cases {
+            let steps = 12;
+            let at = |t: f64| {
+                let x = para_at(t);
+                let side = blend.liquid_side(t, pressure, x).unwrap();
+                assert_eq!(side, liquid, "case at {pressure} Pa, {t} K");
+                property.pick(&blend.tp_properties(t, pressure, x, side).unwrap())
+            };
+            let (first, last) = (at(warm), at(cold));
+            let mut previous = nested(blend, pressure, first, para_at, property, warm);
+            let mut joined = 0;
+            for k in 1..=steps {
+                let target = first + (last - first) * k as f64 / steps as f64;
+                let seed = previous.temperature;
+                let (low, high) = (10.0, 400.0);
+                let side_at = |t: f64| blend.liquid_side(t, pressure, para_at(t)).unwrap_or(liquid);
+                let joint = blend.joint_search(
+                    pressure,
+                    target,
+                    para_at,
+                    property,
+                    seed,
+                    liquid,
+                    (low, high),
+                    &side_at,
+                );
+                let expected = nested(blend, pressure, target, para_at, property, seed);
+                if let Some((t, (mixed, x, _))) = joint {
+                    joined += 1;
+                    let close = |a: f64, b: f64| (a - b).abs() <= 1e-12 * a.abs().max(1.0);
+                    assert!(
+                        close(t, expected.temperature),
+                        "{t} against {}",
+                        expected.temperature
+                    );
+                    assert!(close(x, expected.para_fraction.unwrap()));
+                    for (a, b) in [
+                        (mixed.enthalpy, expected.enthalpy),
+                        (mixed.entropy, expected.entropy),
+                        (mixed.density, expected.density),
+                        (mixed.cp, expected.cp().unwrap()),
+                    ] {
+                        assert!(close(a, b), "{a} against {b} at {pressure} Pa, {t} K");
+                    }
+                }
+                previous = expected;
+            }
+            // Steps of a few kelvin lie within reach of the last answer.
+            assert!(
+                joined >= steps - 1,
+                "the joint search was taken {joined} times of {steps} at {pressure} Pa"
+            );
+        }
+    }
+
+    /// The joint search is not tried from a remembered answer on the other side, or
+    /// far from the start; there the nested search answers alone.
+    #[test]
+    fn joint_search_starts_only_near_an_answer_on_its_side() {
+        let blend = Blend::get().unwrap();
+        let fixed = |_: f64| 0.5;
+        let pressure = 1.3e5;
+        let vapour = blend.state_tp(40.0, pressure, 0.5).unwrap();
+        let liquid = blend.state_tp(18.0, pressure, 0.5).unwrap();
+        let search = |target: f64, seed: f64, liquid_side: bool| {
+            blend.joint_search(
+                pressure,
+                target,
+                &fixed,
+                Target::Enthalpy,
+                seed,
+                liquid_side,
+                (10.0, 400.0),
+                &|_| liquid_side,
+            )
+        };
+        // Remember the vapour at 40 K.
+        nested(
+            blend,
+            pressure,
+            vapour.enthalpy,
+            &fixed,
+            Target::Enthalpy,
+            40.5,
+        );
+        assert!(search(vapour.enthalpy, 40.2, false).is_some());
+        assert!(search(liquid.enthalpy, 18.2, true).is_none());
+        assert!(search(vapour.enthalpy, 60.0, false).is_none());
     }
 }

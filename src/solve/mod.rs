@@ -410,6 +410,8 @@ struct FirstPass {
 
 /// [`solve`], the first pass starting from `first`.
 fn solve_from(plant: &Plant, options: &Options, first: FirstPass) -> Result<Solution> {
+    // Nothing of an earlier solve on this thread seeds this one's searches.
+    crate::fluids::blend::forget_answers();
     let sequence = order::plan(plant);
     let networks = flow_networks(&plant.units, plant.streams.len());
     let pressures = static_pressures(&plant.units, plant.streams.len());
