@@ -760,6 +760,14 @@ impl Blend {
                 self.state(properties, liquid, x)
             })
         };
+        // The joint search from a seed on side `liquid` inside `bounds`, its answer
+        // finished as the nested search's is.
+        let joint = |seed: f64, liquid: bool, bounds: (f64, f64), side_at: &dyn Fn(f64) -> bool| {
+            let (t, found) = self.joint_search(
+                pressure, target, para_at, property, seed, liquid, bounds, side_at,
+            )?;
+            finish(t, liquid, Some(found))
+        };
         let mut liquid_below = false;
         // A point of the bracket's end with its value and slope, to start from.
         let mut anchor: Option<(f64, (f64, f64))> = None;
@@ -778,18 +786,7 @@ impl Blend {
                     None
                 };
                 if let Some((liquid, a, b)) = side {
-                    let joint = self.joint_search(
-                        pressure,
-                        target,
-                        para_at,
-                        property,
-                        seed,
-                        liquid,
-                        (a, b),
-                        &|_| liquid,
-                    );
-                    if let Some(state) = joint.and_then(|(t, found)| finish(t, liquid, Some(found)))
-                    {
+                    if let Some(state) = joint(seed, liquid, (a, b), &|_| liquid) {
                         return Ok(state);
                     }
                     let found = crate::numeric::bracketed_newton_settled(
@@ -883,18 +880,7 @@ impl Blend {
         // (on the seed's side, which the answer must share).
         if let Some(seed) = seed.filter(|t| pressure > BLEND_SATURATION_PRESSURE_MAX && inside(*t))
         {
-            let liquid = side(seed);
-            let joint = self.joint_search(
-                pressure,
-                target,
-                para_at,
-                property,
-                seed,
-                liquid,
-                (low, high),
-                &side,
-            );
-            if let Some(state) = joint.and_then(|(t, found)| finish(t, liquid, Some(found))) {
+            if let Some(state) = joint(seed, side(seed), (low, high), &side) {
                 return Ok(state);
             }
         }
