@@ -1511,39 +1511,4 @@ mod tests {
             );
         }
     }
-
-    /// The joint search is not tried from a remembered answer on the other side, or
-    /// far from the start; there the nested search answers alone.
-    #[test]
-    fn joint_search_starts_only_near_an_answer_on_its_side() {
-        let blend = Blend::get().unwrap();
-        let fixed = |_: f64| 0.5;
-        let pressure = 1.3e5;
-        let vapour = blend.state_tp(40.0, pressure, 0.5).unwrap();
-        let liquid = blend.state_tp(18.0, pressure, 0.5).unwrap();
-        let search = |target: f64, seed: f64, liquid_side: bool| {
-            blend.joint_search(
-                pressure,
-                target,
-                &fixed,
-                Target::Enthalpy,
-                seed,
-                liquid_side,
-                (10.0, 400.0),
-                &|_| liquid_side,
-            )
-        };
-        // Remember the vapour at 40 K.
-        nested(
-            blend,
-            pressure,
-            vapour.enthalpy,
-            &fixed,
-            Target::Enthalpy,
-            40.5,
-        );
-        assert!(search(vapour.enthalpy, 40.2, false).is_some());
-        assert!(search(liquid.enthalpy, 18.2, true).is_none());
-        assert!(search(vapour.enthalpy, 60.0, false).is_none());
-    }
 }
