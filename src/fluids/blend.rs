@@ -316,7 +316,9 @@ impl Blend {
         near: Option<f64>,
     ) -> Result<f64> {
         // Above the critical temperature the isotherm has one root.
-        if temperature >= fluid.saturation_temperature_max() {
+        let Some(((low, high), (liquid_density, vapour_density))) =
+            Self::density_bracket(fluid, temperature, pressure, liquid)
+        else {
             return fluid.density_on_branch(
                 factors,
                 temperature,
@@ -325,27 +327,44 @@ impl Blend {
                 near,
                 None,
             );
+        };
+        let seed = near.filter(|rho| *rho > low && *rho < high);
+        let seed = if high.is_finite() {
+            seed.unwrap_or_else(|| {
+                fluid
+                    .ideal_gas_density(temperature, pressure)
+                    .min(vapour_density)
+            })
+        } else {
+            seed.unwrap_or(liquid_density)
+        };
+        fluid.solve_density(factors, temperature, pressure, seed, low, high)
+    }
+
+    /// The bracket (low, high) of a species' density search at (T, p) on side
+    /// `liquid`, with the approximate saturated densities (liquid, vapour) it is
+    /// drawn from: below the critical temperature and above the critical pressure,
+    /// or on the liquid side, the compressed liquid, denser than the saturated
+    /// liquid (a search from the ideal-gas density can land inside the equation's
+    /// loop); else the vapour, below the saturated vapour. `None` at or above the
+    /// critical temperature, where the isotherm has one root.
+    fn density_bracket(
+        fluid: &Fluid,
+        temperature: f64,
+        pressure: f64,
+        liquid: bool,
+    ) -> Option<((f64, f64), (f64, f64))> {
+        if temperature >= fluid.saturation_temperature_max() {
+            return None;
         }
         let (liquid_density, vapour_density) = fluid.approximate_saturated_densities(temperature);
-        // Below the critical temperature and above the critical pressure the one
-        // stable root is the compressed liquid, denser than the saturated liquid (a
-        // search from the ideal-gas density can land inside the equation's loop).
-        if liquid || pressure >= fluid.critical.pressure {
-            let critical = fluid.critical.density;
-            let low = (0.8 * liquid_density).max(critical);
-            let seed = near.filter(|rho| *rho > low).unwrap_or(liquid_density);
-            fluid.solve_density(factors, temperature, pressure, seed, low, f64::INFINITY)
+        let critical = fluid.critical.density;
+        let bracket = if liquid || pressure >= fluid.critical.pressure {
+            ((0.8 * liquid_density).max(critical), f64::INFINITY)
         } else {
-            let high = (1.6 * vapour_density).min(fluid.critical.density);
-            let seed = near
-                .filter(|rho| *rho > 0.0 && *rho < high)
-                .unwrap_or_else(|| {
-                    fluid
-                        .ideal_gas_density(temperature, pressure)
-                        .min(vapour_density)
-                });
-            fluid.solve_density(factors, temperature, pressure, seed, 0.0, high)
-        }
+            (0.0, (1.6 * vapour_density).min(critical))
+        };
+        Some((bracket, (liquid_density, vapour_density)))
     }
 
     /// Both species' properties at (T, p) on both sides, [liquid, vapour], each
@@ -773,11 +792,12 @@ impl Blend {
         let mut anchor: Option<(f64, (f64, f64))> = None;
         if pressure <= BLEND_SATURATION_PRESSURE_MAX {
             self.check_saturation_pressure(pressure)?;
+            let bounds = self.boiling_bounds(pressure);
             // From a seed clearly on one side, Newton on that side first: an answer
             // inside it is single phase, and the bracket's ends are not needed. The
             // side's end is a bound on both species' boiling temperatures from their
             // saturation tables, so that no saturation is solved on the way.
-            if let Some((seed, (first, last))) = seed.zip(self.boiling_bounds(pressure)) {
+            if let Some((seed, (first, last))) = seed.zip(bounds) {
                 let side = if seed > last && seed < high {
                     Some((false, last, high))
                 } else if seed < first && seed > low {
@@ -810,7 +830,7 @@ impl Blend {
             // both liquid; the bounds from the tables' nodes serve as well as the
             // exact temperatures (a target between them is found from the solution's
             // saturation below either way).
-            let (first, last) = match self.boiling_bounds(pressure) {
+            let (first, last) = match bounds {
                 Some(bounds) => bounds,
                 None => {
                     let (para_boiling, ortho_boiling) = self.boiling_temperatures(pressure)?;
@@ -1038,8 +1058,8 @@ impl Blend {
             });
             let answer = |para: Properties, ortho: Properties, mixed: Properties| {
                 let on_branch = side_at(t) == liquid
-                    && self.species_on_branch(self.para, t, pressure, liquid, &para)
-                    && self.species_on_branch(self.ortho, t, pressure, liquid, &ortho);
+                    && Self::species_on_branch(self.para, t, pressure, liquid, &para)
+                    && Self::species_on_branch(self.ortho, t, pressure, liquid, &ortho);
                 on_branch.then_some((t, (mixed, x, (para, ortho))))
             };
             if last_step && met {
@@ -1091,10 +1111,9 @@ impl Blend {
     }
 
     /// Whether a species' state at (T, p) lies on the root its density search on
-    /// side `liquid` would find ([`Blend::species_density`]'s bracket), on a rising
+    /// side `liquid` would find (inside [`Blend::density_bracket`]), on a rising
     /// isotherm.
     fn species_on_branch(
-        &self,
         fluid: &Fluid,
         temperature: f64,
         pressure: f64,
@@ -1102,18 +1121,11 @@ impl Blend {
         state: &Properties,
     ) -> bool {
         let rho = state.density;
-        if !(state.dp_drho > 0.0 && rho > 0.0 && rho < fluid.density_ceiling) {
-            return false;
-        }
-        if temperature >= fluid.saturation_temperature_max() {
-            return true;
-        }
-        let (liquid_density, vapour_density) = fluid.approximate_saturated_densities(temperature);
-        if liquid || pressure >= fluid.critical.pressure {
-            rho > (0.8 * liquid_density).max(fluid.critical.density)
-        } else {
-            rho < (1.6 * vapour_density).min(fluid.critical.density)
-        }
+        state.dp_drho > 0.0
+            && rho > 0.0
+            && rho < fluid.density_ceiling
+            && Self::density_bracket(fluid, temperature, pressure, liquid)
+                .is_none_or(|((low, high), _)| rho > low && rho < high)
     }
 
     /// The para fraction of the two-phase solution at p along a para-fraction path:
