@@ -554,10 +554,13 @@ pub fn exchange(
     // duty then caps it), which the outlets themselves show; the end-limited duty's
     // two flashes are spent only then (the same duty and outlets either way).
     if !context.detailed && !degenerate {
-        let asked = sides.end_approach_duty();
-        // (A duty that is not a number goes the whole way, to fail as it did.)
-        if let Some(Ok(asked)) = asked.filter(|a| a.as_ref().is_ok_and(|q| q.is_finite())) {
-            let duty = asked.max(0.0);
+        // (A duty that is not a number, or an error, goes the whole way, to fail as
+        // it did.)
+        let asked = match sides.end_approach_duty() {
+            Some(Ok(duty)) if duty.is_finite() => Some(duty.max(0.0)),
+            _ => None,
+        };
+        if let Some(duty) = asked {
             if let (Ok((hot_out, cold_out)), Some((coldest_hot, warmest_cold))) =
                 (converging_outlets(&sides, duty, context), sides.end_limits())
             {
