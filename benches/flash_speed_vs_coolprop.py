@@ -16,6 +16,15 @@ same random single-phase states of nitrogen, hydrogen and helium, in one run.
 4. Prints the table and the ratios against the speed issue's targets (cryochain at
    least 10x CoolProp for (T, p), 30x for (p, h) and (p, s)).
 
+Two CoolProp figures are printed for each flash. "update" is the issue's measure:
+`update` alone, which solves CoolProp's density (and temperature) but leaves every
+other property to be computed when first asked for. "same answers" also asks, after
+each update, for the properties cryochain's flash returns in the same call: u, h, s,
+g, c_v, c_p, speed of sound and Z (eight getters without arguments; their Python
+calls' cost is subtracted the same way). cryochain's flash returns more than that
+(the Joule-Thomson coefficient and the two pressure derivatives as well), so the
+second figure still leaves CoolProp some work undone.
+
 Usage:  pip install CoolProp==8.0.0 && python3 benches/flash_speed_vs_coolprop.py [N]
 """
 import json
@@ -100,13 +109,37 @@ def time_coolprop(coolprop_name, states):
         for p, s in ps_pairs:
             update(ps, p, s)
 
+    answers = (state.umass, state.hmass, state.smass, state.gibbsmass, state.cvmass,
+               state.cpmass, state.speed_sound, state.compressibility_factor)
+
+    def with_answers(pair, pairs):
+        u, h, s_, g, cv, cp, w, z = answers
+
+        def run():
+            for a, b in pairs:
+                update(pair, a, b)
+                u(), h(), s_(), g(), cv(), cp(), w(), z()
+        return run
+
+    def answers_loop_cost():
+        for a, b in tp_pairs:
+            getter()
+            getter(), getter(), getter(), getter(), getter(), getter(), getter(), getter()
+
     overhead = best_of_three(loop_cost)
+    overhead_answers = best_of_three(answers_loop_cost)
     n = len(states)
-    return {
+    alone = {
         "(T, p)": (best_of_three(tp) - overhead) / n,
         "(p, h)": (best_of_three(ph) - overhead) / n,
         "(p, s)": (best_of_three(ps_) - overhead) / n,
-    }, overhead / n
+    }
+    same = {
+        "(T, p)": (best_of_three(with_answers(pt, tp_pairs)) - overhead_answers) / n,
+        "(p, h)": (best_of_three(with_answers(hp, hp_pairs)) - overhead_answers) / n,
+        "(p, s)": (best_of_three(with_answers(ps, ps_pairs)) - overhead_answers) / n,
+    }
+    return alone, same, overhead / n
 
 
 def criterion_median(name, kind):
@@ -134,29 +167,41 @@ def main():
             for t, p, rho, _, _ in states:
                 out.write(f"{t!r},{p!r},{rho!r}\n")
     coolprop_times = {}
+    coolprop_same = {}
     overheads = {}
     for name, coolprop_name, _ in FLUIDS:
-        coolprop_times[name], overheads[name] = time_coolprop(coolprop_name, drawn[name])
+        coolprop_times[name], coolprop_same[name], overheads[name] = time_coolprop(
+            coolprop_name, drawn[name])
     environment = dict(os.environ, CRYOCHAIN_FLASH_STATES=directory)
     subprocess.run(["cargo", "bench", "--bench", "flash_states"], cwd=ROOT, env=environment,
                    check=True, stdout=sys.stderr)
     print(f"CoolProp {CoolProp.__version__}, {count} states a fluid, states in {directory}")
-    print(f"{'fluid':<9} {'input':<7} {'cryochain':>11} {'CoolProp':>11} {'ratio':>7} {'target':>7}  met")
+    print(f"{'':<17} {'':>11} {'CoolProp, update':>28} {'CoolProp, same answers':>28}")
+    print(f"{'fluid':<9} {'input':<7} {'cryochain':>11} {'time':>11} {'ratio':>7} {'met':>8}"
+          f" {'time':>11} {'ratio':>7} {'met':>8}  target")
     all_met = True
+    all_met_same = True
     for name, _, _ in FLUIDS:
         for kind, target in TARGETS.items():
             ours = criterion_median(name, kind) / count
             theirs = coolprop_times[name][kind]
-            ratio = theirs / ours
-            met = ratio >= target
+            same = coolprop_same[name][kind]
+            ratio, ratio_same = theirs / ours, same / ours
+            met, met_same = ratio >= target, ratio_same >= target
             all_met &= met
-            print(f"{name:<9} {kind:<7} {ours * 1e6:>8.3f} µs {theirs * 1e6:>8.3f} µs {ratio:>7.1f} {target:>6.0f}x  {'yes' if met else 'no'}")
+            all_met_same &= met_same
+            print(f"{name:<9} {kind:<7} {ours * 1e6:>8.3f} µs {theirs * 1e6:>8.3f} µs {ratio:>7.1f}"
+                  f" {'yes' if met else 'no':>8} {same * 1e6:>8.3f} µs {ratio_same:>7.1f}"
+                  f" {'yes' if met_same else 'no':>8}  {target:.0f}x")
     for name, _, _ in FLUIDS:
         with open(os.path.join(directory, f"{name}-accuracy.csv")) as handle:
             header, values = handle.read().split()
         print(f"{name}: largest relative differences {dict(zip(header.split(','), values.split(',')))};"
               f" Python loop cost per call {overheads[name] * 1e6:.3f} µs (subtracted)")
-    print("every target met" if all_met else "not every target met")
+    print("against update alone (the issue's measure): "
+          + ("every target met" if all_met else "not every target met"))
+    print("against update and the same answers: "
+          + ("every target met" if all_met_same else "not every target met"))
 
 
 if __name__ == "__main__":
