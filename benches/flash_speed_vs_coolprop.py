@@ -97,17 +97,11 @@ def time_coolprop(coolprop_name, states):
         for a, b in tp_pairs:
             getter()
 
-    def tp():
-        for p, t in tp_pairs:
-            update(pt, p, t)
-
-    def ph():
-        for h, p in hp_pairs:
-            update(hp, h, p)
-
-    def ps_():
-        for p, s in ps_pairs:
-            update(ps, p, s)
+    def update_only(pair, pairs):
+        def run():
+            for a, b in pairs:
+                update(pair, a, b)
+        return run
 
     answers = (state.umass, state.hmass, state.smass, state.gibbsmass, state.cvmass,
                state.cpmass, state.speed_sound, state.compressibility_factor)
@@ -129,16 +123,11 @@ def time_coolprop(coolprop_name, states):
     overhead = best_of_three(loop_cost)
     overhead_answers = best_of_three(answers_loop_cost)
     n = len(states)
-    alone = {
-        "(T, p)": (best_of_three(tp) - overhead) / n,
-        "(p, h)": (best_of_three(ph) - overhead) / n,
-        "(p, s)": (best_of_three(ps_) - overhead) / n,
-    }
-    same = {
-        "(T, p)": (best_of_three(with_answers(pt, tp_pairs)) - overhead_answers) / n,
-        "(p, h)": (best_of_three(with_answers(hp, hp_pairs)) - overhead_answers) / n,
-        "(p, s)": (best_of_three(with_answers(ps, ps_pairs)) - overhead_answers) / n,
-    }
+    inputs = {"(T, p)": (pt, tp_pairs), "(p, h)": (hp, hp_pairs), "(p, s)": (ps, ps_pairs)}
+    alone = {kind: (best_of_three(update_only(*pair)) - overhead) / n
+             for kind, pair in inputs.items()}
+    same = {kind: (best_of_three(with_answers(*pair)) - overhead_answers) / n
+            for kind, pair in inputs.items()}
     return alone, same, overhead / n
 
 
